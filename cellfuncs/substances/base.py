@@ -1,0 +1,212 @@
+"""What every substance model offers, and the quantities derived the same way for all.
+
+A concrete model supplies its boundaries (pressure from temperature and back),
+its phase classification and its single-phase properties ``props(T, p, phase)``.
+Everything else here (volumes, expansivity, latent heat, flash fraction, ...) is
+built from those, so each substance is one consistent model.
+
+Arguments are SI numpy arrays (K, Pa) that broadcast; phases are integer codes
+(see :data:`STABLE`, :data:`LIQUID`, ...). Methods return :class:`Result` objects.
+"""
+
+from __future__ import annotations
+
+from typing import NamedTuple
+
+import numpy as np
+
+from .props import Props
+from .result import BAD_ARGUMENT, ModelError, Result
+
+# Phase codes. Solids count up from SOLID: SOLID + k is the substance's k-th solid.
+STABLE = 0  # "the stable phase at this state"
+LIQUID = 1
+VAPOR = 2
+FLUID = 3  # the one fluid phase above the critical temperature
+SOLID = 10
+
+BOUNDARIES = ("boil", "melt", "sublime")
+
+_FLUID_WORDS = {
+    "liquid": LIQUID,
+    "vapor": VAPOR,
+    "vapour": VAPOR,
+    "gas": VAPOR,
+    "fluid": FLUID,
+    "supercritical fluid": FLUID,
+    "supercritical": FLUID,
+}
+
+
+class FixedPoint(NamedTuple):
+    temperature: float  # K
+    pressure: float  # Pa
+
+
+class InfoItem(NamedTuple):
+    """One field of a substance's definition, as SUBSTANCE_INFO shows it."""
+
+    value: float | str
+    unit: str
+    source: str
+
+
+def boundary_code(word: str) -> str:
+    """``"boil"``, ``"melt"`` or ``"sublime"`` from a case-insensitive word."""
+    key = str(word).strip().lower()
+    aliases = {"boiling": "boil", "vaporization": "boil", "vaporisation": "boil", "melting": "melt",
+               "fusion": "melt", "freeze": "melt", "sublimation": "sublime"}
+    key = aliases.get(key, key)
+    if key not in BOUNDARIES:
+        raise ModelError(BAD_ARGUMENT, f"unknown boundary '{word}'; use \"boil\", \"melt\" or \"sublime\"")
+    return key
+
+
+class Substance:
+    """Base of the substance models. Subclasses set the attributes and the abstract methods."""
+
+    name: str = ""
+    aliases: tuple[str, ...] = ()
+    molar_mass: float = float("nan")  # kg/mol
+    critical: FixedPoint
+    triple: FixedPoint
+    solids: tuple[str, ...] = ("solid",)  # labels of the solid phases, SOLID + k
+
+    # --- to be provided by each model -------------------------------------------------
+    def boil_pressure(self, T: np.ndarray) -> Result:
+        raise NotImplementedError
+
+    def boil_temperature(self, p: np.ndarray) -> Result:
+        raise NotImplementedError
+
+    def melt_pressure(self, T: np.ndarray, solid: int | None = None) -> tuple[Result, np.ndarray]:
+        """Melting pressure and the code of the solid on that branch (lowest branch by default)."""
+        raise NotImplementedError
+
+    def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
+        """Melting temperature and the code of the solid on that branch."""
+        raise NotImplementedError
+
+    def sublime_pressure(self, T: np.ndarray) -> Result:
+        raise NotImplementedError
+
+    def sublime_temperature(self, p: np.ndarray) -> Result:
+        raise NotImplementedError
+
+    def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
+        """Labels (object array): one phase, or the phases of a line joined by " + "."""
+        raise NotImplementedError
+
+    def props(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray | int) -> tuple[Props, Result]:
+        """Molar properties of ``phase`` at (T, p); the Result carries the problems only."""
+        raise NotImplementedError
+
+    def info(self) -> dict[str, InfoItem]:
+        raise NotImplementedError
+
+    # --- phase words ------------------------------------------------------------------
+    def phase_code(self, word: str | None) -> int:
+        """The code of a phase word (case-insensitive); blank means the stable phase."""
+        if word is None or not str(word).strip():
+            return STABLE
+        key = " ".join(str(word).lower().split())
+        if key in _FLUID_WORDS:
+            return _FLUID_WORDS[key]
+        lowered = [s.lower() for s in self.solids]
+        if key == "solid":
+            return SOLID
+        if key in lowered:
+            return SOLID + lowered.index(key)
+        names = ", ".join(['"liquid"', '"vapor"', '"gas"', '"supercritical fluid"', '"solid"'] + [f'"{s}"' for s in self.solids if s != "solid"])
+        raise ModelError(BAD_ARGUMENT, f"unknown phase '{word}' for {self.name}; use one of {names}")
+
+    def phase_label(self, code: int) -> str:
+        if code >= SOLID:
+            return self.solids[code - SOLID]
+        return {LIQUID: "liquid", VAPOR: "vapor", FLUID: "supercritical fluid", STABLE: "stable phase"}[code]
+
+    # --- quantities derived from the above ---------------------------------------------
+    def _one_property(self, T, p, phase, field: str) -> Result:
+        props, result = self.props(T, p, phase)
+        result.fill(getattr(props, field))
+        return result
+
+    def molar_volume(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray | int = STABLE) -> Result:
+        return self._one_property(T, p, phase, "v")
+
+    def expansivity(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray | int = STABLE) -> Result:
+        return self._one_property(T, p, phase, "alpha")
+
+    def compressibility(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray | int = STABLE) -> Result:
+        return self._one_property(T, p, phase, "kappa")
+
+    def chem_potential(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray | int) -> Result:
+        return self._one_property(T, p, phase, "g")
+
+    def expansion_ratio(self, T1, p1, T2, p2, phase1=STABLE, phase2=STABLE) -> Result:
+        """V(T2, p2) / V(T1, p1) on a molar basis."""
+        v1 = self.molar_volume(T1, p1, phase1)
+        v2 = self.molar_volume(T2, p2, phase2)
+        out = Result.joined(v1, v2)
+        out.fill(v2.values / v1.values)
+        return out
+
+    def line_pressure(self, boundary: str, T: np.ndarray, solid: int | None = None) -> tuple[Result, tuple]:
+        """Pressure on a line at T, and the phase codes below and above it."""
+        if boundary == "boil":
+            return self.boil_pressure(T), (LIQUID, VAPOR)
+        if boundary == "melt":
+            p, solid_code = self.melt_pressure(T, solid)
+            return p, (solid_code, LIQUID)
+        return self.sublime_pressure(T), (SOLID, VAPOR)
+
+    def line_temperature(self, boundary: str, p: np.ndarray) -> tuple[Result, tuple]:
+        """Temperature on a line at p, and the phase codes below and above it."""
+        if boundary == "boil":
+            return self.boil_temperature(p), (LIQUID, VAPOR)
+        if boundary == "melt":
+            T, solid_code = self.melt_temperature(p)
+            return T, (solid_code, LIQUID)
+        return self.sublime_temperature(p), (SOLID, VAPOR)
+
+    def _across(self, line: Result, T, p, phases, field: str) -> Result:
+        """field(upper phase) - field(lower phase) at (T, p) on a line; for "v" the ratio."""
+        low, low_result = self.props(T, p, phases[0])
+        high, high_result = self.props(T, p, phases[1])
+        out = Result.joined(line, low_result, high_result)
+        a, b = getattr(low, field), getattr(high, field)
+        out.fill(b / a if field == "v" else b - a)
+        return out
+
+    def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
+        """Enthalpy of melting, boiling or sublimation at T (J/mol), from the phases' own formulations."""
+        p, phases = self.line_pressure(boundary, T)
+        return self._across(p, T, p.values, phases, "h")
+
+    def phase_change_ratio(self, boundary: str, p: np.ndarray) -> Result:
+        """Molar volume ratio across a line at p: V_liquid/V_solid, V_vapor/V_liquid or V_vapor/V_solid."""
+        T, phases = self.line_temperature(boundary, p)
+        return self._across(T, T.values, p, phases, "v")
+
+    def saturation_margin(self, T: np.ndarray, p: np.ndarray, sign: float) -> Result:
+        """sign * (T_boil(p) - T): subcooling for sign = +1, superheat for sign = -1."""
+        t_boil = self.boil_temperature(p)
+        out = Result.joined(t_boil, Result(np.full(np.shape(T), np.nan)))
+        out.fill(sign * (t_boil.values - T))
+        return out
+
+    def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
+        """Vapour fraction after liquid at (T1, p1) expands at constant enthalpy to saturation at p2.
+
+        0 when the liquid's enthalpy is below the saturated liquid's at p2 (nothing flashes).
+        For one substance the mass and mole fractions are equal.
+        """
+        liquid, inlet = self.props(T1, p1, LIQUID)
+        t_sat = self.boil_temperature(p2)
+        sat_liquid, liquid_result = self.props(t_sat.values, p2, LIQUID)
+        sat_vapor, vapor_result = self.props(t_sat.values, p2, VAPOR)
+        out = Result.joined(inlet, t_sat, liquid_result, vapor_result)
+        out.fill(np.maximum((liquid.h - sat_liquid.h) / (sat_vapor.h - sat_liquid.h), 0.0))
+        return out
+
+

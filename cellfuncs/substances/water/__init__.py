@@ -1,0 +1,1 @@
+"""Water: IAPWS formulations and the water model."""

@@ -1,0 +1,397 @@
+"""The water model: IAPWS formulations assembled into one substance.
+
+Boundaries (these decide the stable phase):
+  boiling      IAPWS-IF97 region 4 (273.16 K .. 647.096 K)
+  melting      IAPWS R14-08 ice Ih, III, V, VI, VII lines (251.165 K .. 715 K, to 20.6 GPa)
+  sublimation  IAPWS R14-08 ice Ih line (50 K .. 273.16 K)
+Phases (these give volumes, enthalpies and chemical potentials):
+  liquid       IF97 region 1 to 623.15 K, region 3 (liquid-like root) above;
+               region 1 extended down to the ice Ih melting line and up to 210 MPa
+  vapour       IF97 region 2, region 3 (vapour-like root) between the B23 line and
+               saturation; region 2 extended down to 200 K at or below the sublimation pressure
+  fluid        above 647.096 K: region 2 / region 3 (split by B23), region 2 to 1073.15 K,
+               region 5 to 2273.15 K and 50 MPa
+  ice Ih       IAPWS R10-06 (T <= 273.16 K, p <= 210 MPa, not above its melting line)
+  ice III..VII labels only: solid-solid boundaries (including ice II) are not modelled;
+               a solid above the ice Ih line's top pressure (208.566 MPa) is named after the
+               melting-line segment whose pressure range holds it; no volume formulation.
+
+Chemical potentials are molar Gibbs energies on the IAPWS-95 reference state
+(internal energy and entropy of the saturated liquid at the triple point are zero),
+which IF97 and R10-06 share.
+
+>>> w = Water()
+>>> round(float(w.boil_temperature(np.array(101325.0)).values), 4)
+373.1243
+>>> str(w.stable_phase(np.array(300.0), np.array(1e5)).values)
+'liquid'
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ...data import constant, load
+from ..base import FLUID, LIQUID, SOLID, STABLE, VAPOR, FixedPoint, InfoItem, Substance
+from ..props import Props
+from ..result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
+from . import ice_ih, ice_lines, if97, if97_region3, if97_saturation
+
+_DATA = "water/water"
+M = constant(_DATA, "molar_mass").value
+TC = constant(_DATA, "critical_temperature").value
+PC = constant(_DATA, "critical_pressure").value
+TT = constant(_DATA, "triple_point_temperature").value
+PT = constant(_DATA, "triple_point_pressure").value
+
+LINE_TOL = 1e-9  # a state is on a line when |T - T_line(p)| <= LINE_TOL * T_line(p)
+
+REGION1_T_MAX = 623.15  # K, IF97 regions 1/3 and 2/3 split below the B23 line's start
+REGION2_T_MIN = 200.0  # K, lowest temperature of the region 2 extension along the sublimation line
+REGION3_T_MAX = 863.15  # K, top of the B23 line
+REGION2_T_MAX = 1073.15  # K
+REGION5_T_MAX = 2273.15  # K
+P_MAX_FLUID = 100e6  # Pa, regions 1, 2 and 3
+P_MAX_LIQUID = 210e6  # Pa, region 1 extended along the ice Ih melting line
+P_MAX_REGION5 = 50e6  # Pa
+ICE_IH_P_MAX = 210e6  # Pa, IAPWS R10-06 range
+
+SOLIDS = tuple(f"ice {name}" for name in ice_lines.ICES)  # ice Ih, ice III, ice V, ice VI, ice VII
+_IH_P_TOP = ice_lines.line_range("Ih")[1][1]  # 208.566 MPa, the ice Ih-III-liquid triple point
+_MELT_P_TOP = ice_lines.line_range("VII")[1][1]
+_SUB_T_MIN, _SUB_T_MAX = ice_lines.line_range("sublimation")[0]
+_MELT_T_MIN = ice_lines.line_range("Ih")[0][0]  # 251.165 K
+_MELT_T_MAX = ice_lines.line_range("VII")[0][1]  # 715 K
+
+# Labels STABLE_PHASE returns, indexed by state code; the code's single phase (STABLE on a line).
+_LABELS = (
+    ["liquid", "vapor", "gas", "supercritical fluid"]
+    + list(SOLIDS)
+    + ["liquid + vapor"]
+    + [f"{s} + liquid" for s in SOLIDS]
+    + ["ice Ih + vapor", "ice Ih + liquid + vapor"]
+)
+_LABEL_ARRAY = np.array(_LABELS, dtype=object)
+_S_LIQUID, _S_VAPOR, _S_GAS, _S_SUPER = 0, 1, 2, 3
+_S_SOLID = 4
+_S_BOIL = 4 + len(SOLIDS)
+_S_MELT = _S_BOIL + 1
+_S_SUBLIME = _S_MELT + len(SOLIDS)
+_S_TRIPLE = _S_SUBLIME + 1
+_STATE_PHASE = np.array(
+    [LIQUID, VAPOR, FLUID, FLUID] + [SOLID + k for k in range(len(SOLIDS))] + [STABLE] * (len(SOLIDS) + 3)
+)
+
+
+def _molar(p: Props) -> Props:
+    return Props(p.v * M, p.h * M, p.s * M, p.g * M, p.cp * M, p.alpha, p.kappa)
+
+
+def _near(x, line) -> np.ndarray:
+    return np.abs(x - line) <= LINE_TOL * line
+
+
+class Water(Substance):
+    name = "water"
+    aliases = ("water", "h2o", "r-718", "r718")
+    molar_mass = M
+    critical = FixedPoint(TC, PC)
+    triple = FixedPoint(TT, PT)
+    solids = SOLIDS
+
+    # --- boundaries -------------------------------------------------------------------
+    def boil_pressure(self, T: np.ndarray) -> Result:
+        r = Result.like(T)
+        r.flag(T < TT, OUT_OF_RANGE, "{} K is below the triple-point temperature of water (273.16 K); "
+               "below it the solid-vapour line applies", T, see="sublime")
+        r.flag(T > TC, OUT_OF_RANGE, "{} K is above the critical temperature of water (647.096 K): "
+               "there is no liquid-vapour line above it", T)
+        r.fill(if97_saturation.saturation_pressure(T))
+        return r
+
+    def boil_temperature(self, p: np.ndarray) -> Result:
+        r = Result.like(p)
+        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa); "
+               "below it the solid-vapour line applies", p, see="sublime")
+        r.flag(p > PC, OUT_OF_RANGE, "{} Pa is above the critical pressure of water (22.064 MPa): "
+               "there is no liquid-vapour line above it", p)
+        r.fill(if97_saturation.saturation_temperature(p))
+        return r
+
+    def melt_pressure(self, T: np.ndarray, solid: int | None = None) -> tuple[Result, np.ndarray]:
+        r = Result.like(T)
+        if solid is None:
+            # the lowest melting pressure at T: the first line (in order of pressure) that reaches T
+            codes = np.full(np.shape(T), -1)
+            for k in reversed(range(len(ice_lines.ICES))):
+                (t_lo, t_hi), _ = ice_lines.line_range(ice_lines.ICES[k])
+                codes = np.where((T >= t_lo) & (T <= t_hi), SOLID + k, codes)
+            r.flag(codes < 0, OUT_OF_RANGE, "{} K is outside the melting lines of water (251.165 K to 715 K)", T)
+        else:
+            ice = ice_lines.ICES[solid - SOLID]
+            (t_lo, t_hi), _ = ice_lines.line_range(ice)
+            codes = np.full(np.shape(T), solid)
+            r.flag((T < t_lo) | (T > t_hi), OUT_OF_RANGE,
+                   "{} K is outside the ice " + ice + f" melting line ({fmt(t_lo)} K to {fmt(t_hi)} K)", T)
+        for k, ice in enumerate(ice_lines.ICES):
+            here = codes == SOLID + k
+            if np.any(here & np.broadcast_to(r.ok, np.shape(T))):
+                r.fill(ice_lines.melting_pressure(T, ice), where=here)
+        return r, codes
+
+    def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
+        r = Result.like(p)
+        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa); "
+               "below it the solid-vapour line applies", p, see="sublime")
+        r.flag(p > _MELT_P_TOP, OUT_OF_RANGE,
+               "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)", p)
+        T, index = ice_lines.melting_temperature_any(np.where(np.broadcast_to(r.ok, np.shape(p)), p, np.nan))
+        r.fill(T)
+        return r, SOLID + np.maximum(index, 0)
+
+    def sublime_pressure(self, T: np.ndarray) -> Result:
+        r = Result.like(T)
+        r.flag(T > TT, OUT_OF_RANGE, "{} K is above the triple-point temperature of water (273.16 K); "
+               "above it the liquid-vapour line applies", T, see="boil")
+        r.flag(T < _SUB_T_MIN, OUT_OF_RANGE, "{} K is below the sublimation line's range (50 K)", T)
+        r.fill(ice_lines.sublimation_pressure(T))
+        return r
+
+    def sublime_temperature(self, p: np.ndarray) -> Result:
+        r = Result.like(p)
+        p_min = float(ice_lines.sublimation_pressure(_SUB_T_MIN))
+        r.flag(p > PT, OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa); "
+               "above it the liquid-vapour line applies", p, see="boil")
+        r.flag(p < p_min, OUT_OF_RANGE, "{} Pa is below the sublimation line's range (" + fmt(p_min) + " Pa at 50 K)", p)
+        r.fill(ice_lines.sublimation_temperature(p))
+        return r
+
+    # --- stable phase -----------------------------------------------------------------
+    def _classify(self, T: np.ndarray, p: np.ndarray) -> Result:
+        """State codes (indices into _LABELS) from the boundary equations."""
+        T, p = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float))
+        r = Result(np.full(T.shape, -1.0))
+        r.flag(T > REGION5_T_MAX, OUT_OF_RANGE,
+               "{} K is above the highest temperature of the water formulations (2273.15 K)", T)
+        r.flag(p > _MELT_P_TOP, OUT_OF_RANGE,
+               "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)", p)
+        p_sub_min = float(ice_lines.sublimation_pressure(_SUB_T_MIN))
+        r.flag((p < p_sub_min) & (T < TT), OUT_OF_RANGE,
+               "{} Pa is below the sublimation line's range (" + fmt(p_sub_min) + " Pa at 50 K)", p)
+        state = np.full(T.shape, -1)
+        fluid = np.where(T >= TC, np.where(p >= PC, _S_SUPER, _S_GAS), _S_VAPOR)
+
+        high = p >= PT
+        # solid or fluid: the melting temperature is a single-valued function of p above the triple point
+        t_melt = np.full(T.shape, np.nan)
+        ice = np.full(T.shape, -1)
+        need = high & ((T <= 273.31) | (p > 632.4e6))  # elsewhere no melting line is near
+        if need.any():
+            t_melt[need], ice[need] = ice_lines.melting_temperature_any(p[need])
+        on_melt = need & _near(T, t_melt)
+        state = np.where(need & (T < t_melt) & ~on_melt, _S_SOLID + ice, state)
+        state = np.where(on_melt, _S_MELT + ice, state)
+        state = np.where(on_melt & (p <= PT * (1 + LINE_TOL)), _S_TRIPLE, state)
+
+        # fluid above the triple-point pressure: boiling line below the critical point
+        rest = high & (state < 0)
+        boil = rest & (T < TC) & (p <= PC)
+        t_boil = np.full(T.shape, np.nan)
+        if boil.any():
+            t_boil[boil] = if97_saturation.saturation_temperature(p[boil])
+        state = np.where(boil & _near(T, t_boil), _S_BOIL, state)
+        state = np.where(boil & (state < 0), np.where(T < t_boil, _S_LIQUID, _S_VAPOR), state)
+        state = np.where(rest & (state < 0), np.where(T < TC, _S_LIQUID, fluid), state)
+
+        # below the triple-point pressure: the sublimation line
+        low = ~high & (state < 0)
+        t_sub = np.full(T.shape, np.nan)
+        sub = low & (T <= TT * (1 + LINE_TOL)) & (p >= p_sub_min)
+        if sub.any():
+            t_sub[sub] = ice_lines.sublimation_temperature(p[sub])
+        state = np.where(sub & _near(T, t_sub), _S_SUBLIME, state)
+        state = np.where(sub & (state < 0) & (T < t_sub), _S_SOLID, state)
+        state = np.where(low & (state < 0), fluid, state)
+        r.fill(state)
+        return r
+
+    def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
+        codes = self._classify(T, p)
+        labels = Result(np.full(codes.values.shape, None, dtype=object), codes.problems)
+        ok = np.broadcast_to(codes.ok, codes.values.shape)
+        labels.values[ok] = _LABEL_ARRAY[codes.values[ok].astype(int)]
+        return labels
+
+    # --- single-phase properties --------------------------------------------------------
+    def props(self, T, p, phase=STABLE) -> tuple[Props, Result]:
+        T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
+        r = Result(np.full(T.shape, np.nan))
+        phase = phase.copy()
+        blank = phase == STABLE
+        if blank.any():
+            state = self._classify(T[blank], p[blank])
+            sub = Result(np.full(state.values.shape, np.nan), state.problems)
+            codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
+            on_line = _STATE_PHASE[codes] == STABLE
+            sub.flag(on_line & np.equal(state.problems, None) if state.problems is not None else on_line,
+                     NOT_AVAILABLE, lambda label: f"the state is on a line ({label}): give a phase",
+                     _LABEL_ARRAY[codes])
+            phase[blank] = _STATE_PHASE[codes]
+            if sub.problems is not None:
+                problems = np.full(T.shape, None, dtype=object)
+                problems[blank] = sub.problems
+                r.adopt(problems)
+        # any fluid word above the critical temperature means the one fluid
+        fluid_word = (phase == LIQUID) | (phase == VAPOR) | (phase == FLUID)
+        phase[fluid_word & (T >= TC)] = FLUID
+        r.flag((phase == FLUID) & (T < TC), BAD_ARGUMENT,
+               "{} K is below the critical temperature of water (647.096 K): ask for liquid or vapor", T)
+        r.flag((phase > SOLID) & ~blank, NOT_AVAILABLE,
+               lambda k: f"no volume formulation for {SOLIDS[k - SOLID]} (only ice Ih has one, IAPWS R10-06)", phase)
+        r.flag((phase > SOLID) & blank, NOT_AVAILABLE,
+               lambda k: f"the stable phase is {SOLIDS[k - SOLID]}, which has no volume formulation "
+               "(only ice Ih has one, IAPWS R10-06)", phase)
+
+        fields = {name: np.full(T.shape, np.nan) for name in Props._fields}
+        for code, method in ((LIQUID, self._liquid), (VAPOR, self._vapor), (FLUID, self._fluid), (SOLID, self._ice)):
+            sel = (phase == code) & np.broadcast_to(r.ok, T.shape)
+            if sel.any():
+                method(T, p, sel, r, fields)
+        return Props(**fields), r
+
+    def _liquid(self, T, p, sel, r: Result, fields) -> None:
+        t, q = T[sel], p[sel]
+        sub = Result(np.full(t.shape, np.nan))
+        sub.flag(q > P_MAX_LIQUID, OUT_OF_RANGE, "liquid water at {} Pa is above the formulation's range (210 MPa)", q)
+        sub.flag((t > REGION1_T_MAX) & (q > P_MAX_FLUID), OUT_OF_RANGE,
+                 "liquid water above 623.15 K is covered to 100 MPa only; got {} Pa", q)
+        cold = t < TT
+        p_sat = if97_saturation.saturation_pressure(np.where(cold, TT, t))
+        sub.flag(~cold & (q < p_sat * (1 - LINE_TOL)), OUT_OF_RANGE,
+                 lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is below its vapour pressure "
+                 f"({fmt(if97_saturation.saturation_pressure(tt))} Pa): superheated liquid is outside IF97", t, q)
+        freeze = cold | (q > 100e6)
+        if freeze.any():
+            t_melt = np.full(t.shape, -np.inf)
+            t_melt[freeze], _ = ice_lines.melting_temperature_any(np.maximum(q[freeze], PT))
+            sub.flag(t < t_melt * (1 - LINE_TOL), OUT_OF_RANGE,
+                     lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is below its melting temperature "
+                     "(supercooled liquid is outside the formulation)", t, q)
+        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        low = ok & (t <= REGION1_T_MAX)
+        if low.any():
+            self._put(fields, sel, low, if97.region1(t[low], q[low]))
+        near = ok & (t > REGION1_T_MAX)
+        if near.any():
+            self._put_region3(fields, sel, near, t, q, "liquid", sub)
+        self._report(r, sel, sub)
+
+    def _vapor(self, T, p, sel, r: Result, fields) -> None:
+        t, q = T[sel], p[sel]
+        sub = Result(np.full(t.shape, np.nan))
+        sub.flag(t < REGION2_T_MIN, OUT_OF_RANGE,
+                 "water vapour below 200 K is outside the formulation (IF97 region 2 extended to 200 K); got {} K", t)
+        cold = t < TT
+        p_line = np.where(cold, ice_lines.sublimation_pressure(np.clip(t, REGION2_T_MIN, TT)),
+                          if97_saturation.saturation_pressure(np.clip(t, TT, TC)))
+        sub.flag(q > p_line * (1 + LINE_TOL), OUT_OF_RANGE,
+                 lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is above its "
+                 f"{'sublimation' if tt < TT else 'vapour'} pressure: supersaturated vapour is outside IF97", t, q)
+        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, REGION3_T_MAX)))
+        two = ok & ~above_b23
+        if two.any():
+            self._put(fields, sel, two, if97.region2(t[two], q[two]))
+        three = ok & above_b23
+        if three.any():
+            self._put_region3(fields, sel, three, t, q, "vapour", sub)
+        self._report(r, sel, sub)
+
+    def _fluid(self, T, p, sel, r: Result, fields) -> None:
+        t, q = T[sel], p[sel]
+        sub = Result(np.full(t.shape, np.nan))
+        sub.flag(t > REGION5_T_MAX, OUT_OF_RANGE, "{} K is above the water formulations' range (2273.15 K)", t)
+        sub.flag((t > REGION2_T_MAX) & (q > P_MAX_REGION5), OUT_OF_RANGE,
+                 "above 1073.15 K water is covered to 50 MPa only (IF97 region 5); got {} Pa", q)
+        sub.flag(q > P_MAX_FLUID, OUT_OF_RANGE, "{} Pa is above the water formulations' range for fluid (100 MPa)", q)
+        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        three = ok & (t <= REGION3_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, REGION3_T_MAX)))
+        two = ok & ~three & (t <= REGION2_T_MAX)
+        five = ok & (t > REGION2_T_MAX)
+        if two.any():
+            self._put(fields, sel, two, if97.region2(t[two], q[two]))
+        if five.any():
+            self._put(fields, sel, five, if97.region5(t[five], q[five]))
+        if three.any():
+            self._put_region3(fields, sel, three, t, q, "liquid", sub)
+        self._report(r, sel, sub)
+
+    def _ice(self, T, p, sel, r: Result, fields) -> None:
+        t, q = T[sel], p[sel]
+        sub = Result(np.full(t.shape, np.nan))
+        sub.flag(t > TT, OUT_OF_RANGE, "ice Ih above 273.16 K is outside IAPWS R10-06; got {} K", t)
+        sub.flag(q > ICE_IH_P_MAX, OUT_OF_RANGE, "ice Ih above 210 MPa is outside IAPWS R10-06; got {} Pa", q)
+        melt = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        melt &= q > PT
+        if melt.any():
+            p_melt = np.full(t.shape, np.inf)
+            p_melt[melt] = ice_lines.melting_pressure(np.clip(t[melt], _MELT_T_MIN, TT), "Ih")
+            # the ice Ih line leans back: above it in pressure the ice has melted
+            sub.flag(melt & (t >= _MELT_T_MIN) & (q > p_melt * (1 + LINE_TOL)), OUT_OF_RANGE,
+                     lambda tt, qq: f"ice Ih at {fmt(tt)} K and {fmt(qq)} Pa is above its melting temperature", t, q)
+        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        if ok.any():
+            self._put(fields, sel, ok, ice_ih.properties(t[ok], q[ok]))
+        self._report(r, sel, sub)
+
+    def _put(self, fields, sel, part, props: Props) -> None:
+        index = np.flatnonzero(sel)[part]
+        for name, value in zip(Props._fields, _molar(props)):
+            fields[name].flat[index] = value
+
+    def _put_region3(self, fields, sel, part, t, q, branch: str, sub: Result) -> None:
+        rho = if97_region3.density(t[part], q[part], branch)
+        missing = np.zeros(t.shape, bool)
+        missing[part] = np.isnan(rho)
+        sub.flag(missing, OUT_OF_RANGE, "no " + branch + "-like density root of IF97 region 3 at {} K and {} Pa", t, q)
+        good = part.copy()
+        good[part] = ~np.isnan(rho)
+        if good.any():
+            self._put(fields, sel, good, if97_region3.properties_rho(rho[~np.isnan(rho)], t[good]))
+
+    @staticmethod
+    def _report(r: Result, sel: np.ndarray, sub: Result) -> None:
+        if sub.problems is not None:
+            problems = np.full(sel.shape, None, dtype=object)
+            problems[sel] = sub.problems
+            r.adopt(problems)
+
+    # --- description --------------------------------------------------------------------
+    def info(self) -> dict[str, InfoItem]:
+        items: dict[str, InfoItem] = {}
+        for key, entry in load(_DATA)["constants"].items():
+            items[key] = InfoItem(entry["value"], entry["unit"], entry["reference"])
+        for key, (model, valid, source) in _MODELS.items():
+            items[f"{key}_model"] = InfoItem(model, "", source)
+            items[f"{key}_range"] = InfoItem(valid, "", source)
+        return items
+
+
+_MODELS = {
+    "boil": ("IAPWS-IF97 region 4 saturation equation", "273.16 K to 647.096 K", "IAPWS R7-97(2012), eqs. 30-31"),
+    "melt": ("IAPWS R14-08 melting-pressure equations of ice Ih, III, V, VI, VII",
+             "251.165 K to 715 K, 611.657 Pa to 20.618 GPa", "IAPWS R14-08(2011), eqs. 1-5"),
+    "sublime": ("IAPWS R14-08 sublimation-pressure equation of ice Ih", "50 K to 273.16 K", "IAPWS R14-08(2011), eq. 6"),
+    "liquid": ("IAPWS-IF97 region 1 (region 3 above 623.15 K)",
+               "melting line to 647.096 K, vapour pressure to 100 MPa (region 1 extended to 210 MPa)",
+               "IAPWS R7-97(2012), sections 5 and 7"),
+    "vapor": ("IAPWS-IF97 region 2 (region 3 between the B23 line and saturation)",
+              "200 K to 647.096 K up to the vapour or sublimation pressure (region 2 extended below 273.15 K)",
+              "IAPWS R7-97(2012), sections 6 and 7"),
+    "fluid": ("IAPWS-IF97 regions 2, 3 and 5", "647.096 K to 1073.15 K up to 100 MPa; to 2273.15 K up to 50 MPa",
+              "IAPWS R7-97(2012), sections 6, 7 and 9"),
+    "solid": ("IAPWS R10-06 Gibbs function of ice Ih", "up to 273.16 K and 210 MPa, not above the melting line",
+              "IAPWS R10-06(2009)"),
+    "chem_potential": ("molar Gibbs energy, IAPWS-95 reference state: u = 0 and s = 0 for the saturated "
+                       "liquid at the triple point", "", "IAPWS R6-95(2018); IAPWS R7-97(2012); IAPWS R10-06(2009)"),
+}
