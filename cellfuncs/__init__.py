@@ -25,5 +25,6 @@ def __getattr__(name: str) -> Any:
         from .sheet import functions
 
         if hasattr(functions, name):
-            return getattr(functions, name)
+            globals()[name] = getattr(functions, name)
+            return globals()[name]
     raise AttributeError(f"module 'cellfuncs' has no attribute '{name}'")

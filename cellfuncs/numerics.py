@@ -37,9 +37,15 @@ def solve_bracketed(
     with np.errstate(all="ignore"):
         fa = np.asarray(f(a), dtype=float)
         fb = np.asarray(f(b), dtype=float)
+        # f may broadcast scalar brackets to the shape of its own data
+        a, b, fa, fb = (np.array(x) for x in np.broadcast_arrays(a, b, fa, fb))
         valid = np.sign(fa) * np.sign(fb) <= 0
         t = np.full(a.shape, 0.5)
         c, fc = a.copy(), fa.copy()
+        # each element's root is recorded when it converges, so it does not depend
+        # on how long the other elements of the array keep the loop going
+        root = np.full(a.shape, np.nan)
+        finished = ~valid
         for _ in range(maxiter):
             xt = a + t * (b - a)
             ft = np.asarray(f(xt), dtype=float)
@@ -55,7 +61,10 @@ def solve_bracketed(
             tol = 2.0 * xtol * np.abs(xm) + 1e-300
             tlim = tol / np.abs(b - c)
             done = (tlim > 0.5) | (fm == 0) | ~valid
-            if done.all():
+            newly = done & ~finished
+            root[newly] = xm[newly]
+            finished |= done
+            if finished.all():
                 break
             xi = (a - b) / (c - b)
             phi = (fa - fb) / (fc - fb)
@@ -64,6 +73,7 @@ def solve_bracketed(
             t = np.where(quadratic, t_iqi, 0.5)
             t = np.minimum(np.maximum(t, tlim), 1 - tlim)
             # converged or non-finite steps bisect, which keeps every bracket valid
-            t = np.where(np.isfinite(t) & ~done, t, 0.5)
-        root = np.where(np.abs(fa) < np.abs(fb), a, b)
+            t = np.where(np.isfinite(t) & ~finished, t, 0.5)
+        last = np.where(np.abs(fa) < np.abs(fb), a, b)
+        root = np.where(finished, root, last)
     return np.where(valid, root, np.nan)

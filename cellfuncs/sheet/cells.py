@@ -190,8 +190,10 @@ def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: s
     ``scale`` converts SI values to the requested unit (a callable); text results pass as they are.
     A 0-d result is returned as a scalar.
     """
-    shape = shape_of(*args, Arg(result.values, None))
-    values = np.broadcast_to(result.values, shape)
+    shape = np.shape(result.values)
+    if any(np.shape(arg.si) != shape for arg in args):
+        shape = shape_of(*args, Arg(result.values, None))
+    values = result.values if np.shape(result.values) == shape else np.broadcast_to(result.values, shape)
     if scale is not None:
         values = scale(values)
     errors = None

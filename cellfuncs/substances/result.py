@@ -80,18 +80,15 @@ class Result:
             return True
         return np.equal(self.problems, None)
 
-    def any_ok(self) -> bool:
-        return self.problems is None or bool(np.any(self.ok))
-
     def flag(self, mask: Any, kind: str, reason: str | Callable[..., str], *data: Any, see: str = "") -> None:
         """Flag the unflagged elements where ``mask`` holds.
 
         ``reason`` is a message or a format string filled, element by element, with
         the matching elements of ``data`` (arrays broadcast to the result's shape).
         """
-        mask = np.broadcast_to(mask, self.values.shape)
-        if not mask.any():
+        if not (mask.any() if type(mask) is np.ndarray else mask):  # the usual case, kept cheap
             return
+        mask = np.broadcast_to(mask, self.values.shape)
         if self.problems is None:
             self.problems = np.full(self.values.shape, None, dtype=object)
         else:
@@ -109,6 +106,9 @@ class Result:
 
     def fill(self, values: Any, where: Any = True) -> None:
         """Store ``values`` into the unflagged elements (and where ``where`` holds)."""
+        if self.problems is None and where is True:
+            self.values[...] = values
+            return
         target = np.broadcast_to(where, self.values.shape) & np.broadcast_to(self.ok, self.values.shape)
         if target.all():
             self.values[...] = values

@@ -102,8 +102,7 @@ class Water(Substance):
     # --- boundaries -------------------------------------------------------------------
     def boil_pressure(self, T: np.ndarray) -> Result:
         r = Result.like(T)
-        r.flag(T < TT, OUT_OF_RANGE, "{} K is below the triple-point temperature of water (273.16 K); "
-               "below it the solid-vapour line applies", T, see="sublime")
+        r.flag(T < TT, OUT_OF_RANGE, "{} K is below the triple-point temperature of water (273.16 K)", T, see="sublime")
         r.flag(T > TC, OUT_OF_RANGE, "{} K is above the critical temperature of water (647.096 K): "
                "there is no liquid-vapour line above it", T)
         r.fill(if97_saturation.saturation_pressure(T))
@@ -111,8 +110,7 @@ class Water(Substance):
 
     def boil_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
-        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa); "
-               "below it the solid-vapour line applies", p, see="sublime")
+        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)", p, see="sublime")
         r.flag(p > PC, OUT_OF_RANGE, "{} Pa is above the critical pressure of water (22.064 MPa): "
                "there is no liquid-vapour line above it", p)
         r.fill(if97_saturation.saturation_temperature(p))
@@ -141,8 +139,7 @@ class Water(Substance):
 
     def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
         r = Result.like(p)
-        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa); "
-               "below it the solid-vapour line applies", p, see="sublime")
+        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)", p, see="sublime")
         r.flag(p > _MELT_P_TOP, OUT_OF_RANGE,
                "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)", p)
         T, index = ice_lines.melting_temperature_any(np.where(np.broadcast_to(r.ok, np.shape(p)), p, np.nan))
@@ -151,8 +148,7 @@ class Water(Substance):
 
     def sublime_pressure(self, T: np.ndarray) -> Result:
         r = Result.like(T)
-        r.flag(T > TT, OUT_OF_RANGE, "{} K is above the triple-point temperature of water (273.16 K); "
-               "above it the liquid-vapour line applies", T, see="boil")
+        r.flag(T > TT, OUT_OF_RANGE, "{} K is above the triple-point temperature of water (273.16 K)", T, see="boil")
         r.flag(T < _SUB_T_MIN, OUT_OF_RANGE, "{} K is below the sublimation line's range (50 K)", T)
         r.fill(ice_lines.sublimation_pressure(T))
         return r
@@ -160,8 +156,7 @@ class Water(Substance):
     def sublime_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
         p_min = float(ice_lines.sublimation_pressure(_SUB_T_MIN))
-        r.flag(p > PT, OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa); "
-               "above it the liquid-vapour line applies", p, see="boil")
+        r.flag(p > PT, OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa)", p, see="boil")
         r.flag(p < p_min, OUT_OF_RANGE, "{} Pa is below the sublimation line's range (" + fmt(p_min) + " Pa at 50 K)", p)
         r.fill(ice_lines.sublimation_temperature(p))
         return r

@@ -1,0 +1,7 @@
+"""python -m cellfuncs"""
+
+import sys
+
+from .cli import main
+
+sys.exit(main())

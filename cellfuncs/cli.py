@@ -1,0 +1,140 @@
+"""The ``cellfuncs`` command: evaluate formulas, list the functions.
+
+Exit status: 0 clean; 1 an error value in a result; 2 a usage problem or a
+formula that does not parse; 3 an internal failure.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from typing import Any, Sequence
+
+CAUTION = (
+    "Results are engineering estimates. Pressure equipment, relief and cryogenic systems are designed\n"
+    "to the local codes and checked by a licensed professional engineer."
+)
+
+
+def _parser() -> argparse.ArgumentParser:
+    from . import __version__
+
+    parser = argparse.ArgumentParser(
+        prog="cellfuncs",
+        description="Phase equilibrium of pure substances as spreadsheet functions.",
+        epilog=CAUTION,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("--version", action="version", version=f"cellfuncs {__version__}")
+    commands = parser.add_subparsers(dest="command", required=True)
+    evaluate = commands.add_parser(
+        "eval",
+        help="evaluate formulas without a workbook",
+        description="Evaluate formulas in Excel's en-US syntax (leading '=' optional): literals, array "
+        "constants such as {300,500,600}, arithmetic, comparison, &, the pack's functions and the "
+        "built-ins (IF, IFERROR, ROUND, ...). One block of output per formula.",
+        epilog=CAUTION,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    evaluate.add_argument("formulas", nargs="+", metavar="FORMULA")
+    evaluate.add_argument("--json", action="store_true", help="print a JSON list of {formula, value, error}")
+    commands.add_parser("functions", help="list the sheet functions with their signatures")
+    return parser
+
+
+def _cell_text(value: Any) -> str:
+    from .errors import CellError
+    from .formula.coerce import format_number
+
+    if isinstance(value, CellError):
+        return str(value)
+    if isinstance(value, bool):
+        return "TRUE" if value else "FALSE"
+    if isinstance(value, float):
+        return repr(value)
+    if value is None:
+        return ""
+    return str(value) if not isinstance(value, (int,)) else format_number(float(value))
+
+
+def _cell_json(value: Any) -> Any:
+    from .errors import CellError
+
+    if isinstance(value, CellError):
+        return {"error": {"code": value.code, "reason": value.reason}}
+    if isinstance(value, float) and value != value:
+        return None
+    return value
+
+
+def _errors(value: Any) -> list:
+    import numpy as np
+
+    from .errors import CellError
+
+    cells = value.flat if isinstance(value, np.ndarray) else (value,)
+    return [c for c in cells if isinstance(c, CellError)]
+
+
+def _evaluate(formulas: Sequence[str], as_json: bool) -> int:
+    import numpy as np
+
+    from .formula import FormulaSyntaxError, compute, parse
+    from .formula.evaluate import SimpleContext
+    from .sheet import FUNCTIONS
+
+    try:
+        for formula in formulas:
+            parse(formula)
+    except FormulaSyntaxError as exc:
+        print(f"cellfuncs eval: {formula!r} does not parse: {exc}", file=sys.stderr)
+        return 2
+    context = SimpleContext({name: entry.call for name, entry in FUNCTIONS.items()})
+    results = [compute(formula, context) for formula in formulas]
+    status = 1 if any(_errors(value) for value in results) else 0
+    if as_json:
+        records = []
+        for formula, value in zip(formulas, results):
+            errors = _errors(value)
+            shown = [[_cell_json(c) for c in row] for row in value.tolist()] if isinstance(value, np.ndarray) else (
+                None if errors and not isinstance(value, np.ndarray) else _cell_json(value))
+            first = {"code": errors[0].code, "reason": errors[0].reason} if errors else None
+            records.append({"formula": formula, "value": shown, "error": first})
+        print(json.dumps(records, indent=2))
+        return status
+    blocks = []
+    for value in results:
+        if isinstance(value, np.ndarray):
+            rows = value.reshape(value.shape[0], -1) if value.ndim == 2 else value.reshape(1, -1)
+            blocks.append("\n".join("\t".join(_cell_text(c) for c in row) for row in rows))
+        else:
+            blocks.append(_cell_text(value))
+    print("\n\n".join(blocks))
+    return status
+
+
+def _functions() -> int:
+    from .sheet import FUNCTIONS
+
+    width = max(len(entry.signature) for entry in FUNCTIONS.values())
+    for entry in FUNCTIONS.values():
+        print(f"{entry.signature:<{width}}  {entry.summary}")
+    print()
+    print(CAUTION)
+    return 0
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    try:
+        if args.command == "eval":
+            return _evaluate(args.formulas, args.json)
+        return _functions()
+    except Exception as exc:  # an internal failure, not a cell error
+        print(f"cellfuncs: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
+        return 3
+
+
+if __name__ == "__main__":
+    sys.exit(main())
