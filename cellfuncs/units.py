@@ -61,10 +61,14 @@ class Conversion(NamedTuple):
     alternate: bool = False
 
     def to_si(self, value):
-        return value * self.scale + self.offset if self.offset else value * self.scale
+        if self.offset:
+            return value * self.scale + self.offset
+        return value * self.scale if self.scale != 1.0 else value
 
     def from_si(self, value):
-        return (value - self.offset) / self.scale if self.offset else value / self.scale
+        if self.offset:
+            return (value - self.offset) / self.scale
+        return value / self.scale if self.scale != 1.0 else value
 
 
 _POWER = re.compile(r"(?<=[A-Za-zµ])([23])(?![\d.])")

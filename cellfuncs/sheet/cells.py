@@ -210,7 +210,7 @@ def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: s
         if shape == ():
             value = values[()]
             return value if isinstance(value, str) else float(value)
-        return np.array(values)
+        return values if values is result.values else np.array(values)
     out = np.array(values, dtype=object)
     mask = ~np.equal(errors, None)
     out[mask] = errors[mask]

@@ -107,7 +107,10 @@ class Result:
     def fill(self, values: Any, where: Any = True) -> None:
         """Store ``values`` into the unflagged elements (and where ``where`` holds)."""
         if self.problems is None and where is True:
-            self.values[...] = values
+            if type(values) is np.ndarray and values.shape == self.values.shape and values.dtype == self.values.dtype:
+                self.values = values  # a fresh array of the model's: adopt it rather than copy
+            else:
+                self.values[...] = values
             return
         target = np.broadcast_to(where, self.values.shape) & np.broadcast_to(self.ok, self.values.shape)
         if target.all():

@@ -62,6 +62,10 @@ _MELT_P_TOP = ice_lines.line_range("VII")[1][1]
 _SUB_T_MIN, _SUB_T_MAX = ice_lines.line_range("sublimation")[0]
 _MELT_T_MIN = ice_lines.line_range("Ih")[0][0]  # 251.165 K
 _MELT_T_MAX = ice_lines.line_range("VII")[0][1]  # 715 K
+_SUB_P_MIN = float(ice_lines.sublimation_pressure(_SUB_T_MIN))
+# below 632.4 MPa (ice V-VI-liquid) no melting line is warmer than 273.31 K
+_MELT_T_NEAR = ice_lines.line_range("V")[0][1]
+_MELT_P_NEAR = ice_lines.line_range("V")[1][1]
 
 # Labels STABLE_PHASE returns, indexed by state code; the code's single phase (STABLE on a line).
 _LABELS = (
@@ -155,7 +159,7 @@ class Water(Substance):
 
     def sublime_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
-        p_min = float(ice_lines.sublimation_pressure(_SUB_T_MIN))
+        p_min = _SUB_P_MIN
         r.flag(p > PT, OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa)", p, see="boil")
         r.flag(p < p_min, OUT_OF_RANGE, "{} Pa is below the sublimation line's range (" + fmt(p_min) + " Pa at 50 K)", p)
         r.fill(ice_lines.sublimation_temperature(p))
@@ -170,44 +174,34 @@ class Water(Substance):
                "{} K is above the highest temperature of the water formulations (2273.15 K)", T)
         r.flag(p > _MELT_P_TOP, OUT_OF_RANGE,
                "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)", p)
-        p_sub_min = float(ice_lines.sublimation_pressure(_SUB_T_MIN))
-        r.flag((p < p_sub_min) & (T < TT), OUT_OF_RANGE,
-               "{} Pa is below the sublimation line's range (" + fmt(p_sub_min) + " Pa at 50 K)", p)
-        state = np.full(T.shape, -1)
-        fluid = np.where(T >= TC, np.where(p >= PC, _S_SUPER, _S_GAS), _S_VAPOR)
-
+        r.flag((p < _SUB_P_MIN) & (T < TT), OUT_OF_RANGE,
+               "{} Pa is below the sublimation line's range (" + fmt(_SUB_P_MIN) + " Pa at 50 K)", p)
         high = p >= PT
-        # solid or fluid: the melting temperature is a single-valued function of p above the triple point
-        t_melt = np.full(T.shape, np.nan)
-        ice = np.full(T.shape, -1)
-        need = high & ((T <= 273.31) | (p > 632.4e6))  # elsewhere no melting line is near
-        if need.any():
-            t_melt[need], ice[need] = ice_lines.melting_temperature_any(p[need])
-        on_melt = need & _near(T, t_melt)
-        state = np.where(need & (T < t_melt) & ~on_melt, _S_SOLID + ice, state)
-        state = np.where(on_melt, _S_MELT + ice, state)
-        state = np.where(on_melt & (p <= PT * (1 + LINE_TOL)), _S_TRIPLE, state)
-
-        # fluid above the triple-point pressure: boiling line below the critical point
-        rest = high & (state < 0)
-        boil = rest & (T < TC) & (p <= PC)
-        t_boil = np.full(T.shape, np.nan)
-        if boil.any():
-            t_boil[boil] = if97_saturation.saturation_temperature(p[boil])
-        state = np.where(boil & _near(T, t_boil), _S_BOIL, state)
-        state = np.where(boil & (state < 0), np.where(T < t_boil, _S_LIQUID, _S_VAPOR), state)
-        state = np.where(rest & (state < 0), np.where(T < TC, _S_LIQUID, fluid), state)
-
-        # below the triple-point pressure: the sublimation line
-        low = ~high & (state < 0)
-        t_sub = np.full(T.shape, np.nan)
-        sub = low & (T <= TT * (1 + LINE_TOL)) & (p >= p_sub_min)
-        if sub.any():
-            t_sub[sub] = ice_lines.sublimation_temperature(p[sub])
-        state = np.where(sub & _near(T, t_sub), _S_SUBLIME, state)
-        state = np.where(sub & (state < 0) & (T < t_sub), _S_SOLID, state)
-        state = np.where(low & (state < 0), fluid, state)
-        r.fill(state)
+        # the solid is stable below one line: melting above the triple-point pressure (a
+        # single-valued T(p) there), sublimation below it
+        t_solid = np.full(T.shape, -np.inf)
+        ice = np.zeros(T.shape, dtype=int)
+        melt = high & ((T <= _MELT_T_NEAR) | (p > _MELT_P_NEAR))  # elsewhere no melting line is near
+        if melt.any():
+            t_solid[melt], ice[melt] = ice_lines.melting_temperature_any(p[melt])
+        sublime = ~high & (T <= TT * (1 + LINE_TOL)) & (p >= _SUB_P_MIN)
+        if sublime.any():
+            t_solid[sublime] = ice_lines.sublimation_temperature(p[sublime])
+        # the liquid is stable below the boiling line; above the critical pressure below Tc
+        t_boil = np.where(high, TC, -np.inf)
+        sat = high & (p <= PC)
+        if sat.any():
+            t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
+        fluid = np.where(T < TC, _S_VAPOR, np.where(p < PC, _S_GAS, _S_SUPER))
+        state = np.where(T < t_boil, _S_LIQUID, fluid)
+        state[sat & (T < TC) & _near(T, t_boil)] = _S_BOIL
+        solid = T < t_solid
+        state[solid] = _S_SOLID + ice[solid]
+        on_solid = _near(T, t_solid)
+        if on_solid.any():
+            state[on_solid] = np.where(high, _S_MELT + ice, _S_SUBLIME)[on_solid]
+            state[on_solid & high & (p <= PT * (1 + LINE_TOL))] = _S_TRIPLE
+        r.fill(state.astype(float))
         return r
 
     def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
@@ -221,35 +215,31 @@ class Water(Substance):
     def props(self, T, p, phase=STABLE) -> tuple[Props, Result]:
         T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
         r = Result(np.full(T.shape, np.nan))
-        phase = phase.copy()
         blank = phase == STABLE
         if blank.any():
-            state = self._classify(T[blank], p[blank])
-            sub = Result(np.full(state.values.shape, np.nan), state.problems)
+            state = self._classify(T, p)
             codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
-            on_line = _STATE_PHASE[codes] == STABLE
-            sub.flag(on_line & np.equal(state.problems, None) if state.problems is not None else on_line,
-                     NOT_AVAILABLE, lambda label: f"the state is on a line ({label}): give a phase",
-                     _LABEL_ARRAY[codes])
-            phase[blank] = _STATE_PHASE[codes]
-            if sub.problems is not None:
-                problems = np.full(T.shape, None, dtype=object)
-                problems[blank] = sub.problems
-                r.adopt(problems)
+            if state.problems is not None:
+                r.adopt(np.where(blank, state.problems, None))
+            r.flag(blank & (_STATE_PHASE[codes] == STABLE), NOT_AVAILABLE,
+                   lambda label: f"the state is on a line ({label}): give a phase", _LABEL_ARRAY[codes])
+            phase = np.where(blank, _STATE_PHASE[codes], phase)
         # any fluid word above the critical temperature means the one fluid
-        fluid_word = (phase == LIQUID) | (phase == VAPOR) | (phase == FLUID)
-        phase[fluid_word & (T >= TC)] = FLUID
+        phase = np.where((phase < SOLID) & (T >= TC), FLUID, phase)
         r.flag((phase == FLUID) & (T < TC), BAD_ARGUMENT,
                "{} K is below the critical temperature of water (647.096 K): ask for liquid or vapor", T)
-        r.flag((phase > SOLID) & ~blank, NOT_AVAILABLE,
-               lambda k: f"no volume formulation for {SOLIDS[k - SOLID]} (only ice Ih has one, IAPWS R10-06)", phase)
-        r.flag((phase > SOLID) & blank, NOT_AVAILABLE,
-               lambda k: f"the stable phase is {SOLIDS[k - SOLID]}, which has no volume formulation "
-               "(only ice Ih has one, IAPWS R10-06)", phase)
+        if (phase > SOLID).any():
+            r.flag((phase > SOLID) & ~blank, NOT_AVAILABLE,
+                   lambda k: f"no volume formulation for {SOLIDS[k - SOLID]} (only ice Ih has one, IAPWS R10-06)",
+                   phase)
+            r.flag((phase > SOLID) & blank, NOT_AVAILABLE,
+                   lambda k: f"the stable phase is {SOLIDS[k - SOLID]}, which has no volume formulation "
+                   "(only ice Ih has one, IAPWS R10-06)", phase)
 
         fields = {name: np.full(T.shape, np.nan) for name in Props._fields}
+        ok = np.broadcast_to(r.ok, T.shape)
         for code, method in ((LIQUID, self._liquid), (VAPOR, self._vapor), (FLUID, self._fluid), (SOLID, self._ice)):
-            sel = (phase == code) & np.broadcast_to(r.ok, T.shape)
+            sel = (phase == code) & ok
             if sel.any():
                 method(T, p, sel, r, fields)
         return Props(**fields), r
@@ -260,12 +250,13 @@ class Water(Substance):
         sub.flag(q > P_MAX_LIQUID, OUT_OF_RANGE, "liquid water at {} Pa is above the formulation's range (210 MPa)", q)
         sub.flag((t > REGION1_T_MAX) & (q > P_MAX_FLUID), OUT_OF_RANGE,
                  "liquid water above 623.15 K is covered to 100 MPa only; got {} Pa", q)
-        cold = t < TT
+        # IF97 region 1 starts at 273.15 K; below it the extension reaches down to the melting line
+        cold = t < if97.T_MIN
         p_sat = if97_saturation.saturation_pressure(np.where(cold, TT, t))
         sub.flag(~cold & (q < p_sat * (1 - LINE_TOL)), OUT_OF_RANGE,
                  lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is below its vapour pressure "
                  f"({fmt(if97_saturation.saturation_pressure(tt))} Pa): superheated liquid is outside IF97", t, q)
-        freeze = cold | (q > 100e6)
+        freeze = cold
         if freeze.any():
             t_melt = np.full(t.shape, -np.inf)
             t_melt[freeze], _ = ice_lines.melting_temperature_any(np.maximum(q[freeze], PT))

@@ -1,0 +1,123 @@
+"""Speed benchmarks, measured side by side in one run; prints medians and ratios.
+
+    python3 benchmarks/run.py            # everything
+    python3 benchmarks/run.py --quick    # fewer repeats
+
+Targets (from the project's issues) are printed beside each figure; they are
+goals for this machine class, not test assertions, because timings on shared
+machines are noisy.
+"""
+
+from __future__ import annotations
+
+import argparse
+import statistics
+import subprocess
+import sys
+import time
+import timeit
+
+import numpy as np
+
+
+def _median_seconds(fn, number: int, repeat: int) -> float:
+    return statistics.median(timeit.repeat(fn, number=number, repeat=repeat)) / number
+
+
+def _plain_saturation_pressure(T: np.ndarray) -> np.ndarray:
+    """IAPWS-IF97 eq. 30 written as one plain numpy expression (the baseline)."""
+    n = (0.11670521452767e4, -0.72421316703206e6, -0.17073846940092e2, 0.12020824702470e5,
+         -0.32325550322333e7, 0.14915108613530e2, -0.48232657361591e4, 0.40511340542057e6,
+         -0.23855557567849, 0.65017534844798e3)
+    v = T + n[8] / (T - n[9])
+    A = v * v + n[0] * v + n[1]
+    B = n[2] * v * v + n[3] * v + n[4]
+    C = n[5] * v * v + n[6] * v + n[7]
+    return (2 * C / (-B + np.sqrt(B * B - 4 * A * C))) ** 4 * 1e6
+
+
+def vectorised(repeat: int) -> None:
+    import cellfuncs
+
+    T = np.linspace(280.0, 640.0, 1_000_000)
+    ours = _median_seconds(lambda: cellfuncs.BOIL_PRESSURE("water", T), 1, repeat)
+    plain = _median_seconds(lambda: _plain_saturation_pressure(T), 1, repeat)
+    same = np.allclose(cellfuncs.BOIL_PRESSURE("water", T), _plain_saturation_pressure(T), rtol=1e-12)
+    print("BOIL_PRESSURE over 1,000,000 temperatures (target: within 2x of plain numpy)")
+    print(f"  cellfuncs   {ours * 1e3:8.1f} ms")
+    print(f"  plain numpy {plain * 1e3:8.1f} ms")
+    print(f"  ratio       {ours / plain:8.2f} x   (same numbers: {same})")
+
+
+SCALAR_CALLS = {
+    # name: (call, target in microseconds)
+    "BOIL_TEMP": ('BOIL_TEMP("water", 10, "barg", "degC")', 20),
+    "BOIL_PRESSURE": ('BOIL_PRESSURE("water", 180, "degC", "bar")', 20),
+    "MELT_TEMP": ('MELT_TEMP("water", 100, "MPa", "degC")', None),
+    "MELT_PRESSURE": ('MELT_PRESSURE("water", -10, "degC", "MPa")', 20),
+    "SUBLIME_TEMP": ('SUBLIME_TEMP("water", 100, "Pa", "degC")', None),
+    "SUBLIME_PRESSURE": ('SUBLIME_PRESSURE("water", -20, "degC", "Pa")', 20),
+    "STABLE_PHASE": ('STABLE_PHASE("water", 25, 1, "degC", "atm")', 100),
+    "MOLAR_VOLUME": ('MOLAR_VOLUME("water", 25, 1, "", "degC", "atm", "L/mol")', 100),
+    "MASS_DENSITY": ('MASS_DENSITY("water", 25, 1, "liquid", "degC", "atm", "kg/m3")', 100),
+    "MASS_DENSITY (near critical)": ('MASS_DENSITY("water", 370, 250, "liquid", "degC", "bar")', None),
+    "THERMAL_EXPANSIVITY": ('THERMAL_EXPANSIVITY("water", 25, 1, "liquid", "degC", "atm", "1/K")', 100),
+    "ISOTHERMAL_COMPRESSIBILITY": ('ISOTHERMAL_COMPRESSIBILITY("water", 25, 1, "liquid", "degC", "atm", "1/MPa")', 100),
+    "CHEM_POTENTIAL": ('CHEM_POTENTIAL("water", 25, 1, "liquid", "degC", "atm", "kJ/mol")', None),
+    "EXPANSION_RATIO": ('EXPANSION_RATIO("water", 20, 1, 90, 1, "liquid", "liquid", "degC", "atm")', None),
+    "PHASE_CHANGE_RATIO": ('PHASE_CHANGE_RATIO("water", "boil", 1, "atm")', None),
+    "LATENT_HEAT": ('LATENT_HEAT("water", "boil", 100, "degC", "kJ/kg")', None),
+    "FLASH_FRACTION": ('FLASH_FRACTION("water", 180, 10, 0, "degC", "barg")', None),
+    "SUBCOOLING": ('SUBCOOLING("water", 90, 1, "degC", "atm")', 20),
+    "SUPERHEAT": ('SUPERHEAT("water", 250, 10, "degC", "barg")', 20),
+    "TRIPLE_POINT": ('TRIPLE_POINT("water", "T", "degC")', None),
+    "CRITICAL_POINT": ('CRITICAL_POINT("water", "P", "MPa")', None),
+    "PHASE_LINE (100 rows)": ('PHASE_LINE("water", "boil", 0.01, 370, 100, "degC", "bar")', None),
+    "SUBSTANCE_INFO": ('SUBSTANCE_INFO("water", "molar_mass")', None),
+}
+
+
+def scalar(repeat: int) -> None:
+    import cellfuncs
+
+    print("One scalar call with unit texts (median)")
+    namespace = {name.split()[0]: getattr(cellfuncs, name.split()[0]) for name in SCALAR_CALLS}
+    for name, (call, target) in SCALAR_CALLS.items():
+        fn = eval(f"lambda: {call}", namespace)  # the benchmark's own fixed texts
+        fn()
+        seconds = _median_seconds(fn, 200, repeat)
+        goal = f"target <= {target} us" if target else ""
+        flag = "" if not target else ("ok" if seconds * 1e6 <= target else "OVER")
+        print(f"  {name:30s} {seconds * 1e6:9.1f} us  {goal:18s} {flag}")
+
+
+def cold_start(repeat: int) -> None:
+    command = [sys.executable, "-m", "cellfuncs", "eval", '=BOIL_TEMP("water", 1, "atm", "degC")']
+    times = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        subprocess.run(command, check=True, capture_output=True)
+        times.append(time.perf_counter() - start)
+    bare = []
+    for _ in range(repeat):
+        start = time.perf_counter()
+        subprocess.run([sys.executable, "-c", "pass"], check=True, capture_output=True)
+        bare.append(time.perf_counter() - start)
+    print("cellfuncs eval, whole process (target <= 0.6 s)")
+    print(f"  median {statistics.median(times):.3f} s over {repeat} runs (bare interpreter {statistics.median(bare):.3f} s)")
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser.add_argument("--quick", action="store_true", help="fewer repeats")
+    args = parser.parse_args()
+    repeat = 3 if args.quick else 7
+    vectorised(repeat)
+    print()
+    scalar(repeat)
+    print()
+    cold_start(repeat)
+
+
+if __name__ == "__main__":
+    main()
