@@ -1,0 +1,25 @@
+"""Formula engine: Excel formulas parsed into immutable trees and evaluated against a context.
+
+The context (see :class:`Context`) resolves cell references, defined names and the
+pack's functions, so the same engine serves ``cellfuncs eval`` (a :class:`SimpleContext`)
+and workbook recalculation. Values are scalars (float, bool, str, CellError, None) or
+2-D numpy object arrays; errors are values, never exceptions.
+
+>>> compute("=IFERROR(1/0, 0) + {1,2}").tolist()
+[[1.0, 2.0]]
+>>> format_number(2.0)
+'2'
+"""
+
+from . import fn_logic, fn_lookup, fn_math, fn_text  # noqa: F401  (register the built-ins)
+from .arrays import Value, as_value
+from .coerce import format_number, to_bool, to_number, to_text
+from .evaluate import BUILTINS, Builtin, Context, SimpleContext, builtin, collect, compute, evaluate
+from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Unary, walk
+from .parser import FormulaSyntaxError, parse
+
+__all__ = [
+    "Array", "Binary", "BUILTINS", "Builtin", "Call", "Context", "FormulaSyntaxError", "Literal",
+    "Missing", "Name", "Node", "Ref", "SimpleContext", "Unary", "Value", "as_value", "builtin",
+    "collect", "compute", "evaluate", "format_number", "parse", "to_bool", "to_number", "to_text", "walk",
+]

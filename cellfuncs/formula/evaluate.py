@@ -1,0 +1,202 @@
+"""Evaluation of a syntax tree against a context that resolves references, names and pack functions.
+
+Built-in functions live in :data:`BUILTINS` (name -> :class:`Builtin`); the context
+supplies everything that depends on a workbook or on the function pack.
+
+>>> compute("=ROUND(SQRT(2)*10, 3)")
+14.142
+>>> print(compute("=A1+1"))
+#REF! A1 is a cell reference, but the formula has no workbook
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any, Callable, Mapping, Protocol
+
+import numpy as np
+
+from ..errors import NAME, REF, VALUE, CellError
+from .arrays import Value, as_value, object_array
+from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary
+from .operators import BINARY, UNARY
+from .parser import parse
+
+
+class Context(Protocol):
+    """What the evaluator asks of its caller.
+
+    ``reference`` and ``name`` return values in the value contract: a scalar (float,
+    bool, str, CellError, None for blank) or a 2-D object array of scalars, which the
+    engine does not modify.
+    """
+
+    def function(self, name: str) -> Callable[..., Any] | None:
+        """The pack function called ``name`` (upper case), or None if there is none."""
+
+    def reference(self, sheet: str | None, ref: str) -> Value:
+        """The value of a cell or range such as ``A1`` or ``$A$1:B3`` (sheet None: the formula's own)."""
+
+    def name(self, text: str) -> Value:
+        """The value of a defined name as written in the formula (``Rate``, ``Sheet1!Rate``)."""
+
+
+class SimpleContext:
+    """A context for formulas without a workbook: pack functions and named values only.
+
+    Names are matched case-insensitively; every cell reference gives #REF!.
+
+    >>> ctx = SimpleContext({"twice": lambda x: 2 * x}, {"rate": 0.5})
+    >>> compute("=TWICE(Rate)", ctx)
+    1.0
+    """
+
+    def __init__(self, functions: Mapping[str, Callable[..., Any]] | None = None, names: Mapping[str, Value] | None = None):
+        self.functions = {k.upper(): f for k, f in (functions or {}).items()}
+        self.names = {k.upper(): v for k, v in (names or {}).items()}
+
+    def function(self, name: str) -> Callable[..., Any] | None:
+        return self.functions.get(name)
+
+    def reference(self, sheet: str | None, ref: str) -> Value:
+        where = f"{sheet}!{ref}" if sheet else ref
+        kind = "cell" if ":" not in ref else "range"
+        return CellError(REF, f"{where} is a {kind} reference, but the formula has no workbook")
+
+    def name(self, text: str) -> Value:
+        value = self.names.get(text.upper(), _UNSET)
+        return CellError(NAME, f"unknown name {text}") if value is _UNSET else value
+
+
+_UNSET = object()
+
+
+@dataclass(frozen=True, slots=True)
+class Builtin:
+    """A built-in function: ``fn`` takes evaluated values (None for a missing argument),
+    or, when ``lazy``, the context followed by the unevaluated argument nodes."""
+
+    fn: Callable[..., Value]
+    min_args: int
+    max_args: int | None  # None: any number
+    lazy: bool = False
+
+
+BUILTINS: dict[str, Builtin] = {}
+
+
+def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = False) -> Callable:
+    """Register the decorated function as built-in ``name`` (``max_args`` defaults to ``min_args``).
+
+    >>> @builtin("HALF", 1)
+    ... def _half(x):
+    ...     return x / 2
+    >>> compute("=HALF(3)")
+    1.5
+    >>> del BUILTINS["HALF"]
+    """
+
+    def register(fn: Callable[..., Value]) -> Callable[..., Value]:
+        BUILTINS[name] = Builtin(fn, min_args, min_args if max_args == -1 else max_args, lazy)
+        return fn
+
+    return register
+
+
+def _arity_error(name: str, spec: Builtin, count: int) -> CellError:
+    lo, hi = spec.min_args, spec.max_args
+    if hi is None:
+        wanted = f"at least {lo}"
+    elif lo == hi:
+        wanted = str(lo)
+    else:
+        wanted = f"{lo} to {hi}"
+    plural = "" if wanted in ("1", "at least 1") else "s"
+    return CellError(VALUE, f"{name} takes {wanted} argument{plural}, got {count}")
+
+
+def _call(node: Call, context: Context) -> Value:
+    spec = BUILTINS.get(node.name)
+    if spec is None:
+        fn = context.function(node.name)
+        if fn is None:
+            return CellError(NAME, f"unknown function {node.name}")
+        args = [evaluate(a, context) for a in node.args]
+        try:
+            result = fn(*args)
+        except Exception as exc:  # a cell shows the failure instead of stopping the recalculation
+            return CellError(VALUE, f"{node.name}: {exc}")
+        return as_value(result)
+    count = len(node.args)
+    if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
+        return _arity_error(node.name, spec, count)
+    if spec.lazy:
+        return spec.fn(context, *node.args)
+    return spec.fn(*[evaluate(a, context) for a in node.args])
+
+
+_EVALUATORS: dict[type, Callable[[Any, Context], Value]] = {
+    Literal: lambda n, c: n.value,
+    # both sides even after an error on the left: an array on the right still shapes the result
+    Binary: lambda n, c: BINARY[n.op](evaluate(n.left, c), evaluate(n.right, c)),
+    Call: _call,
+    Ref: lambda n, c: c.reference(n.sheet, n.ref),
+    Unary: lambda n, c: UNARY[n.op](evaluate(n.operand, c)),
+    Name: lambda n, c: c.name(n.text),
+    Array: lambda n, c: object_array(n.rows),
+    Missing: lambda n, c: None,
+}
+
+
+def evaluate(node: Node, context: Context) -> Value:
+    """The value of a parsed formula: a scalar or a 2-D object array; errors are values.
+
+    >>> evaluate(parse("={1,2}*10"), SimpleContext()).tolist()
+    [[10.0, 20.0]]
+    """
+    return _EVALUATORS[type(node)](node, context)
+
+
+def compute(formula: str, context: Context | None = None) -> Value:
+    """Parse (cached) and evaluate ``formula``; without a context, a :class:`SimpleContext`.
+
+    >>> compute('="x"&1/4'), compute("=-2^2")
+    ('x0.25', 4.0)
+    """
+    return evaluate(parse(formula), SimpleContext() if context is None else context)
+
+
+def collect(
+    context: Context,
+    nodes: tuple[Node, ...],
+    direct: Callable[[Scalar], Any],
+    in_range: Callable[[Scalar], Any],
+) -> list | CellError:
+    """Argument values of an aggregate (SUM, AND, ...) as Excel gathers them.
+
+    An argument typed as a value goes through ``direct`` (a conversion that may return a
+    CellError); the elements of a reference, name or array go through ``in_range``, which
+    returns None to skip an element. The first error, in argument order, is returned.
+
+    >>> from cellfuncs.formula.coerce import to_number
+    >>> ctx = SimpleContext(names={"r": object_array([[1.0, "x", True]])})
+    >>> keep = lambda x: x if type(x) is float else None
+    >>> collect(ctx, (parse("=r"), parse('="2"')), to_number, keep)
+    [1.0, 2.0]
+    """
+    out = []
+    for node in nodes:
+        v = evaluate(node, context)
+        if type(v) is np.ndarray or type(node) is Ref or type(node) is Name:
+            for x in v.flat if type(v) is np.ndarray else (v,):
+                if type(x) is CellError:
+                    return x
+                y = in_range(x)
+                if y is not None:
+                    out.append(y)
+        else:
+            y = direct(v)
+            if type(y) is CellError:
+                return y
+            out.append(y)
+    return out

@@ -1,0 +1,285 @@
+"""Formula text (Excel en-US syntax) to a syntax tree.
+
+openpyxl's tokenizer splits the text; an operator-precedence parser builds the tree with
+Excel's precedence, lowest first: comparisons, ``&``, ``+ -``, ``* /``, ``^``, prefix
+``+ -``, postfix ``%``. Prefix minus binds tighter than ``^``, so ``=-2^2`` is 4, and
+all binary operators group left to right (``=2^3^2`` is 64).
+
+>>> parse("=1+2*3")
+Binary(op='+', left=Literal(value=1.0), right=Binary(op='*', left=Literal(value=2.0), right=Literal(value=3.0)))
+>>> parse("_xlfn.CONCAT('My sheet'!A1:B2)")
+Call(name='CONCAT', args=(Ref(sheet='My sheet', ref='A1:B2'),), prefix='_xlfn.')
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from functools import lru_cache
+from typing import NamedTuple
+
+from ..errors import parse_error_text
+from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary, children
+
+_INFIX = {"=": 1, "<>": 1, "<": 1, ">": 1, "<=": 1, ">=": 1, "&": 2, "+": 3, "-": 3, "*": 4, "/": 4, "^": 5}
+_PREFIX_POWER = 6  # above ^: Excel negates before raising to a power
+_PREFIXES = ("_XLFN.", "_XLWS.")
+# Deeper trees would exhaust Python's recursion while evaluating; Excel itself allows
+# 64 nested function levels.
+MAX_DEPTH = 200
+
+_FUNCTION_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_.]*\Z")
+_NAME = re.compile(r"[^\W\d][\w.?\\]*\Z")
+_SHEET = re.compile(r"(?:'((?:[^']|'')+)'|([^'!]+))!(.+)\Z")
+_CELL = r"\$?([A-Za-z]{1,3})\$?([0-9]{1,7})"
+_COLUMN = r"\$?([A-Za-z]{1,3})"
+_ROW = r"\$?([0-9]{1,7})"
+_AREA = re.compile(rf"{_CELL}(?::{_CELL})?\Z|{_COLUMN}:{_COLUMN}\Z|{_ROW}:{_ROW}\Z")
+_MAX_COLUMN, _MAX_ROW = 16384, 1048576
+
+
+class FormulaSyntaxError(ValueError):
+    """Formula text that cannot be parsed; the message says why in plain words."""
+
+
+class _Tok(NamedTuple):
+    value: str
+    type: str
+    subtype: str
+    spaced: bool  # whitespace came just before
+
+
+def _column_number(letters: str) -> int:
+    n = 0
+    for ch in letters.upper():
+        n = 26 * n + ord(ch) - 64
+    return n
+
+
+def _valid_area(m: re.Match) -> bool:
+    columns = [g for g in (m.group(1), m.group(3), m.group(5), m.group(6)) if g]
+    rows = [g for g in (m.group(2), m.group(4), m.group(7), m.group(8)) if g]
+    return all(_column_number(c) <= _MAX_COLUMN for c in columns) and all(1 <= int(r) <= _MAX_ROW for r in rows)
+
+
+def _operand(text: str) -> Node:
+    """A RANGE token of the tokenizer: a reference, a defined name, or TRUE/FALSE in lower case."""
+    if text.startswith("@"):
+        raise FormulaSyntaxError("the implicit intersection operator @ is not supported")
+    if text.startswith("["):
+        raise FormulaSyntaxError(f"{text}: references to other workbooks are not supported")
+    sheet, local = None, text
+    m = _SHEET.match(text)
+    if m:
+        sheet = m.group(1).replace("''", "'") if m.group(1) is not None else m.group(2)
+        local = m.group(3)
+        if ":" in sheet:
+            raise FormulaSyntaxError(f"{text}: references spanning several sheets are not supported")
+    elif text.upper() in ("TRUE", "FALSE"):
+        return Literal(text.upper() == "TRUE")
+    area = _AREA.match(local)
+    if area and _valid_area(area):
+        return Ref(sheet, local.upper())
+    if _NAME.match(local):
+        return Name(text)
+    raise FormulaSyntaxError(f"{text!r} is neither a cell reference nor a name")
+
+
+def _literal(tok: _Tok) -> Scalar:
+    """The constant an OPERAND token stands for (RANGE tokens excepted)."""
+    if tok.subtype == "NUMBER":
+        x = float(tok.value)
+        if not math.isfinite(x):
+            raise FormulaSyntaxError(f"the number {tok.value} is too large")
+        return x
+    if tok.subtype == "TEXT":
+        return tok.value[1:-1].replace('""', '"')
+    if tok.subtype == "LOGICAL":
+        return tok.value.upper() == "TRUE"
+    error = parse_error_text(tok.value)
+    if error is None:
+        raise FormulaSyntaxError(f"{tok.value} is not an error value")
+    return error
+
+
+class _Parser:
+    def __init__(self, tokens: list[_Tok]):
+        self.tokens = tokens
+        self.pos = 0
+
+    def peek(self) -> _Tok | None:
+        return self.tokens[self.pos] if self.pos < len(self.tokens) else None
+
+    def next(self) -> _Tok:
+        tok = self.peek()
+        if tok is None:
+            raise FormulaSyntaxError("the formula ends too early")
+        self.pos += 1
+        return tok
+
+    def unexpected(self, tok: _Tok) -> FormulaSyntaxError:
+        if tok.type == "OPERAND" or tok.subtype == "OPEN":  # a value follows a value
+            if tok.spaced and tok.subtype == "RANGE":
+                return FormulaSyntaxError("the intersection operator (a space between references) is not supported")
+            return FormulaSyntaxError(f"an operator is missing before {tok.value!r}")
+        if tok.value == ",":
+            return FormulaSyntaxError("the union operator ',' is not supported")
+        return FormulaSyntaxError(f"unexpected {tok.value!r}")
+
+    def expect(self, type_: str, subtype: str, what: str) -> None:
+        tok = self.peek()
+        if tok is None:
+            raise FormulaSyntaxError(f"{what} is missing")
+        if tok.type != type_ or tok.subtype != subtype:
+            raise self.unexpected(tok)
+        self.pos += 1
+
+    def expression(self, min_power: int = 0) -> Node:
+        left = self.prefix()
+        while (tok := self.peek()) is not None:
+            if tok.type == "OPERATOR-POSTFIX":
+                self.pos += 1
+                left = Unary("%", left)
+            elif tok.type == "OPERATOR-INFIX" and tok.value in _INFIX:
+                power = _INFIX[tok.value]
+                if power < min_power:
+                    break
+                self.pos += 1
+                left = Binary(tok.value, left, self.expression(power + 1))
+            elif tok.type == "OPERATOR-INFIX":
+                raise self.unexpected(tok)
+            else:
+                break
+        return left
+
+    def prefix(self) -> Node:
+        tok = self.next()
+        if tok.type == "OPERATOR-PREFIX":
+            return Unary(tok.value, self.expression(_PREFIX_POWER))
+        if tok.type == "OPERAND":
+            return _operand(tok.value) if tok.subtype == "RANGE" else Literal(_literal(tok))
+        if tok.type == "FUNC" and tok.subtype == "OPEN":
+            return self.call(tok.value[:-1])
+        if tok.type == "PAREN" and tok.subtype == "OPEN":
+            inner = self.expression()
+            self.expect("PAREN", "CLOSE", "a closing parenthesis")
+            return inner
+        if tok.type == "ARRAY" and tok.subtype == "OPEN":
+            return self.array()
+        raise self.unexpected(tok)
+
+    def call(self, written: str) -> Call:
+        name, prefix = written.upper(), ""
+        while name.startswith(_PREFIXES):
+            prefix += name[:6].lower()
+            name = name[6:]
+        if not _FUNCTION_NAME.match(name):
+            raise FormulaSyntaxError(f"{written!r} is not a function name")
+        args: list[Node] = []
+        tok = self.peek()
+        if tok is not None and tok.type == "FUNC" and tok.subtype == "CLOSE":
+            self.pos += 1
+            return Call(name, (), prefix)
+        while True:
+            tok = self.peek()
+            if tok is not None and (tok.type, tok.subtype) in (("SEP", "ARG"), ("FUNC", "CLOSE")):
+                args.append(Missing())
+            else:
+                args.append(self.expression())
+            tok = self.peek()
+            if tok is None:
+                raise FormulaSyntaxError(f"the closing parenthesis of {name} is missing")
+            self.pos += 1
+            if tok.type == "FUNC" and tok.subtype == "CLOSE":
+                return Call(name, tuple(args), prefix)
+            if (tok.type, tok.subtype) != ("SEP", "ARG"):
+                raise self.unexpected(tok)
+
+    def array(self) -> Array:
+        rows: list[list[Scalar]] = [[]]
+        while True:
+            rows[-1].append(self.array_element())
+            tok = self.next()
+            if tok.type == "ARRAY" and tok.subtype == "CLOSE":
+                break
+            if tok.type != "SEP":
+                raise self.unexpected(tok)
+            if tok.subtype == "ROW":
+                rows.append([])
+        if len({len(r) for r in rows}) > 1:
+            raise FormulaSyntaxError("the rows of an array constant must have the same length")
+        return Array(tuple(tuple(r) for r in rows))
+
+    def array_element(self) -> Scalar:
+        tok = self.next()
+        sign = None
+        if tok.type == "OPERATOR-PREFIX":
+            sign, tok = tok.value, self.next()
+        if tok.type != "OPERAND":
+            raise FormulaSyntaxError("an array constant holds only numbers, text, TRUE/FALSE and error values")
+        value = _operand(tok.value) if tok.subtype == "RANGE" else Literal(_literal(tok))
+        if not isinstance(value, Literal) or (sign and type(value.value) is not float):
+            raise FormulaSyntaxError("an array constant holds only numbers, text, TRUE/FALSE and error values")
+        return -value.value if sign == "-" else value.value
+
+
+def _tokens(formula: str) -> list[_Tok]:
+    from openpyxl.formula.tokenizer import Tokenizer  # lazy: openpyxl takes ~0.1 s to import
+
+    try:
+        items = Tokenizer(formula).items
+    except IndexError:  # the tokenizer's bracket stack ran empty
+        raise FormulaSyntaxError("a closing bracket has no opening one") from None
+    except Exception as exc:
+        raise FormulaSyntaxError(f"the formula cannot be split into tokens: {exc}") from None
+    out, spaced = [], False
+    for t in items:
+        if t.type == "WHITE-SPACE":
+            spaced = True
+            continue
+        out.append(_Tok(t.value, t.type, t.subtype, spaced))
+        spaced = False
+    return out
+
+
+def _depth(node: Node) -> int:
+    stack, deepest = [(node, 1)], 0
+    while stack:
+        n, d = stack.pop()
+        deepest = max(deepest, d)
+        stack += [(c, d + 1) for c in children(n)]
+    return deepest
+
+
+@lru_cache(maxsize=4096)
+def parse(formula: str) -> Node:
+    """The syntax tree of ``formula`` (leading ``=`` optional); results are cached.
+
+    Raises :class:`FormulaSyntaxError` for text that is not a formula.
+
+    >>> parse("=-2^2")
+    Binary(op='^', left=Unary(op='-', operand=Literal(value=2.0)), right=Literal(value=2.0))
+    >>> parse('={1,-2;"a",TRUE}')
+    Array(rows=((1.0, -2.0), ('a', True)))
+    >>> parse("=IF(A1,,$B$2)").args[1]
+    Missing()
+    >>> parse("=1+")
+    Traceback (most recent call last):
+    ...
+    cellfuncs.formula.parser.FormulaSyntaxError: the formula ends too early
+    """
+    text = formula.strip()
+    tokens = _tokens(text if text.startswith("=") else "=" + text)
+    if not tokens:
+        raise FormulaSyntaxError("the formula is empty")
+    parser = _Parser(tokens)
+    try:
+        tree = parser.expression()
+    except RecursionError:
+        raise FormulaSyntaxError(f"the formula nests more than {MAX_DEPTH} levels deep") from None
+    tok = parser.peek()
+    if tok is not None:
+        raise parser.unexpected(tok)
+    if _depth(tree) > MAX_DEPTH:
+        raise FormulaSyntaxError(f"the formula nests more than {MAX_DEPTH} levels deep")
+    return tree
