@@ -131,3 +131,18 @@ def conversion(text: str | None, kind: Kind) -> Conversion:
     if kind in _OFFSET_KINDS:  # scales with a shifted zero: Celsius, Fahrenheit, gauge pressures
         offset = float(registry.Quantity(0.0, units).to_base_units().magnitude)
     return Conversion(float(scale), offset, alternate)
+
+
+@lru_cache(maxsize=256)
+def conversion_to(text: str | None, si: str) -> Conversion:
+    """The conversion of unit ``text`` to the coherent SI unit ``si`` (for data fields such as "J/(mol*K)").
+
+    >>> conversion_to("kJ/(kg*K)", "J/(kg*K)").scale
+    1000.0
+    """
+    known = {TEMPERATURE.si: TEMPERATURE, PRESSURE.si: PRESSURE}
+    if si in known:
+        return conversion(text, known[si])
+    registry = _registry()
+    dims = _dimension_text(registry, registry.parse_units(si)) if si else "1"
+    return conversion(text, Kind(si or "dimensionless", si, dims))

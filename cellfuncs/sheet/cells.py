@@ -53,9 +53,14 @@ def model_call(fn, *args):
         raise CallError(_CODES[exc.problem.kind], exc.problem.reason) from None
 
 
+def _named(error: CellError, name: str) -> CellError:
+    """An error value that came in as an argument: its code kept, its reason naming the argument."""
+    return CellError(error.code, f"{name}: {error.reason or error.code}")
+
+
 def substance(value: Any) -> Substance:
     if isinstance(value, CellError):
-        raise CallError(value.code, value.reason)
+        raise CallError(*_named(value, "substance"))
     if isinstance(value, np.ndarray):
         if value.size != 1:
             raise CallError(VALUE, "substance must be a single name, not a range")
@@ -72,7 +77,7 @@ def text(value: Any, name: str, default: str | None = None) -> str | None:
             raise CallError(VALUE, f"{name} must be a single text, not a range")
         value = value.flat[0]
     if isinstance(value, CellError):
-        raise CallError(value.code, value.reason)
+        raise CallError(*_named(value, name))
     if value is None or (isinstance(value, str) and not value.strip()):
         return default
     if not isinstance(value, str):
@@ -81,18 +86,45 @@ def text(value: Any, name: str, default: str | None = None) -> str | None:
 
 
 def unit(value: Any, name: str, kind: units.Kind) -> units.Conversion:
+    word = text(value, name)
     try:
-        return units.conversion(text(value, name), kind)
+        return units.conversion(word, kind)
     except units.UnitError as exc:
         raise CallError(VALUE, f"{name}: {exc}") from None
+    except Exception:  # the unit parser fails on some garbage (e.g. "1/0", "**") with its own exceptions
+        raise CallError(VALUE, f"{name}: unknown unit '{word}' for {kind.name}") from None
+
+
+def _float(value: Any) -> float:
+    """``float(value)``; an int too large for a float becomes an infinity (then reported as not finite)."""
+    try:
+        return float(value)
+    except OverflowError:
+        return math.inf if value > 0 else -math.inf
+
+
+def _element(value: Any) -> np.ndarray:
+    """A 0-d object array holding ``value`` as it is (numpy would unpack a CellError, a NamedTuple)."""
+    array = np.empty((), dtype=object)
+    array[()] = value
+    return array
 
 
 def _as_array(value: Any) -> np.ndarray:
     if isinstance(value, np.ndarray):
         return value
-    if isinstance(value, (list, tuple)):
-        return np.array(value, dtype=object)
-    return np.array(value, dtype=object) if not isinstance(value, (float, int)) else np.array(float(value))
+    if isinstance(value, (list, tuple)) and not isinstance(value, CellError):
+        parts = [_as_array(item) for item in value]
+        shapes = {part.shape for part in parts}
+        if len(shapes) > 1:  # ragged nesting: each item is one (bad) element
+            parts, shapes = [_element(item) for item in value], {()}
+        array = np.empty((len(parts), *(shapes.pop() if shapes else ())), dtype=object)
+        for index, part in enumerate(parts):
+            array[index, ...] = part
+        return array
+    if isinstance(value, (float, int)) and not isinstance(value, bool):
+        return np.array(_float(value))
+    return _element(value)
 
 
 def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -> Arg:
@@ -102,8 +134,9 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
     positive in SI (absolute temperature and pressure).
     """
     if type(value) is float or type(value) is int:  # the common scalar case, kept quick
+        value = _float(value)
         if math.isfinite(value) and (not absolute or unit_.to_si(value) > 0):
-            return Arg(np.array(unit_.to_si(float(value))), None)
+            return Arg(np.array(unit_.to_si(value)), None)
     array = _as_array(value)
     if array.dtype.kind in "fiu":
         numbers = array.astype(float)
@@ -115,9 +148,9 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
             if isinstance(item, bool) or isinstance(item, np.bool_):
                 bad[index] = CellError(VALUE, f"{name} must be a number; got {str(item).upper()}")
             elif isinstance(item, (int, float, np.integer, np.floating)):
-                numbers[index] = item
+                numbers[index] = _float(item)
             elif isinstance(item, CellError):
-                bad[index] = item
+                bad[index] = _named(item, name)
             elif item is None or (isinstance(item, str) and not item.strip()):
                 bad[index] = CellError(VALUE, f"{name} is blank")
             else:
@@ -134,7 +167,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
         for index in indices(negative):
             floor = "absolute zero (0 K)" if absolute == "temperature" else "zero absolute pressure"
             bad[index] = CellError(NUM, f"{name} {fmt(numbers[index])} is at or below {floor}")
-    if bad is not None and not np.equal(bad, None).any():
+    if bad is not None and np.equal(bad, None).all():
         bad = None
     if bad is not None:
         si = np.where(np.equal(bad, None), si, np.nan)
@@ -145,11 +178,12 @@ def integer_count(value: Any, name: str, low: int, high: int) -> int:
     if isinstance(value, np.ndarray) and value.size == 1:
         value = value.flat[0]
     if isinstance(value, CellError):
-        raise CallError(value.code, value.reason)
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+        raise CallError(*_named(value, name))
+    numeric = isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, bool)
+    if not numeric or not math.isfinite(_float(value)):
         raise CallError(VALUE, f"{name} must be a whole number from {low} to {high}")
     if value != int(value) or not low <= value <= high:
-        raise CallError(NUM, f"{name} must be a whole number from {low} to {high}; got {fmt(value)}")
+        raise CallError(NUM, f"{name} must be a whole number from {low} to {high}; got {fmt(_float(value))}")
     return int(value)
 
 
@@ -163,7 +197,7 @@ def phases(value: Any, name: str, sub: Substance) -> Arg:
     for index, item in np.ndenumerate(array):
         try:
             if isinstance(item, CellError):
-                raise CallError(item.code, item.reason)
+                raise CallError(*_named(item, name))
             if item is not None and not isinstance(item, str):
                 raise CallError(VALUE, f"{name} must be a phase word; got {item!r}")
             codes[index] = model_call(sub.phase_code, item)

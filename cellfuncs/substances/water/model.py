@@ -45,6 +45,9 @@ TT = constant(_DATA, "triple_point_temperature").value
 PT = constant(_DATA, "triple_point_pressure").value
 
 LINE_TOL = 1e-9  # a state is on a line when |T - T_line(p)| <= LINE_TOL * T_line(p)
+# The lines' ends take the same slack: 0.01 degC converts to 273.15999999999997 K, and
+# BOIL_PRESSURE at 647.096 K gives a hair above 22.064 MPa.
+MELT_JOIN_TOL = 1e-6  # the R14-08 ice Ih and III lines meet at 251.165 K only to 1.5e-7 in T
 
 REGION1_T_MAX = 623.15  # K, IF97 regions 1/3 and 2/3 split below the B23 line's start
 REGION2_T_MIN = 200.0  # K, lowest temperature of the region 2 extension along the sublimation line
@@ -62,7 +65,8 @@ _MELT_P_TOP = ice_lines.line_range("VII")[1][1]
 _SUB_T_MIN, _SUB_T_MAX = ice_lines.line_range("sublimation")[0]
 _MELT_T_MIN = ice_lines.line_range("Ih")[0][0]  # 251.165 K
 _MELT_T_MAX = ice_lines.line_range("VII")[0][1]  # 715 K
-_SUB_P_MIN = float(ice_lines.sublimation_pressure(_SUB_T_MIN))
+# the published end, below which the inverse gives NaN (the equation gives 2.6e-7 less at 50 K)
+_SUB_P_MIN = ice_lines.line_range("sublimation")[1][0]
 # below 632.4 MPa (ice V-VI-liquid) no melting line is warmer than 273.31 K
 _MELT_T_NEAR = ice_lines.line_range("V")[0][1]
 _MELT_P_NEAR = ice_lines.line_range("V")[1][1]
@@ -106,16 +110,18 @@ class Water(Substance):
     # --- boundaries -------------------------------------------------------------------
     def boil_pressure(self, T: np.ndarray) -> Result:
         r = Result.like(T)
-        r.flag(T < TT, OUT_OF_RANGE, "{} K is below the triple-point temperature of water (273.16 K)", T, see="sublime")
-        r.flag(T > TC, OUT_OF_RANGE, "{} K is above the critical temperature of water (647.096 K): "
+        r.flag(T < TT * (1 - LINE_TOL), OUT_OF_RANGE, "{} K is below the triple-point temperature of water (273.16 K)",
+               T, see="sublime")
+        r.flag(T > TC * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the critical temperature of water (647.096 K): "
                "there is no liquid-vapour line above it", T)
         r.fill(if97_saturation.saturation_pressure(T))
         return r
 
     def boil_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
-        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)", p, see="sublime")
-        r.flag(p > PC, OUT_OF_RANGE, "{} Pa is above the critical pressure of water (22.064 MPa): "
+        r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)",
+               p, see="sublime")
+        r.flag(p > PC * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the critical pressure of water (22.064 MPa): "
                "there is no liquid-vapour line above it", p)
         r.fill(if97_saturation.saturation_temperature(p))
         return r
@@ -127,13 +133,13 @@ class Water(Substance):
             codes = np.full(np.shape(T), -1)
             for k in reversed(range(len(ice_lines.ICES))):
                 (t_lo, t_hi), _ = ice_lines.line_range(ice_lines.ICES[k])
-                codes = np.where((T >= t_lo) & (T <= t_hi), SOLID + k, codes)
+                codes = np.where((T >= t_lo * (1 - LINE_TOL)) & (T <= t_hi * (1 + LINE_TOL)), SOLID + k, codes)
             r.flag(codes < 0, OUT_OF_RANGE, "{} K is outside the melting lines of water (251.165 K to 715 K)", T)
         else:
             ice = ice_lines.ICES[solid - SOLID]
             (t_lo, t_hi), _ = ice_lines.line_range(ice)
             codes = np.full(np.shape(T), solid)
-            r.flag((T < t_lo) | (T > t_hi), OUT_OF_RANGE,
+            r.flag((T < t_lo * (1 - LINE_TOL)) | (T > t_hi * (1 + LINE_TOL)), OUT_OF_RANGE,
                    "{} K is outside the ice " + ice + f" melting line ({fmt(t_lo)} K to {fmt(t_hi)} K)", T)
         for k, ice in enumerate(ice_lines.ICES):
             here = codes == SOLID + k
@@ -143,26 +149,30 @@ class Water(Substance):
 
     def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
         r = Result.like(p)
-        r.flag(p < PT, OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)", p, see="sublime")
-        r.flag(p > _MELT_P_TOP, OUT_OF_RANGE,
+        r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)",
+               p, see="sublime")
+        r.flag(p > _MELT_P_TOP * (1 + LINE_TOL), OUT_OF_RANGE,
                "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)", p)
-        T, index = ice_lines.melting_temperature_any(np.where(np.broadcast_to(r.ok, np.shape(p)), p, np.nan))
+        inside = np.clip(p, PT, _MELT_P_TOP)  # the inverse gives NaN past the ends
+        T, index = ice_lines.melting_temperature_any(np.where(np.broadcast_to(r.ok, np.shape(p)), inside, np.nan))
         r.fill(T)
         return r, SOLID + np.maximum(index, 0)
 
     def sublime_pressure(self, T: np.ndarray) -> Result:
         r = Result.like(T)
-        r.flag(T > TT, OUT_OF_RANGE, "{} K is above the triple-point temperature of water (273.16 K)", T, see="boil")
-        r.flag(T < _SUB_T_MIN, OUT_OF_RANGE, "{} K is below the sublimation line's range (50 K)", T)
+        r.flag(T > TT * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the triple-point temperature of water (273.16 K)",
+               T, see="boil")
+        r.flag(T < _SUB_T_MIN * (1 - LINE_TOL), OUT_OF_RANGE, "{} K is below the sublimation line's range (50 K)", T)
         r.fill(ice_lines.sublimation_pressure(T))
         return r
 
     def sublime_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
         p_min = _SUB_P_MIN
-        r.flag(p > PT, OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa)", p, see="boil")
+        r.flag(p > PT * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa)",
+               p, see="boil")
         r.flag(p < p_min, OUT_OF_RANGE, "{} Pa is below the sublimation line's range (" + fmt(p_min) + " Pa at 50 K)", p)
-        r.fill(ice_lines.sublimation_temperature(p))
+        r.fill(ice_lines.sublimation_temperature(np.minimum(p, PT)))  # the inverse gives NaN past the end
         return r
 
     # --- stable phase -----------------------------------------------------------------
@@ -260,7 +270,7 @@ class Water(Substance):
         if freeze.any():
             t_melt = np.full(t.shape, -np.inf)
             t_melt[freeze], _ = ice_lines.melting_temperature_any(np.maximum(q[freeze], PT))
-            sub.flag(t < t_melt * (1 - LINE_TOL), OUT_OF_RANGE,
+            sub.flag(t < t_melt * (1 - MELT_JOIN_TOL), OUT_OF_RANGE,
                      lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is below its melting temperature "
                      "(supercooled liquid is outside the formulation)", t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
@@ -315,7 +325,7 @@ class Water(Substance):
     def _ice(self, T, p, sel, r: Result, fields) -> None:
         t, q = T[sel], p[sel]
         sub = Result(np.full(t.shape, np.nan))
-        sub.flag(t > TT, OUT_OF_RANGE, "ice Ih above 273.16 K is outside IAPWS R10-06; got {} K", t)
+        sub.flag(t > TT * (1 + LINE_TOL), OUT_OF_RANGE, "ice Ih above 273.16 K is outside IAPWS R10-06; got {} K", t)
         sub.flag(q > ICE_IH_P_MAX, OUT_OF_RANGE, "ice Ih above 210 MPa is outside IAPWS R10-06; got {} Pa", q)
         melt = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         melt &= q > PT
