@@ -1,0 +1,199 @@
+"""A substance definition: flat fields in SI, each with its source.
+
+Built-in substances come from data files (cellfuncs/data/substances/*.toml); a
+user-defined substance comes from a mapping of field names to values (a sheet
+range of field, value and optional unit). Both end up as the same flat fields,
+so SUBSTANCE_INFO of a built-in substance can be pasted back as a definition.
+
+>>> d = Definition.from_fields({"name": "demo oil X", "molar_mass": (0.1, "kg/mol"),
+...                             "critical_temperature": (600, "K"), "critical_pressure": (3, "MPa"),
+...                             "acentric_factor": 0.3})
+>>> d.values["critical_pressure"]
+3000000.0
+"""
+
+from __future__ import annotations
+
+import ast
+import tomllib
+from dataclasses import dataclass, field
+from functools import lru_cache
+from importlib import resources
+from typing import Any, Mapping
+
+from ... import units
+from ..result import BAD_ARGUMENT, ModelError
+
+# field -> SI unit; ".temperature" fields give the state of the value before them
+NUMBERS: dict[str, str] = {
+    "molar_mass": "kg/mol",
+    "critical_temperature": "K",
+    "critical_pressure": "Pa",
+    "critical_density": "kg/m3",
+    "acentric_factor": "",
+    "triple_point_temperature": "K",
+    "triple_point_pressure": "Pa",
+    "normal_boiling_point": "K",
+    "normal_sublimation_point": "K",
+    "enthalpy_of_fusion": "J/mol",
+    "liquid_density": "kg/m3",
+    "liquid_density.temperature": "K",
+    "solid_density": "kg/m3",
+    "solid_density.temperature": "K",
+    "liquid_heat_capacity": "J/(mol*K)",
+    "liquid_heat_capacity.temperature": "K",
+}
+TEXTS = ("name", "formula", "designation", "aliases", "note", "associating")
+REQUIRED = ("name", "molar_mass", "critical_temperature", "critical_pressure")
+LINES = ("boil", "melt", "sublime")
+# line fields: "<line>.<key>"; numbers in K and Pa, lists of numbers written as [a, b, ...]
+LINE_TEXTS = ("form", "reference", "p_unit", "t_unit")
+
+
+@dataclass
+class Definition:
+    name: str
+    formula: str = ""
+    designation: str = ""
+    aliases: tuple[str, ...] = ()
+    associating: bool = False
+    note: str = ""
+    values: dict[str, float] = field(default_factory=dict)
+    lines: dict[str, dict[str, Any]] = field(default_factory=dict)
+    sources: dict[str, str] = field(default_factory=dict)
+
+    @classmethod
+    def from_fields(cls, fields: Mapping[str, Any], sources: Mapping[str, str] | None = None) -> "Definition":
+        """A definition from field -> value or (value, unit); raises ModelError naming a bad field."""
+        d = cls(name="")
+        for raw_key, raw in fields.items():
+            # field names are case-insensitive; a line's coefficient names (after the dot) are not
+            head, dot, tail = str(raw_key).strip().partition(".")
+            key = head.lower().replace(" ", "_") + dot + tail
+            value, unit = raw if isinstance(raw, tuple) else (raw, None)
+            if key in TEXTS:
+                _set_text(d, key, value)
+            elif key.lower() in NUMBERS:
+                key = key.lower()
+                d.values[key] = _number(key, value, unit, NUMBERS[key])
+            elif key.split(".")[0] in LINES and "." in key:
+                line, part = key.split(".", 1)
+                d.lines.setdefault(line, {})[part] = _line_value(key, part, value)
+            else:
+                raise ModelError(BAD_ARGUMENT, f"unknown field '{raw_key}' in the substance definition")
+        d.sources = dict(sources or {})
+        _validate(d)
+        return d
+
+    def fields(self) -> list[tuple[str, Any, str]]:
+        """(field, value, unit) rows, in the order a person reads them; pasted back they give this definition."""
+        rows: list[tuple[str, Any, str]] = [("name", self.name, ""), ("formula", self.formula, ""),
+                                            ("designation", self.designation, ""),
+                                            ("aliases", ", ".join(self.aliases), ""),
+                                            ("associating", "TRUE" if self.associating else "FALSE", "")]
+        if self.note:
+            rows.append(("note", self.note, ""))
+        rows += [(k, self.values[k], NUMBERS[k]) for k in NUMBERS if k in self.values]
+        for line in LINES:
+            for part, value in self.lines.get(line, {}).items():
+                shown = "[" + ", ".join(repr(float(v)) for v in value) + "]" if isinstance(value, list) else value
+                rows.append((f"{line}.{part}", shown, ""))
+        return rows
+
+
+def _set_text(d: Definition, key: str, value: Any) -> None:
+    if key == "associating":
+        d.associating = value is True or str(value).strip().upper() in ("TRUE", "1", "YES")
+    elif key == "aliases":
+        d.aliases = tuple(a.strip().lower() for a in str(value or "").split(",") if a.strip())
+    else:
+        setattr(d, key, "" if value is None else str(value).strip())
+
+
+def _number(key: str, value: Any, unit: Any, si: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        try:
+            value = float(str(value).strip())
+        except ValueError:
+            raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a number; got {value!r}") from None
+    if value != value or value in (float("inf"), float("-inf")):
+        raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a finite number")
+    if unit is None or str(unit).strip() in ("", "-", "1", si):
+        return float(value)
+    try:
+        return float(units.conversion_to(str(unit), si).to_si(float(value)))
+    except units.UnitError as exc:
+        raise ModelError(BAD_ARGUMENT, f"field '{key}': {exc}") from None
+
+
+def _line_value(key: str, part: str, value: Any) -> Any:
+    if part in LINE_TEXTS:
+        return str(value).strip()
+    if isinstance(value, list):
+        return [float(v) for v in value]
+    if isinstance(value, str) and value.strip().startswith("["):
+        try:
+            items = ast.literal_eval(value.strip())
+            return [float(v) for v in items]
+        except (ValueError, SyntaxError, TypeError):
+            raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a list of numbers like [1.5, -2]") from None
+    return _number(key, value, None, "")
+
+
+def _validate(d: Definition) -> None:
+    for key in REQUIRED:
+        if key == "name" and not d.name:
+            raise ModelError(BAD_ARGUMENT, "the substance definition needs a 'name'")
+        if key != "name" and key not in d.values:
+            raise ModelError(BAD_ARGUMENT, f"the substance definition needs '{key}'")
+    v = d.values
+    if "acentric_factor" not in v and "normal_boiling_point" not in v:
+        raise ModelError(BAD_ARGUMENT, "the substance definition needs 'acentric_factor' or 'normal_boiling_point'")
+    for key, number in v.items():
+        if key != "acentric_factor" and number <= 0:
+            raise ModelError(BAD_ARGUMENT, f"field '{key}' must be positive; got {number:g}")
+    tc = v["critical_temperature"]
+    for key in ("triple_point_temperature", "normal_boiling_point", "normal_sublimation_point"):
+        if key in v and v[key] >= tc:
+            raise ModelError(BAD_ARGUMENT, f"field '{key}' ({v[key]:g} K) must be below the critical temperature "
+                                           f"({tc:g} K)")
+    if "triple_point_pressure" in v and v["triple_point_pressure"] >= v["critical_pressure"]:
+        raise ModelError(BAD_ARGUMENT, "field 'triple_point_pressure' must be below the critical pressure")
+    for line, table in d.lines.items():
+        if "form" not in table:
+            raise ModelError(BAD_ARGUMENT, f"field '{line}.form' is missing for the {line} line")
+        from ..lines import FORMS
+
+        if table["form"] not in FORMS:
+            raise ModelError(BAD_ARGUMENT, f"field '{line}.form': unknown form '{table['form']}'; "
+                                           f"known: {', '.join(FORMS)}")
+
+
+@lru_cache(maxsize=None)
+def builtin_keys() -> tuple[str, ...]:
+    folder = resources.files("cellfuncs.data").joinpath("substances")
+    return tuple(sorted(p.name[:-5] for p in folder.iterdir() if p.name.endswith(".toml")))
+
+
+@lru_cache(maxsize=None)
+def load_builtin(key: str) -> Definition:
+    """The definition in cellfuncs/data/substances/<key>.toml."""
+    text = resources.files("cellfuncs.data").joinpath("substances", f"{key}.toml").read_text(encoding="utf-8")
+    data = tomllib.loads(text)
+    fields: dict[str, Any] = {k: data[k] for k in TEXTS if k in data}
+    if "aliases" in fields:
+        fields["aliases"] = ", ".join(fields["aliases"])
+    sources: dict[str, str] = {}
+    for key_, entry in data.get("constants", {}).items():
+        fields[key_] = (entry["value"], entry.get("unit"))
+        sources[key_] = entry.get("reference", "") + (" (recalled from memory of the table)" if entry.get("memory") else "")
+        for state in ("temperature",):
+            if state in entry:
+                fields[f"{key_}.{state}"] = (entry[state], "K")
+    for line, table in data.get("lines", {}).items():
+        for part, value in table.items():
+            if part in ("memory", "note"):
+                continue
+            fields[f"{line}.{part}"] = value
+        sources[line] = table.get("reference", "") + (" (recalled from memory)" if table.get("memory") else "")
+    return Definition.from_fields(fields, sources)

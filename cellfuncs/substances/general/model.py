@@ -1,0 +1,530 @@
+"""The model for substances described by critical data and published lines.
+
+Lines (these decide the stable phase):
+  boiling      the published vapour-pressure equation within its range; outside it, and
+               for substances without one, the Lee-Kesler corresponding-states equation
+               (Lee and Kesler 1975, AIChE J. 21, 510) with the acentric factor solved
+               from the normal boiling point, matched to the published line at its ends
+               and running to the critical point
+  melting      the published equation (Simon-Glatzel or a reference-equation ancillary),
+               shifted by the small difference between its triple-point pressure and the
+               model's; else the Clapeyron equation integrated from the triple point with
+               the enthalpy of fusion and the two phases' volumes (estimate, to 100 MPa)
+  sublimation  the published equation scaled to the model's triple-point pressure; else the
+               Clausius-Clapeyron equation integrated from the triple point with
+               H_sub = H_fus + H_vap(T_t) (estimate, from T_t/2 to T_t)
+Phases:
+  vapour, gas and supercritical fluid: Peng-Robinson (see peng_robinson.py)
+  liquid: Rackett saturated volume with the COSTALD-Tait compression (see liquid.py)
+  solid: constant molar volume from the solid density (no expansivity or compressibility)
+Chemical potential (one consistent model; CHEM_POTENTIAL's reference state is the ideal
+gas at the same temperature and 101.325 kPa):
+  mu_vapour(T, p) = R T ln(phi p / p0)                       (Peng-Robinson fugacity)
+  mu_liquid(T, p) = mu_vapour(T, p_boil(T)) + integral of V_liquid dp from p_boil(T)
+  mu_solid(T, p)  = mu_vapour(T, p_sub(T)) + V_s (p - p_sub(T))   below the triple point
+                  = mu_liquid(T, p_melt(T)) + V_s (p - p_melt(T)) above it
+so the phase with the lowest chemical potential is the one the lines name, and the
+potentials are equal on each line.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ...numerics import solve_bracketed
+from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
+from ..lines import line_pressure
+from ..phase_map import LINE_TOL, classify, state_table
+from ..props import Props
+from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, fmt
+from .definition import Definition
+from .liquid import LiquidVolume
+from .peng_robinson import R, PengRobinson
+
+P0 = 101325.0  # Pa, the pressure of the chemical potential's reference state
+P_MAX = 100e6  # Pa, highest pressure the liquid and fluid estimates are used at
+VERTICAL_P_MAX = 10e6  # Pa, top of a melting line taken as pressure-independent
+_LABELS, _STATE_PHASE = state_table(("solid",))
+
+
+def _lee_kesler(tr: np.ndarray, omega: float) -> np.ndarray:
+    """ln(p/pc) by Lee and Kesler (1975), eqs. for f0 and f1."""
+    ln_tr = np.log(tr)
+    f0 = 5.92714 - 6.09648 / tr - 1.28862 * ln_tr + 0.169347 * tr**6
+    f1 = 15.2518 - 15.6875 / tr - 13.4721 * ln_tr + 0.43577 * tr**6
+    return f0 + omega * f1
+
+
+class GeneralSubstance(Substance):
+    solids = ("solid",)
+
+    def __init__(self, definition: Definition):
+        d = self.definition = definition
+        v = d.values
+        self.name = d.name
+        self.molar_mass = v["molar_mass"]
+        self.tc, self.pc = v["critical_temperature"], v["critical_pressure"]
+        self.critical = FixedPoint(self.tc, self.pc)
+        tb = v.get("normal_boiling_point")
+        omega_tb = None
+        if tb is not None:  # the acentric factor that puts the corresponding-states line through Tb
+            tr = np.array(tb / self.tc)
+            f0 = _lee_kesler(tr, 0.0)
+            omega_tb = float((np.log(P0 / self.pc) - f0) / (_lee_kesler(tr, 1.0) - f0))
+        self.omega = v.get("acentric_factor", omega_tb)
+        self._omega_line = omega_tb if omega_tb is not None else self.omega
+        self.eos = PengRobinson(self.tc, self.pc, self.omega)
+        rho_l, t_l = v.get("liquid_density"), v.get("liquid_density.temperature")
+        self.liquid = (LiquidVolume.anchored(self.tc, self.pc, self.omega, t_l, self.molar_mass / rho_l)
+                       if rho_l and t_l and t_l < self.tc else LiquidVolume(self.tc, self.pc, self.omega))
+        self.v_solid = self.molar_mass / v["solid_density"] if "solid_density" in v else np.nan
+        self._setup_boil()
+        self._setup_triple()
+        self._setup_melt()
+        self._setup_sublime()
+
+    # --- set-up of the lines ------------------------------------------------------------
+    def _setup_boil(self) -> None:
+        self._boil = self.definition.lines.get("boil")
+        tt = self.definition.values.get("triple_point_temperature")
+        if self._boil is not None:
+            lo = max(self._boil.get("T_min", 0.0), tt or 0.0)
+            hi = min(self._boil.get("T_max", self.tc), self.tc)
+            self._boil_range = (lo, hi)
+            self._match_lo = float(line_pressure(self._boil, lo) / self._corresponding(np.array(lo)))
+            self._match_hi = float(line_pressure(self._boil, hi) / self._corresponding(np.array(hi)))
+        self.t_low = tt if tt else (self._boil.get("T_min") if self._boil else 0.3 * self.tc)
+
+    def _corresponding(self, T: np.ndarray) -> np.ndarray:
+        return self.pc * np.exp(_lee_kesler(T / self.tc, self._omega_line))
+
+    def _p_boil(self, T: np.ndarray) -> np.ndarray:
+        T = np.asarray(T, float)
+        cs = self._corresponding(T)
+        if self._boil is None:
+            return cs
+        lo, hi = self._boil_range
+        published = line_pressure(self._boil, np.clip(T, lo, hi))
+        # continue past the published ends by corresponding states, matched at the ends and
+        # (above the top) blended to reach the critical pressure at the critical temperature
+        weight = np.clip((T - hi) / max(self.tc - hi, 1e-12), 0.0, 1.0)
+        above = cs * (self._match_hi + (1.0 - self._match_hi) * weight)
+        return np.where(T < lo, cs * self._match_lo, np.where(T > hi, above, published))
+
+    def _t_boil(self, p: np.ndarray) -> np.ndarray:
+        target = np.log(np.asarray(p, float))
+        return solve_bracketed(lambda T: np.log(self._p_boil(T)) - target, self.t_low, self.tc)
+
+    def _setup_triple(self) -> None:
+        tt = self.definition.values.get("triple_point_temperature")
+        self.has_triple = tt is not None
+        self.triple = FixedPoint(tt, float(self._p_boil(np.array(tt)))) if tt else FixedPoint(np.nan, np.nan)
+
+    def _latent_boil(self, T: np.ndarray) -> np.ndarray:
+        """Clapeyron: T (V_vapour - V_liquid) dp/dT on the model's own boiling line."""
+        T = np.asarray(T, float)
+        p = self._p_boil(T)
+        step = 1e-4 * T
+        slope = (self._p_boil(np.minimum(T + step, self.tc)) - self._p_boil(T - step)) / (np.minimum(T + step, self.tc) - T + step)
+        dv = self.eos.volume(T, p, "vapor") - self.liquid.volume(T, p, p)
+        return T * dv * slope
+
+    def _setup_melt(self) -> None:
+        v = self.definition.values
+        self._melt = self.definition.lines.get("melt")
+        self._melt_slope = None  # dp/dlnT of the Clapeyron estimate
+        if self._melt is not None:
+            t0 = self.triple.temperature if self.has_triple else self._melt.get("T_min")
+            self._melt_shift = float(self.triple.pressure - line_pressure(self._melt, t0)) if self.has_triple else 0.0
+            self._melt_range = (t0, self._melt.get("T_max", 10.0 * t0))
+        elif self.has_triple and "enthalpy_of_fusion" in v and np.isfinite(self.v_solid):
+            tt, pt = self.triple
+            dv = float(self.liquid.volume(tt, pt, pt)) - self.v_solid
+            self._melt_slope = v["enthalpy_of_fusion"] / dv
+            t_top = tt * np.exp((P_MAX - pt) / self._melt_slope)
+            self._melt_range = (min(tt, t_top), max(tt, t_top))
+        elif self.has_triple:
+            # without the solid's density the melting temperature is taken as independent of
+            # pressure (typically 0.1-0.3 K/MPa in reality), and only to VERTICAL_P_MAX
+            self._melt_slope = np.inf
+            self._melt_range = (self.triple.temperature, self.triple.temperature)
+        else:
+            self._melt_range = None
+
+    def _p_melt(self, T: np.ndarray) -> np.ndarray:
+        if self._melt is not None:
+            return line_pressure(self._melt, T) + self._melt_shift
+        tt, pt = self.triple
+        return pt + self._melt_slope * np.log(np.asarray(T, float) / tt)
+
+    def _t_melt(self, p: np.ndarray) -> np.ndarray:
+        if self._melt is None:
+            tt, pt = self.triple
+            return tt * np.exp((np.asarray(p, float) - pt) / self._melt_slope)
+        lo, hi = self._melt_range
+        return solve_bracketed(lambda T: self._p_melt(T) - p, lo, hi)
+
+    def _setup_sublime(self) -> None:
+        v = self.definition.values
+        self._sub = self.definition.lines.get("sublime")
+        self._sub_enthalpy = None
+        if not self.has_triple:
+            self._sub_range = None
+            return
+        tt, pt = self.triple
+        if self._sub is not None:
+            self._sub_scale = float(pt / line_pressure(self._sub, tt))
+            self._sub_range = (self._sub.get("T_min", 0.5 * tt), tt)
+        elif "enthalpy_of_fusion" in v:
+            self._sub_enthalpy = v["enthalpy_of_fusion"] + float(self._latent_boil(np.array(tt)))
+            self._sub_range = (0.5 * tt, tt)
+        else:
+            self._sub_range = None
+
+    def _p_sub(self, T: np.ndarray) -> np.ndarray:
+        T = np.asarray(T, float)
+        tt, pt = self.triple
+        if self._sub is not None:
+            return line_pressure(self._sub, T) * self._sub_scale
+        return pt * np.exp(-self._sub_enthalpy / R * (1.0 / T - 1.0 / tt))
+
+    def _t_sub(self, p: np.ndarray) -> np.ndarray:
+        tt, pt = self.triple
+        if self._sub is None:
+            return 1.0 / (1.0 / tt - R / self._sub_enthalpy * np.log(np.asarray(p, float) / pt))
+        target = np.log(np.asarray(p, float))
+        return solve_bracketed(lambda T: np.log(self._p_sub(T)) - target, *self._sub_range)
+
+    # --- boundaries -------------------------------------------------------------------
+    def _missing(self, r: Result, line: str, why: str) -> None:
+        r.flag(True, NOT_AVAILABLE, f"{self.name} has no {line} line: {why}")
+
+    def boil_pressure(self, T: np.ndarray) -> Result:
+        r = Result.like(T)
+        r.flag(T < self.t_low * (1 - LINE_TOL), OUT_OF_RANGE,
+               "{} K is below the " + self._low_name() + f" of {self.name} ({fmt(self.t_low)} K)", T,
+               see="sublime" if self.has_triple else "")
+        r.flag(T > self.tc * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the critical temperature of "
+               + f"{self.name} ({fmt(self.tc)} K): there is no liquid-vapour line above it", T)
+        r.fill(self._p_boil(np.clip(T, self.t_low, self.tc)))
+        return r
+
+    def _low_name(self) -> str:
+        return "triple-point temperature" if self.has_triple else "lowest temperature of the vapour-pressure line"
+
+    def boil_temperature(self, p: np.ndarray) -> Result:
+        r = Result.like(p)
+        p_low = float(self._p_boil(np.array(self.t_low)))
+        r.flag(p < p_low * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the " + (
+            "triple-point pressure" if self.has_triple else "lowest pressure of the vapour-pressure line")
+               + f" of {self.name} ({fmt(p_low)} Pa)", p, see="sublime" if self.has_triple else "")
+        r.flag(p > self.pc * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the critical pressure of "
+               + f"{self.name} ({fmt(self.pc)} Pa): there is no liquid-vapour line above it", p)
+        r.fill(self._t_boil(np.clip(p, p_low, self.pc)))
+        return r
+
+    def melt_pressure(self, T: np.ndarray, solid: int | None = None) -> tuple[Result, np.ndarray]:
+        r = Result.like(T)
+        if self._melt_range is None:
+            self._missing(r, "melting", "the data lack the enthalpy of fusion or the solid density")
+            return r, SOLID
+        if self._melt_slope == np.inf:
+            self._missing(r, "melting-pressure", "without the solid's density its melting temperature is taken as "
+                          f"independent of pressure ({fmt(self.triple.temperature)} K); use MELT_TEMP")
+            return r, SOLID
+        lo, hi = self._melt_range
+        r.flag((T < lo * (1 - LINE_TOL)) | (T > hi * (1 + LINE_TOL)), OUT_OF_RANGE,
+               "{} K is outside the melting line of " + f"{self.name} ({fmt(lo)} K to {fmt(hi)} K)", T)
+        r.fill(self._p_melt(np.clip(T, lo, hi)))
+        return r, SOLID
+
+    def _melt_p_range(self) -> tuple[float, float]:
+        if self._melt_slope == np.inf:
+            return self.triple.pressure, VERTICAL_P_MAX
+        lo, hi = self._melt_range
+        a, b = float(self._p_melt(np.array(lo))), float(self._p_melt(np.array(hi)))
+        return min(a, b), max(a, b)
+
+    def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
+        r = Result.like(p)
+        if self._melt_range is None:
+            self._missing(r, "melting", "the data lack the enthalpy of fusion or the solid density")
+            return r, SOLID
+        p_lo, p_hi = self._melt_p_range()
+        r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the melting line of "
+               + f"{self.name} (from {fmt(p_lo)} Pa)", p, see="sublime" if self.has_triple else "")
+        r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the melting line's range for "
+               + f"{self.name} ({fmt(p_hi)} Pa)", p)
+        r.fill(self._t_melt(np.clip(p, p_lo, p_hi)))
+        return r, SOLID
+
+    def sublime_pressure(self, T: np.ndarray) -> Result:
+        r = Result.like(T)
+        if self._sub_range is None:
+            self._missing(r, "solid-vapour", self._no_sublimation_reason())
+            return r
+        lo, hi = self._sub_range
+        r.flag(T > hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the triple-point temperature of "
+               + f"{self.name} ({fmt(hi)} K)", T, see="boil")
+        r.flag(T < lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} K is below the sublimation line's range for "
+               + f"{self.name} ({fmt(lo)} K)", T)
+        r.fill(self._p_sub(np.clip(T, lo, hi)))
+        return r
+
+    def _no_sublimation_reason(self) -> str:
+        if not self.has_triple:
+            return "it has no solid-liquid-vapour triple point (helium stays liquid down to 0 K at low pressure)"
+        return "the data lack a sublimation equation and the enthalpy of fusion"
+
+    def sublime_temperature(self, p: np.ndarray) -> Result:
+        r = Result.like(p)
+        if self._sub_range is None:
+            self._missing(r, "solid-vapour", self._no_sublimation_reason())
+            return r
+        lo, hi = self._sub_range
+        p_lo, p_hi = float(self._p_sub(np.array(lo))), self.triple.pressure
+        r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of "
+               + f"{self.name} ({fmt(p_hi)} Pa)", p, see="boil")
+        r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the sublimation line's range for "
+               + f"{self.name} ({fmt(p_lo)} Pa at {fmt(lo)} K)", p)
+        r.fill(self._t_sub(np.clip(p, p_lo, p_hi)))
+        return r
+
+    # --- stable phase -----------------------------------------------------------------
+    def _classify(self, T: np.ndarray, p: np.ndarray) -> Result:
+        T, p = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float))
+        r = Result(np.full(T.shape, -1.0))
+        high = p >= self.triple.pressure if self.has_triple else np.ones(T.shape, bool)
+        t_solid = np.full(T.shape, -np.inf)
+        if self._melt_range is not None:
+            p_lo, p_hi = self._melt_p_range()
+            r.flag(high & (p > p_hi * (1 + LINE_TOL)), OUT_OF_RANGE, "{} Pa is above the melting line's range for "
+                   + f"{self.name} ({fmt(p_hi)} Pa)", p)
+            melt = high & (p >= p_lo) & (p <= p_hi)
+            if melt.any():
+                t_solid[melt] = self._t_melt(p[melt])
+        elif self.has_triple:
+            r.flag(high & (T < self.triple.temperature), NOT_AVAILABLE, f"{self.name} has no melting line (the data "
+                   "lack the enthalpy of fusion or the solid density): solid and liquid cannot be told apart")
+        if self._sub_range is not None:
+            p_lo = float(self._p_sub(np.array(self._sub_range[0])))
+            r.flag(~high & (p < p_lo) & (T < self.triple.temperature), OUT_OF_RANGE,
+                   "{} Pa is below the sublimation line's range for " + f"{self.name} ({fmt(p_lo)} Pa)", p)
+            sub = ~high & (p >= p_lo)
+            if sub.any():
+                t_solid[sub] = self._t_sub(p[sub])
+        elif self.has_triple:
+            r.flag(~high & (T < self.triple.temperature), NOT_AVAILABLE,
+                   f"{self.name} has no solid-vapour line: {self._no_sublimation_reason()}")
+        if not self.has_triple:
+            r.flag(T < self.t_low, OUT_OF_RANGE, "{} K is below the lowest temperature of the vapour-pressure line of "
+                   + f"{self.name} ({fmt(self.t_low)} K)", T)
+        p_low = float(self._p_boil(np.array(self.t_low)))
+        t_boil = np.where(high & (p >= p_low), self.tc, -np.inf)
+        sat = high & (p >= p_low) & (p <= self.pc)
+        if sat.any():
+            t_boil[sat] = self._t_boil(p[sat])
+        state = classify(T, p, t_solid=t_solid, solid=np.zeros(T.shape, int), t_boil=t_boil, sat=sat, high=high,
+                         pt=self.triple.pressure if self.has_triple else -np.inf, tc=self.tc, pc=self.pc)
+        r.fill(state.astype(float))
+        return r
+
+    def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
+        codes = self._classify(T, p)
+        labels = Result(np.full(codes.values.shape, None, dtype=object), codes.problems)
+        ok = np.broadcast_to(codes.ok, codes.values.shape)
+        labels.values[ok] = _LABELS[codes.values[ok].astype(int)]
+        return labels
+
+    # --- single-phase properties --------------------------------------------------------
+    def _mu_vapor(self, T, p) -> np.ndarray:
+        z = self.eos.compressibility(T, p, "vapor")
+        return R * T * (np.log(p / P0) + self.eos.ln_fugacity_coefficient(T, p, z))
+
+    def _mu_liquid(self, T, p) -> np.ndarray:
+        p_sat = self._p_boil(T)
+        return self._mu_vapor(T, p_sat) + self.liquid.integral(T, p, p_sat)
+
+    def props(self, T, p, phase=0) -> tuple[Props, Result]:
+        T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
+        r = Result(np.full(T.shape, np.nan))
+        blank = phase == 0
+        if blank.any():
+            state = self._classify(T, p)
+            codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
+            if state.problems is not None:
+                r.adopt(np.where(blank, state.problems, None))
+            r.flag(blank & (_STATE_PHASE[codes] == 0), NOT_AVAILABLE,
+                   lambda label: f"the state is on a line ({label}): give a phase", _LABELS[codes])
+            phase = np.where(blank, _STATE_PHASE[codes], phase)
+        phase = np.where((phase < SOLID) & (T >= self.tc), FLUID, phase)
+        r.flag((phase == FLUID) & (T < self.tc), OUT_OF_RANGE, "{} K is below the critical temperature of "
+               + f"{self.name} ({fmt(self.tc)} K): ask for liquid or vapor", T)
+        fields = {name: np.full(T.shape, np.nan) for name in Props._fields}
+        ok = np.broadcast_to(r.ok, T.shape)
+        for code, method in ((LIQUID, self._liquid), (VAPOR, self._vapor), (FLUID, self._fluid),
+                             (SOLID, self._solid)):
+            sel = (phase == code) & ok
+            if sel.any():
+                method(T[sel], p[sel], sel, r, fields)
+        return Props(**fields), r
+
+    @staticmethod
+    def _store(fields, sel, r: Result, sub: Result, **values) -> None:
+        ok = np.broadcast_to(sub.ok, sub.values.shape)
+        index = np.flatnonzero(sel)
+        for name, value in values.items():
+            fields[name].flat[index[ok]] = np.broadcast_to(value, ok.shape)[ok]
+        if sub.problems is not None:
+            problems = np.full(sel.shape, None, dtype=object)
+            problems[sel] = sub.problems
+            r.adopt(problems)
+
+    def _liquid(self, t, q, sel, r: Result, fields) -> None:
+        sub = Result(np.full(t.shape, np.nan))
+        sub.flag(q > P_MAX, OUT_OF_RANGE, "{} Pa is above the liquid estimate's range (" + fmt(P_MAX) + " Pa)", q)
+        sub.flag(t < self.t_low * (1 - LINE_TOL), OUT_OF_RANGE, "liquid " + self.name + " at {} K is below the "
+                 + self._low_name() + f" ({fmt(self.t_low)} K)", t)
+        t_in = np.clip(t, self.t_low, self.tc)
+        p_sat = self._p_boil(t_in)
+        sub.flag(q < p_sat * (1 - LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"liquid {self.name} at {fmt(tt)} K and "
+                 f"{fmt(qq)} Pa is below its vapour pressure: superheated liquid is outside the model", t, q)
+        if self._melt_range is not None:
+            p_lo, p_hi = self._melt_p_range()
+            frozen = (q >= p_lo) & (q <= p_hi)
+            if frozen.any():
+                t_m = np.full(t.shape, -np.inf)
+                t_m[frozen] = self._t_melt(q[frozen])
+                sub.flag(t < t_m * (1 - LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"liquid {self.name} at {fmt(tt)} K "
+                         f"and {fmt(qq)} Pa is below its melting temperature", t, q)
+        volume = self.liquid.volume(t_in, q, p_sat)
+        step = 1e-3
+        t_up, t_down = np.minimum(t_in + step, self.tc), t_in - step
+        v_up = self.liquid.volume(t_up, q, np.minimum(self._p_boil(t_up), q))
+        v_down = self.liquid.volume(t_down, q, np.minimum(self._p_boil(t_down), q))
+        self._store(fields, sel, r, sub, v=volume, g=self._mu_liquid(t_in, q),
+                    alpha=(v_up - v_down) / ((t_up - t_down) * volume),
+                    kappa=self.liquid.compressibility(t_in, q, p_sat))
+
+    def _gas(self, t, q, sel, r, fields, sub: Result) -> None:
+        z = self.eos.compressibility(t, q, "vapor")
+        volume = z * R * t / q
+        dp_dv, dp_dT = self.eos.derivatives(t, volume)
+        g = R * t * (np.log(q / P0) + self.eos.ln_fugacity_coefficient(t, q, z))
+        self._store(fields, sel, r, sub, v=volume, g=g, kappa=-1.0 / (volume * dp_dv),
+                    alpha=-dp_dT / (volume * dp_dv))
+
+    def _vapor(self, t, q, sel, r: Result, fields) -> None:
+        sub = Result(np.full(t.shape, np.nan))
+        cold = t < self.t_low
+        if self._sub_range is not None:
+            sub.flag(t < self._sub_range[0], OUT_OF_RANGE, "{} K is below the sublimation line's range for "
+                     + f"{self.name} ({fmt(self._sub_range[0])} K)", t)
+            p_line = np.where(cold, self._p_sub(np.clip(t, *self._sub_range)), self._p_boil(np.clip(t, self.t_low, self.tc)))
+        else:
+            sub.flag(cold, OUT_OF_RANGE, "{} K is below the " + self._low_name() + f" of {self.name}", t)
+            p_line = self._p_boil(np.clip(t, self.t_low, self.tc))
+        sub.flag(q > p_line * (1 + LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"{self.name} vapour at {fmt(tt)} K and "
+                 f"{fmt(qq)} Pa is above its saturation pressure: supersaturated vapour is outside the model", t, q)
+        self._gas(t, q, sel, r, fields, sub)
+
+    def _fluid(self, t, q, sel, r: Result, fields) -> None:
+        sub = Result(np.full(t.shape, np.nan))
+        sub.flag(q > P_MAX, OUT_OF_RANGE, "{} Pa is above the fluid estimate's range (" + fmt(P_MAX) + " Pa)", q)
+        self._gas(t, q, sel, r, fields, sub)
+
+    def _solid(self, t, q, sel, r: Result, fields) -> None:
+        sub = Result(np.full(t.shape, np.nan))
+        if not np.isfinite(self.v_solid):
+            sub.flag(True, NOT_AVAILABLE, f"{self.name} has no solid density in its data")
+        elif not self.has_triple or self._melt_range is None and self._sub_range is None:
+            sub.flag(True, NOT_AVAILABLE, f"{self.name}'s solid is not modelled (no triple point or lines)")
+        if sub.problems is not None:
+            self._store(fields, sel, r, sub)
+            return
+        tt, pt = self.triple
+        below = t <= tt
+        if self._sub_range is not None:
+            sub.flag(below & (t < self._sub_range[0]), OUT_OF_RANGE, "{} K is below the sublimation line's range for "
+                     + f"{self.name}", t)
+        elif below.any():
+            sub.flag(below, NOT_AVAILABLE, f"{self.name} has no solid-vapour line: {self._no_sublimation_reason()}")
+        if self._melt_range is None:
+            sub.flag(~below, NOT_AVAILABLE, f"{self.name} has no melting line")
+        else:
+            lo, hi = self._melt_range
+            sub.flag(~below & (t > hi), OUT_OF_RANGE, "solid " + self.name + " at {} K is above its melting line's "
+                     "range", t)
+            p_m = self._p_melt(np.clip(t, lo, hi))
+            sub.flag(~below & (q < p_m * (1 - LINE_TOL)), OUT_OF_RANGE, lambda tt_, qq: f"solid {self.name} at "
+                     f"{fmt(tt_)} K and {fmt(qq)} Pa is above its melting temperature", t, q)
+        g = np.full(t.shape, np.nan)
+        if below.any() and self._sub_range is not None:
+            p_s = self._p_sub(np.clip(t[below], *self._sub_range))
+            g[below] = self._mu_vapor(t[below], p_s) + self.v_solid * (q[below] - p_s)
+        if (~below).any() and self._melt_range is not None:
+            p_m = self._p_melt(np.clip(t[~below], *self._melt_range))
+            g[~below] = self._mu_liquid(t[~below], p_m) + self.v_solid * (q[~below] - p_m)
+        self._store(fields, sel, r, sub, v=np.full(t.shape, self.v_solid), g=g)
+
+    # --- quantities this model derives by the Clapeyron equation ------------------------
+    def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
+        """T * dV * dp/dT on the line, with the model's own volumes and line slope."""
+        p, phases = self.line_pressure(boundary, T)
+        step = 1e-5 * np.asarray(T, float)
+        up, _ = self.line_pressure(boundary, T + step)
+        down, _ = self.line_pressure(boundary, T - step)
+        slope = np.where(np.isfinite(up.values) & np.isfinite(down.values), (up.values - down.values) / (2 * step),
+                         np.where(np.isfinite(up.values), (up.values - p.values) / step, (p.values - down.values) / step))
+        low, low_result = self.props(T, p.values, phases[0])
+        high, high_result = self.props(T, p.values, phases[1])
+        out = Result.joined(p, low_result, high_result)
+        out.fill(T * (high.v - low.v) * slope)
+        return out
+
+    def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
+        """cp_liquid (T1 - Tsat(p2)) / H_vap(Tsat(p2)), with the liquid heat capacity of the data."""
+        cp = self.definition.values.get("liquid_heat_capacity")
+        _, inlet = self.props(T1, p1, LIQUID)
+        t_sat = self.boil_temperature(p2)
+        out = Result.joined(inlet, t_sat)
+        if cp is None:
+            out.flag(True, NOT_AVAILABLE, f"{self.name} has no liquid heat capacity in its data")
+            return out
+        heat = self.latent_heat("boil", t_sat.values)
+        out = Result.joined(out, heat)
+        out.fill(np.maximum(cp * (T1 - t_sat.values) / heat.values, 0.0))
+        return out
+
+    def info(self) -> dict[str, InfoItem]:
+        d = self.definition
+        items: dict[str, InfoItem] = {}
+        for name, value, unit in d.fields():
+            line = name.split(".")[0]
+            items[name] = InfoItem(value, unit, d.sources.get(name, d.sources.get(line, "")))
+        for key, (model, valid) in self._models().items():
+            items[f"{key}_model"] = InfoItem(model, "", "")
+            items[f"{key}_range"] = InfoItem(valid, "", "")
+        return items
+
+    def _models(self) -> dict[str, tuple[str, str]]:
+        boil = ("published " + self._boil["form"] + " equation" + (", corresponding states (Lee-Kesler) outside "
+                f"{fmt(self._boil_range[0])} K to {fmt(self._boil_range[1])} K" if self._boil_range != (self.t_low, self.tc) else "")
+                if self._boil is not None else "corresponding states (Lee-Kesler) through the normal boiling point")
+        melt = ("published " + self._melt["form"] + " equation" if self._melt is not None else
+                "triple-point temperature, taken as independent of pressure to 10 MPa (estimate; no solid density)"
+                if self._melt_slope == np.inf else
+                "Clapeyron equation from the triple point (estimate)" if self._melt_range else "none")
+        sub = ("published " + self._sub["form"] + " equation" if self._sub is not None else
+               "Clausius-Clapeyron from the triple point (estimate)" if self._sub_range else "none")
+        rng = lambda r_: f"{fmt(r_[0])} K to {fmt(r_[1])} K" if r_ else ""
+        return {
+            "boil": (boil, f"{fmt(self.t_low)} K to {fmt(self.tc)} K"),
+            "melt": (melt, rng(self._melt_range)),
+            "sublime": (sub, rng(self._sub_range)),
+            "vapor": ("Peng-Robinson equation of state", "to 100 MPa"),
+            "liquid": ("Rackett saturated volume with COSTALD-Tait compression", "triple point to critical, to 100 MPa"),
+            "solid": ("constant molar volume from the solid density", ""),
+            "chem_potential": ("molar Gibbs energy relative to the ideal gas at the same temperature and 101.325 kPa",
+                               ""),
+        }
