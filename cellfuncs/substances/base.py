@@ -16,7 +16,7 @@ from typing import NamedTuple
 import numpy as np
 
 from .props import Props
-from .result import BAD_ARGUMENT, ModelError, Result
+from .result import BAD_ARGUMENT, NOT_AVAILABLE, ModelError, Result
 
 # Phase codes. Solids count up from SOLID: SOLID + k is the substance's k-th solid.
 STABLE = 0  # "the stable phase at this state"
@@ -71,6 +71,8 @@ class Substance:
     critical: FixedPoint
     triple: FixedPoint
     solids: tuple[str, ...] = ("solid",)  # labels of the solid phases, SOLID + k
+    _labels: np.ndarray  # STABLE_PHASE labels by state code (phase_map.state_table)
+    _state_phase: np.ndarray  # the single phase code of each state, STABLE on a line
 
     # --- to be provided by each model -------------------------------------------------
     def boil_pressure(self, T: np.ndarray) -> Result:
@@ -93,13 +95,66 @@ class Substance:
     def sublime_temperature(self, p: np.ndarray) -> Result:
         raise NotImplementedError
 
-    def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
-        """Labels (object array): one phase, or the phases of a line joined by " + "."""
+    def _classify(self, T: np.ndarray, p: np.ndarray) -> Result:
+        """State codes: indices into ``_labels`` (see phase_map.state_table)."""
         raise NotImplementedError
 
-    def props(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray | int) -> tuple[Props, Result]:
-        """Molar properties of ``phase`` at (T, p); the Result carries the problems only."""
+    def _phase_methods(self) -> dict:
+        """Phase code -> method(t, q, sel, result, fields) filling the selected elements' properties."""
         raise NotImplementedError
+
+    def _unmodelled(self, r: Result, phase: np.ndarray, blank: np.ndarray) -> None:
+        """Flag phases the model names but cannot compute (water's high-pressure ices)."""
+
+    def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
+        """Labels (object array): one phase, or the phases of a line joined by " + "."""
+        codes = self._classify(T, p)
+        labels = Result(np.full(codes.values.shape, None, dtype=object), codes.problems)
+        ok = np.broadcast_to(codes.ok, codes.values.shape)
+        labels.values[ok] = self._labels[codes.values[ok].astype(int)]
+        return labels
+
+    def props(self, T, p, phase=STABLE) -> tuple[Props, Result]:
+        """Molar properties of ``phase`` at (T, p); the Result carries the problems only."""
+        T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
+        r = Result(np.full(T.shape, np.nan))
+        blank = phase == STABLE
+        if blank.any():
+            state = self._classify(T, p)
+            codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
+            if state.problems is not None:
+                r.adopt(np.where(blank, state.problems, None))
+            r.flag(blank & (self._state_phase[codes] == STABLE), NOT_AVAILABLE,
+                   lambda label: f"the state is on a line ({label}): give a phase", self._labels[codes])
+            phase = np.where(blank, self._state_phase[codes], phase)
+        # any fluid word above the critical temperature means the one fluid
+        tc = self.critical.temperature
+        phase = np.where((phase < SOLID) & (T >= tc), FLUID, phase)
+        r.flag((phase == FLUID) & (T < tc), BAD_ARGUMENT, "{} K is below the critical temperature of "
+               + f"{self.name} ({tc:.6g} K): ask for liquid or vapor", T)
+        self._unmodelled(r, phase, blank)
+        fields = {name: np.full(T.shape, np.nan) for name in Props._fields}
+        ok = np.broadcast_to(r.ok, T.shape)
+        for code, method in self._phase_methods().items():
+            sel = (phase == code) & ok
+            if sel.any():
+                method(T[sel], p[sel], sel, r, fields)
+        return Props(**fields), r
+
+    @staticmethod
+    def _put(fields: dict, sel: np.ndarray, part, values: dict) -> None:
+        """Store values of the elements ``part`` of the selection ``sel`` in the full-shape fields."""
+        index = np.flatnonzero(sel)[part]
+        for name, value in values.items():
+            fields[name].flat[index] = np.broadcast_to(value, index.shape)
+
+    @staticmethod
+    def _report(r: Result, sel: np.ndarray, sub: Result) -> None:
+        """Carry a selection's problems into the whole call's Result."""
+        if sub.problems is not None:
+            problems = np.full(sel.shape, None, dtype=object)
+            problems[sel] = sub.problems
+            r.adopt(problems)
 
     def info(self) -> dict[str, InfoItem]:
         raise NotImplementedError

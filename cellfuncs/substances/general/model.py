@@ -35,7 +35,6 @@ from ...numerics import solve_bracketed
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..lines import line_pressure
 from ..phase_map import LINE_TOL, classify, state_table
-from ..props import Props
 from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, fmt
 from .definition import Definition
 from .liquid import LiquidVolume
@@ -329,12 +328,7 @@ class GeneralSubstance(Substance):
         r.fill(state.astype(float))
         return r
 
-    def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
-        codes = self._classify(T, p)
-        labels = Result(np.full(codes.values.shape, None, dtype=object), codes.problems)
-        ok = np.broadcast_to(codes.ok, codes.values.shape)
-        labels.values[ok] = _LABELS[codes.values[ok].astype(int)]
-        return labels
+    _labels, _state_phase = _LABELS, _STATE_PHASE
 
     # --- single-phase properties --------------------------------------------------------
     def _mu_vapor(self, T, p) -> np.ndarray:
@@ -345,40 +339,13 @@ class GeneralSubstance(Substance):
         p_sat = self._p_boil(T)
         return self._mu_vapor(T, p_sat) + self.liquid.integral(T, p, p_sat)
 
-    def props(self, T, p, phase=0) -> tuple[Props, Result]:
-        T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
-        r = Result(np.full(T.shape, np.nan))
-        blank = phase == 0
-        if blank.any():
-            state = self._classify(T, p)
-            codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
-            if state.problems is not None:
-                r.adopt(np.where(blank, state.problems, None))
-            r.flag(blank & (_STATE_PHASE[codes] == 0), NOT_AVAILABLE,
-                   lambda label: f"the state is on a line ({label}): give a phase", _LABELS[codes])
-            phase = np.where(blank, _STATE_PHASE[codes], phase)
-        phase = np.where((phase < SOLID) & (T >= self.tc), FLUID, phase)
-        r.flag((phase == FLUID) & (T < self.tc), OUT_OF_RANGE, "{} K is below the critical temperature of "
-               + f"{self.name} ({fmt(self.tc)} K): ask for liquid or vapor", T)
-        fields = {name: np.full(T.shape, np.nan) for name in Props._fields}
-        ok = np.broadcast_to(r.ok, T.shape)
-        for code, method in ((LIQUID, self._liquid), (VAPOR, self._vapor), (FLUID, self._fluid),
-                             (SOLID, self._solid)):
-            sel = (phase == code) & ok
-            if sel.any():
-                method(T[sel], p[sel], sel, r, fields)
-        return Props(**fields), r
+    def _phase_methods(self) -> dict:
+        return {LIQUID: self._liquid, VAPOR: self._vapor, FLUID: self._fluid, SOLID: self._solid}
 
-    @staticmethod
-    def _store(fields, sel, r: Result, sub: Result, **values) -> None:
+    def _store(self, fields, sel, r: Result, sub: Result, **values) -> None:
         ok = np.broadcast_to(sub.ok, sub.values.shape)
-        index = np.flatnonzero(sel)
-        for name, value in values.items():
-            fields[name].flat[index[ok]] = np.broadcast_to(value, ok.shape)[ok]
-        if sub.problems is not None:
-            problems = np.full(sel.shape, None, dtype=object)
-            problems[sel] = sub.problems
-            r.adopt(problems)
+        self._put(fields, sel, ok, {name: np.broadcast_to(v, ok.shape)[ok] for name, v in values.items()})
+        self._report(r, sel, sub)
 
     def _liquid(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))

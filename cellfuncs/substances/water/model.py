@@ -32,7 +32,8 @@ from __future__ import annotations
 import numpy as np
 
 from ...data import constant, load
-from ..base import FLUID, LIQUID, SOLID, STABLE, VAPOR, FixedPoint, InfoItem, Substance
+from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
+from ..phase_map import LINE_TOL, classify, state_table
 from ..props import Props
 from ..result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
 from . import ice_ih, ice_lines, if97, if97_region3, if97_saturation
@@ -44,7 +45,6 @@ PC = constant(_DATA, "critical_pressure").value
 TT = constant(_DATA, "triple_point_temperature").value
 PT = constant(_DATA, "triple_point_pressure").value
 
-LINE_TOL = 1e-9  # a state is on a line when |T - T_line(p)| <= LINE_TOL * T_line(p)
 # The lines' ends take the same slack: 0.01 degC converts to 273.15999999999997 K, and
 # BOIL_PRESSURE at 647.096 K gives a hair above 22.064 MPa.
 MELT_JOIN_TOL = 1e-6  # the R14-08 ice Ih and III lines meet at 251.165 K only to 1.5e-7 in T
@@ -71,32 +71,11 @@ _SUB_P_MIN = ice_lines.line_range("sublimation")[1][0]
 _MELT_T_NEAR = ice_lines.line_range("V")[0][1]
 _MELT_P_NEAR = ice_lines.line_range("V")[1][1]
 
-# Labels STABLE_PHASE returns, indexed by state code; the code's single phase (STABLE on a line).
-_LABELS = (
-    ["liquid", "vapor", "gas", "supercritical fluid"]
-    + list(SOLIDS)
-    + ["liquid + vapor"]
-    + [f"{s} + liquid" for s in SOLIDS]
-    + ["ice Ih + vapor", "ice Ih + liquid + vapor"]
-)
-_LABEL_ARRAY = np.array(_LABELS, dtype=object)
-_S_LIQUID, _S_VAPOR, _S_GAS, _S_SUPER = 0, 1, 2, 3
-_S_SOLID = 4
-_S_BOIL = 4 + len(SOLIDS)
-_S_MELT = _S_BOIL + 1
-_S_SUBLIME = _S_MELT + len(SOLIDS)
-_S_TRIPLE = _S_SUBLIME + 1
-_STATE_PHASE = np.array(
-    [LIQUID, VAPOR, FLUID, FLUID] + [SOLID + k for k in range(len(SOLIDS))] + [STABLE] * (len(SOLIDS) + 3)
-)
+_LABELS, _STATE_PHASE = state_table(SOLIDS)
 
 
 def _molar(p: Props) -> Props:
     return Props(p.v * M, p.h * M, p.s * M, p.g * M, p.cp * M, p.alpha, p.kappa)
-
-
-def _near(x, line) -> np.ndarray:
-    return np.abs(x - line) <= LINE_TOL * line
 
 
 class Water(Substance):
@@ -202,42 +181,18 @@ class Water(Substance):
         sat = high & (p <= PC)
         if sat.any():
             t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
-        fluid = np.where(T < TC, _S_VAPOR, np.where(p < PC, _S_GAS, _S_SUPER))
-        state = np.where(T < t_boil, _S_LIQUID, fluid)
-        state[sat & (T < TC) & _near(T, t_boil)] = _S_BOIL
-        solid = T < t_solid
-        state[solid] = _S_SOLID + ice[solid]
-        on_solid = _near(T, t_solid)
-        if on_solid.any():
-            state[on_solid] = np.where(high, _S_MELT + ice, _S_SUBLIME)[on_solid]
-            state[on_solid & high & (p <= PT * (1 + LINE_TOL))] = _S_TRIPLE
+        state = classify(T, p, t_solid=t_solid, solid=ice, t_boil=t_boil, sat=sat, high=high, pt=PT, tc=TC, pc=PC,
+                         n_solids=len(SOLIDS))
         r.fill(state.astype(float))
         return r
 
-    def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
-        codes = self._classify(T, p)
-        labels = Result(np.full(codes.values.shape, None, dtype=object), codes.problems)
-        ok = np.broadcast_to(codes.ok, codes.values.shape)
-        labels.values[ok] = _LABEL_ARRAY[codes.values[ok].astype(int)]
-        return labels
+    _labels, _state_phase = _LABELS, _STATE_PHASE
 
     # --- single-phase properties --------------------------------------------------------
-    def props(self, T, p, phase=STABLE) -> tuple[Props, Result]:
-        T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
-        r = Result(np.full(T.shape, np.nan))
-        blank = phase == STABLE
-        if blank.any():
-            state = self._classify(T, p)
-            codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
-            if state.problems is not None:
-                r.adopt(np.where(blank, state.problems, None))
-            r.flag(blank & (_STATE_PHASE[codes] == STABLE), NOT_AVAILABLE,
-                   lambda label: f"the state is on a line ({label}): give a phase", _LABEL_ARRAY[codes])
-            phase = np.where(blank, _STATE_PHASE[codes], phase)
-        # any fluid word above the critical temperature means the one fluid
-        phase = np.where((phase < SOLID) & (T >= TC), FLUID, phase)
-        r.flag((phase == FLUID) & (T < TC), BAD_ARGUMENT,
-               "{} K is below the critical temperature of water (647.096 K): ask for liquid or vapor", T)
+    def _phase_methods(self) -> dict:
+        return {LIQUID: self._liquid, VAPOR: self._vapor, FLUID: self._fluid, SOLID: self._ice}
+
+    def _unmodelled(self, r: Result, phase: np.ndarray, blank: np.ndarray) -> None:
         if (phase > SOLID).any():
             r.flag((phase > SOLID) & ~blank, NOT_AVAILABLE,
                    lambda k: f"no volume formulation for {SOLIDS[k - SOLID]} (only ice Ih has one, IAPWS R10-06)",
@@ -246,16 +201,7 @@ class Water(Substance):
                    lambda k: f"the stable phase is {SOLIDS[k - SOLID]}, which has no volume formulation "
                    "(only ice Ih has one, IAPWS R10-06)", phase)
 
-        fields = {name: np.full(T.shape, np.nan) for name in Props._fields}
-        ok = np.broadcast_to(r.ok, T.shape)
-        for code, method in ((LIQUID, self._liquid), (VAPOR, self._vapor), (FLUID, self._fluid), (SOLID, self._ice)):
-            sel = (phase == code) & ok
-            if sel.any():
-                method(T, p, sel, r, fields)
-        return Props(**fields), r
-
-    def _liquid(self, T, p, sel, r: Result, fields) -> None:
-        t, q = T[sel], p[sel]
+    def _liquid(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(q > P_MAX_LIQUID, OUT_OF_RANGE, "liquid water at {} Pa is above the formulation's range (210 MPa)", q)
         sub.flag((t > REGION1_T_MAX) & (q > P_MAX_FLUID), OUT_OF_RANGE,
@@ -276,14 +222,13 @@ class Water(Substance):
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         low = ok & (t <= REGION1_T_MAX)
         if low.any():
-            self._put(fields, sel, low, if97.region1(t[low], q[low]))
+            self._put_props(fields, sel, low, if97.region1(t[low], q[low]))
         near = ok & (t > REGION1_T_MAX)
         if near.any():
             self._put_region3(fields, sel, near, t, q, "liquid", sub)
         self._report(r, sel, sub)
 
-    def _vapor(self, T, p, sel, r: Result, fields) -> None:
-        t, q = T[sel], p[sel]
+    def _vapor(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(t < REGION2_T_MIN, OUT_OF_RANGE,
                  "water vapour below 200 K is outside the formulation (IF97 region 2 extended to 200 K); got {} K", t)
@@ -297,14 +242,13 @@ class Water(Substance):
         above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, REGION3_T_MAX)))
         two = ok & ~above_b23
         if two.any():
-            self._put(fields, sel, two, if97.region2(t[two], q[two]))
+            self._put_props(fields, sel, two, if97.region2(t[two], q[two]))
         three = ok & above_b23
         if three.any():
             self._put_region3(fields, sel, three, t, q, "vapour", sub)
         self._report(r, sel, sub)
 
-    def _fluid(self, T, p, sel, r: Result, fields) -> None:
-        t, q = T[sel], p[sel]
+    def _fluid(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(t > REGION5_T_MAX, OUT_OF_RANGE, "{} K is above the water formulations' range (2273.15 K)", t)
         sub.flag((t > REGION2_T_MAX) & (q > P_MAX_REGION5), OUT_OF_RANGE,
@@ -315,15 +259,14 @@ class Water(Substance):
         two = ok & ~three & (t <= REGION2_T_MAX)
         five = ok & (t > REGION2_T_MAX)
         if two.any():
-            self._put(fields, sel, two, if97.region2(t[two], q[two]))
+            self._put_props(fields, sel, two, if97.region2(t[two], q[two]))
         if five.any():
-            self._put(fields, sel, five, if97.region5(t[five], q[five]))
+            self._put_props(fields, sel, five, if97.region5(t[five], q[five]))
         if three.any():
             self._put_region3(fields, sel, three, t, q, "liquid", sub)
         self._report(r, sel, sub)
 
-    def _ice(self, T, p, sel, r: Result, fields) -> None:
-        t, q = T[sel], p[sel]
+    def _ice(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(t > TT * (1 + LINE_TOL), OUT_OF_RANGE, "ice Ih above 273.16 K is outside IAPWS R10-06; got {} K", t)
         sub.flag(q > ICE_IH_P_MAX, OUT_OF_RANGE, "ice Ih above 210 MPa is outside IAPWS R10-06; got {} Pa", q)
@@ -337,13 +280,11 @@ class Water(Substance):
                      lambda tt, qq: f"ice Ih at {fmt(tt)} K and {fmt(qq)} Pa is above its melting temperature", t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         if ok.any():
-            self._put(fields, sel, ok, ice_ih.properties(t[ok], q[ok]))
+            self._put_props(fields, sel, ok, ice_ih.properties(t[ok], q[ok]))
         self._report(r, sel, sub)
 
-    def _put(self, fields, sel, part, props: Props) -> None:
-        index = np.flatnonzero(sel)[part]
-        for name, value in zip(Props._fields, _molar(props)):
-            fields[name].flat[index] = value
+    def _put_props(self, fields, sel, part, props: Props) -> None:
+        self._put(fields, sel, part, _molar(props)._asdict())
 
     def _put_region3(self, fields, sel, part, t, q, branch: str, sub: Result) -> None:
         rho = if97_region3.density(t[part], q[part], branch)
@@ -353,14 +294,7 @@ class Water(Substance):
         good = part.copy()
         good[part] = ~np.isnan(rho)
         if good.any():
-            self._put(fields, sel, good, if97_region3.properties_rho(rho[~np.isnan(rho)], t[good]))
-
-    @staticmethod
-    def _report(r: Result, sel: np.ndarray, sub: Result) -> None:
-        if sub.problems is not None:
-            problems = np.full(sel.shape, None, dtype=object)
-            problems[sel] = sub.problems
-            r.adopt(problems)
+            self._put_props(fields, sel, good, if97_region3.properties_rho(rho[~np.isnan(rho)], t[good]))
 
     # --- description --------------------------------------------------------------------
     def info(self) -> dict[str, InfoItem]:
