@@ -9,13 +9,14 @@ the rest of an array.
 from __future__ import annotations
 
 import math
-from typing import Any, NamedTuple
+from functools import lru_cache
+from typing import Any, Mapping, NamedTuple
 
 import numpy as np
 
 from .. import units
 from ..errors import NA, NUM, VALUE, CellError
-from ..substances import Substance, lookup
+from ..substances import Substance, define, lookup
 from ..substances.result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Problem, Result, fmt, indices
 
 _CODES = {OUT_OF_RANGE: NUM, NOT_AVAILABLE: NA, BAD_ARGUMENT: VALUE}
@@ -59,15 +60,33 @@ def _named(error: CellError, name: str) -> CellError:
 
 
 def substance(value: Any) -> Substance:
+    """A substance from its name, or from a definition: a range of (field, value[, unit]) rows or a mapping."""
     if isinstance(value, CellError):
         raise CallError(*_named(value, "substance"))
+    if isinstance(value, Mapping):
+        return _defined(tuple((k, v if isinstance(v, tuple) else (v, None)) for k, v in value.items()))
+    if isinstance(value, (list, tuple)):
+        value = np.array(value, dtype=object)
     if isinstance(value, np.ndarray):
+        if value.ndim == 2 and value.shape[1] >= 2 and value.shape[0] >= 2:
+            rows = tuple((row[0], (row[1], row[2] if len(row) > 2 else None)) for row in value.tolist()
+                         if row[0] is not None and str(row[0]).strip())
+            return _defined(rows)
         if value.size != 1:
-            raise CallError(VALUE, "substance must be a single name, not a range")
+            raise CallError(VALUE, "substance must be a name, or a definition range of (field, value[, unit]) rows")
         value = value.flat[0]
     if value is None or (isinstance(value, str) and not value.strip()):
         raise CallError(VALUE, "substance is blank")
     return model_call(lookup, value)
+
+
+@lru_cache(maxsize=64)
+def _defined(rows: tuple) -> Substance:
+    # a sheet passes the same definition range on every call: build its model once
+    for _, (value, unit) in rows:
+        if isinstance(value, CellError):
+            raise CallError(value.code, f"substance definition: {value.reason or value.code}")
+    return model_call(define, dict(rows))
 
 
 def text(value: Any, name: str, default: str | None = None) -> str | None:

@@ -552,22 +552,27 @@ def SUBSTANCES():
 def SUBSTANCE_INFO(substance, field=None):
     """A field of the substance's definition: data, the model behind a quantity, its range and source.
 
-    With no field, spills all fields as rows of (field, value, unit, source).
+    With no field, spills the definition as rows of (field, value, unit, source); for
+    substances other than water those rows, pasted into a sheet, serve as a user-defined
+    substance argument. Any field with "_source" appended gives that field's source.
 
     Arguments:
     substance: name of the substance, e.g. "water"
-    field: e.g. "molar_mass", "critical_density", "boil_model", "melt_range", "liquid_model"
+    field: e.g. "molar_mass", "critical_density", "boil_model", "melt_range", "liquid_model", "molar_mass_source"
 
     >>> SUBSTANCE_INFO("water", "critical_density")
     322.0
+    >>> SUBSTANCE_INFO("water", "boil_model")
+    'IAPWS-IF97 region 4 saturation equation'
     """
     sub = cells.substance(substance)
-    info = sub.info()
     key = cells.text(field, "field")
     if key is None:
-        rows = [[name, item.value, item.unit, item.source] for name, item in info.items()]
-        return np.array(rows, dtype=object)
-    item = info.get(key.lower().replace(" ", "_"))
-    if item is None:
-        return CellError(NA, f"unknown field '{key}' for {sub.name}; SUBSTANCE_INFO(\"{sub.name}\") lists the fields")
-    return item.value
+        return np.array([list(row) for row in sub.definition_rows()], dtype=object)
+    info = sub.info()
+    name = key.lower().replace(" ", "_")
+    if name in info:
+        return info[name].value
+    if name.endswith("_source") and name[: -len("_source")] in info:
+        return info[name[: -len("_source")]].source or CellError(NA, f"no source recorded for '{key[:-7]}'")
+    return CellError(NA, f"unknown field '{key}' for {sub.name}; SUBSTANCE_INFO(\"{sub.name}\") lists the fields")

@@ -38,6 +38,10 @@ _FLUID_WORDS = {
 }
 
 
+_FIELD_NAMES = {"v": "the molar volume", "alpha": "the thermal expansivity", "kappa": "the compressibility",
+                "g": "the chemical potential", "h": "the enthalpy"}
+
+
 class FixedPoint(NamedTuple):
     temperature: float  # K
     pressure: float  # Pa
@@ -157,7 +161,12 @@ class Substance:
             r.adopt(problems)
 
     def info(self) -> dict[str, InfoItem]:
+        """Every field SUBSTANCE_INFO can name: data, and for each quantity its model and range."""
         raise NotImplementedError
+
+    def definition_rows(self) -> list[tuple]:
+        """(field, value, unit, source) rows of the substance's data, as SUBSTANCE_INFO spills them."""
+        return [(name, item.value, item.unit, item.source) for name, item in self.info().items()]
 
     # --- phase words ------------------------------------------------------------------
     def phase_code(self, word: str | None) -> int:
@@ -183,7 +192,12 @@ class Substance:
     # --- quantities derived from the above ---------------------------------------------
     def _one_property(self, T, p, phase, field: str) -> Result:
         props, result = self.props(T, p, phase)
-        result.fill(getattr(props, field))
+        values = getattr(props, field)
+        # a model leaves NaN where it has no formulation for the quantity (a solid's expansivity
+        # without data, for one); say so rather than pass a NaN on
+        result.flag(np.isnan(values), NOT_AVAILABLE, f"{_FIELD_NAMES[field]} is not modelled for this phase of "
+                    f"{self.name}")
+        result.fill(values)
         return result
 
     def molar_volume(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray | int = STABLE) -> Result:

@@ -474,6 +474,12 @@ class GeneralSubstance(Substance):
             items[f"{key}_range"] = InfoItem(valid, "", "")
         return items
 
+    def definition_rows(self) -> list[tuple]:
+        """The definition's own fields only, so that the rows paste back as a user definition."""
+        d = self.definition
+        return [(name, value, unit, d.sources.get(name, d.sources.get(name.split(".")[0], "")))
+                for name, value, unit in d.fields()]
+
     def _models(self) -> dict[str, tuple[str, str]]:
         boil = ("published " + self._boil["form"] + " equation" + (", corresponding states (Lee-Kesler) outside "
                 f"{fmt(self._boil_range[0])} K to {fmt(self._boil_range[1])} K" if self._boil_range != (self.t_low, self.tc) else "")
