@@ -77,3 +77,41 @@ def solve_bracketed(
         last = np.where(np.abs(fa) < np.abs(fb), a, b)
         root = np.where(finished, root, last)
     return np.where(valid, root, np.nan)
+
+
+class MonotoneInverse:
+    """x(y) for a smooth, strictly monotone y = f(x) on [lo, hi], fast for one value or many.
+
+    A table of f built once gives a first estimate by linear interpolation; Newton
+    steps with the table's local slope then polish it to rounding. Values of y
+    outside f's range give NaN.
+
+    >>> inverse = MonotoneInverse(np.exp, 0.0, 2.0)
+    >>> float(inverse(np.exp(1.234)))
+    1.234
+    """
+
+    def __init__(self, f: Callable[[np.ndarray], np.ndarray], lo: float, hi: float, points: int = 4097, steps: int = 2):
+        self.f, self.steps = f, steps
+        x = np.linspace(lo, hi, points)
+        y = np.asarray(f(x), dtype=float)
+        if y[0] > y[-1]:  # interpolation wants increasing y
+            x, y = x[::-1], y[::-1]
+        self.x, self.y = x, y
+        self.slope = np.gradient(x, y)  # dx/dy at the nodes
+
+    def __call__(self, y: np.ndarray | float) -> np.ndarray:
+        y = np.asarray(y, dtype=float)
+        inside = (y >= self.y[0]) & (y <= self.y[-1])
+        with np.errstate(all="ignore"):
+            x = np.interp(y, self.y, self.x)
+            slope = np.interp(y, self.y, self.slope)
+            for _ in range(self.steps):
+                step = (self.f(x) - y) * slope
+                x = x - step
+            # a kink in f (where two equations meet) can stall Newton: bracket those elements
+            slow = inside & ~(np.abs(step) <= 1e-13 * np.abs(x))
+            if slow.any():
+                k = np.clip(np.searchsorted(self.y, y[slow]), 1, len(self.y) - 1)
+                x[slow] = solve_bracketed(lambda t: self.f(t) - y[slow], self.x[k - 1], self.x[k], xtol=1e-15)
+        return np.where(inside, x, np.nan)

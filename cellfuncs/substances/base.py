@@ -150,7 +150,7 @@ class Substance:
         """Store values of the elements ``part`` of the selection ``sel`` in the full-shape fields."""
         index = np.flatnonzero(sel)[part]
         for name, value in values.items():
-            fields[name].flat[index] = np.broadcast_to(value, index.shape)
+            fields[name].flat[index] = value if np.shape(value) == index.shape else np.broadcast_to(value, index.shape)
 
     @staticmethod
     def _report(r: Result, sel: np.ndarray, sub: Result) -> None:

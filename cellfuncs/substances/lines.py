@@ -23,7 +23,7 @@ _TEMPERATURE_OFFSETS = {"K": 0.0, "degC": 273.15}
 def _ancillary(line, T):
     # ln(p/pc) = (Tc/T) sum n_i (1 - T/Tc)^t_i
     tau = np.maximum(1.0 - T / line["Tc"], 0.0)  # the line ends at the critical point
-    total = sum(n * tau**t for n, t in zip(line["n"], line["t"]))
+    total = (np.asarray(line["n"]) * tau[..., None] ** np.asarray(line["t"])).sum(axis=-1)
     return line["pc"] * np.exp(line["Tc"] / T * total)
 
 

@@ -29,9 +29,11 @@ potentials are equal on each line.
 
 from __future__ import annotations
 
+from functools import cached_property
+
 import numpy as np
 
-from ...numerics import solve_bracketed
+from ...numerics import MonotoneInverse
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..lines import line_pressure
 from ..phase_map import LINE_TOL, classify, state_table
@@ -99,10 +101,12 @@ class GeneralSubstance(Substance):
 
     def _p_boil(self, T: np.ndarray) -> np.ndarray:
         T = np.asarray(T, float)
-        cs = self._corresponding(T)
         if self._boil is None:
-            return cs
+            return self._corresponding(T)
         lo, hi = self._boil_range
+        if np.all((T >= lo) & (T <= hi)):  # the usual case: the published line alone
+            return line_pressure(self._boil, T)
+        cs = self._corresponding(T)
         published = line_pressure(self._boil, np.clip(T, lo, hi))
         # continue past the published ends by corresponding states, matched at the ends and
         # (above the top) blended to reach the critical pressure at the critical temperature
@@ -110,9 +114,18 @@ class GeneralSubstance(Substance):
         above = cs * (self._match_hi + (1.0 - self._match_hi) * weight)
         return np.where(T < lo, cs * self._match_lo, np.where(T > hi, above, published))
 
+    @cached_property
+    def _p_low(self) -> float:
+        """Pressure at the low end of the boiling line (the triple point where there is one)."""
+        return float(self._p_boil(np.array(self.t_low)))
+
+    @cached_property
+    def _boil_inverse(self) -> MonotoneInverse:
+        # ln p is nearly linear in 1/T (Clausius-Clapeyron): the table's best variable
+        return MonotoneInverse(lambda u: np.log(self._p_boil(1.0 / u)), 1.0 / self.tc, 1.0 / self.t_low)
+
     def _t_boil(self, p: np.ndarray) -> np.ndarray:
-        target = np.log(np.asarray(p, float))
-        return solve_bracketed(lambda T: np.log(self._p_boil(T)) - target, self.t_low, self.tc)
+        return 1.0 / self._boil_inverse(np.log(np.asarray(p, float)))
 
     def _setup_triple(self) -> None:
         tt = self.definition.values.get("triple_point_temperature")
@@ -160,8 +173,11 @@ class GeneralSubstance(Substance):
         if self._melt is None:
             tt, pt = self.triple
             return tt * np.exp((np.asarray(p, float) - pt) / self._melt_slope)
-        lo, hi = self._melt_range
-        return solve_bracketed(lambda T: self._p_melt(T) - p, lo, hi)
+        return self._melt_inverse(p)
+
+    @cached_property
+    def _melt_inverse(self) -> MonotoneInverse:
+        return MonotoneInverse(self._p_melt, *self._melt_range)
 
     def _setup_sublime(self) -> None:
         v = self.definition.values
@@ -191,8 +207,12 @@ class GeneralSubstance(Substance):
         tt, pt = self.triple
         if self._sub is None:
             return 1.0 / (1.0 / tt - R / self._sub_enthalpy * np.log(np.asarray(p, float) / pt))
-        target = np.log(np.asarray(p, float))
-        return solve_bracketed(lambda T: np.log(self._p_sub(T)) - target, *self._sub_range)
+        return 1.0 / self._sub_inverse(np.log(np.asarray(p, float)))
+
+    @cached_property
+    def _sub_inverse(self) -> MonotoneInverse:
+        lo, hi = self._sub_range
+        return MonotoneInverse(lambda u: np.log(self._p_sub(1.0 / u)), 1.0 / hi, 1.0 / lo)
 
     # --- boundaries -------------------------------------------------------------------
     def _missing(self, r: Result, line: str, why: str) -> None:
@@ -213,7 +233,7 @@ class GeneralSubstance(Substance):
 
     def boil_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
-        p_low = float(self._p_boil(np.array(self.t_low)))
+        p_low = self._p_low
         r.flag(p < p_low * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the " + (
             "triple-point pressure" if self.has_triple else "lowest pressure of the vapour-pressure line")
                + f" of {self.name} ({fmt(p_low)} Pa)", p, see="sublime" if self.has_triple else "")
@@ -318,7 +338,7 @@ class GeneralSubstance(Substance):
         if not self.has_triple:
             r.flag(T < self.t_low, OUT_OF_RANGE, "{} K is below the lowest temperature of the vapour-pressure line of "
                    + f"{self.name} ({fmt(self.t_low)} K)", T)
-        p_low = float(self._p_boil(np.array(self.t_low)))
+        p_low = self._p_low
         t_boil = np.where(high & (p >= p_low), self.tc, -np.inf)
         sat = high & (p >= p_low) & (p <= self.pc)
         if sat.any():
@@ -343,7 +363,10 @@ class GeneralSubstance(Substance):
         return {LIQUID: self._liquid, VAPOR: self._vapor, FLUID: self._fluid, SOLID: self._solid}
 
     def _store(self, fields, sel, r: Result, sub: Result, **values) -> None:
-        ok = np.broadcast_to(sub.ok, sub.values.shape)
+        if sub.problems is None:
+            self._put(fields, sel, slice(None), values)
+            return
+        ok = np.equal(sub.problems, None)
         self._put(fields, sel, ok, {name: np.broadcast_to(v, ok.shape)[ok] for name, v in values.items()})
         self._report(r, sel, sub)
 
