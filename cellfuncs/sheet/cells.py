@@ -66,7 +66,7 @@ def substance(value: Any) -> Substance:
     if isinstance(value, Mapping):
         return _defined(tuple((k, v if isinstance(v, tuple) else (v, None)) for k, v in value.items()))
     if isinstance(value, (list, tuple)):
-        value = np.array(value, dtype=object)
+        value = _as_array(value)
     if isinstance(value, np.ndarray):
         if value.ndim == 2 and value.shape[1] >= 2 and value.shape[0] >= 2:
             rows = tuple((row[0], (row[1], row[2] if len(row) > 2 else None)) for row in value.tolist()
