@@ -74,7 +74,27 @@ SCALAR_CALLS = {
     "CRITICAL_POINT": ('CRITICAL_POINT("water", "P", "MPa")', None),
     "PHASE_LINE (100 rows)": ('PHASE_LINE("water", "boil", 0.01, 370, 100, "degC", "bar")', None),
     "SUBSTANCE_INFO": ('SUBSTANCE_INFO("water", "molar_mass")', None),
+    "BOIL_TEMP propane": ('BOIL_TEMP("propane", 5, "bar", "degC")', 50),
+    "STABLE_PHASE propane": ('STABLE_PHASE("propane", 25, 5, "degC", "bar")', 150),
+    "MOLAR_VOLUME propane": ('MOLAR_VOLUME("propane", 25, 5, "", "degC", "bar", "L/mol")', 150),
+    "MOLAR_VOLUME propane liquid": ('MOLAR_VOLUME("propane", 25, 15, "liquid", "degC", "bar", "L/mol")', None),
 }
+
+
+def vectorised_cubic(repeat: int) -> None:
+    import cellfuncs
+
+    n = 100_000
+    p = np.linspace(1e4, 4e6, n)
+    T = np.linspace(230.0, 360.0, n)
+    P = np.full(n, 5e5)
+    print(f"Propane (Peng-Robinson / Rackett-Tait model) over {n:,} states")
+    for name, fn in (("BOIL_TEMP", lambda: cellfuncs.BOIL_TEMP("propane", p)),
+                     ("STABLE_PHASE", lambda: cellfuncs.STABLE_PHASE("propane", T, P)),
+                     ("MOLAR_VOLUME", lambda: cellfuncs.MOLAR_VOLUME("propane", T, P))):
+        fn()
+        seconds = _median_seconds(fn, 1, repeat)
+        print(f"  {name:14s} {seconds * 1e3:8.1f} ms  ({seconds / n * 1e9:6.0f} ns per state)")
 
 
 def scalar(repeat: int) -> None:
@@ -114,9 +134,15 @@ def main() -> None:
     repeat = 3 if args.quick else 7
     vectorised(repeat)
     print()
+    vectorised_cubic(repeat)
+    print()
     scalar(repeat)
     print()
     cold_start(repeat)
+    print()
+    import recalc  # benchmarks/recalc.py: workbook recalculation against the formulas library
+
+    recalc.main(1 if args.quick else 3)
 
 
 if __name__ == "__main__":

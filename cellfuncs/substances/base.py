@@ -260,9 +260,11 @@ class Substance:
     def saturation_margin(self, T: np.ndarray, p: np.ndarray, sign: float) -> Result:
         """sign * (T_boil(p) - T): subcooling for sign = +1, superheat for sign = -1."""
         t_boil = self.boil_temperature(p)
-        out = Result.joined(t_boil, Result(np.full(np.shape(T), np.nan)))
-        out.fill(sign * (t_boil.values - T))
-        return out
+        values = sign * (t_boil.values - T)  # flagged elements stay NaN
+        if values.shape != t_boil.values.shape:
+            t_boil = Result.joined(t_boil, Result(np.full(np.shape(T), np.nan)))
+        t_boil.values = np.asarray(values, dtype=float)
+        return t_boil
 
     def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
         """Vapour fraction after liquid at (T1, p1) expands at constant enthalpy to saturation at p2.

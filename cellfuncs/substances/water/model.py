@@ -74,6 +74,25 @@ _MELT_P_NEAR = ice_lines.line_range("V")[1][1]
 _LABELS, _STATE_PHASE = state_table(SOLIDS)
 
 
+def _lowest_branches() -> tuple[np.ndarray, np.ndarray]:
+    """Temperature edges and, between them, the ice whose melting line has the lowest pressure.
+
+    searchsorted(edges, T) indexes the second array; -1 (then SOLID - 1) marks no line.
+    """
+    edges, ices = [], []
+    for k, ice in enumerate(ice_lines.ICES):
+        (t_lo, t_hi), _ = ice_lines.line_range(ice)
+        if not edges:
+            edges.append(t_lo * (1 - LINE_TOL))
+        if t_hi * (1 + LINE_TOL) > edges[-1]:  # ice III lies under ice Ih's range: never the lowest
+            edges.append(t_hi * (1 + LINE_TOL))
+            ices.append(k)
+    return np.array(edges), np.array([-1] + ices + [-1])
+
+
+_LOWEST_EDGES, _LOWEST_ICE = _lowest_branches()
+
+
 def _molar(p: Props) -> Props:
     return Props(p.v * M, p.h * M, p.s * M, p.g * M, p.cp * M, p.alpha, p.kappa)
 
@@ -109,21 +128,16 @@ class Water(Substance):
         r = Result.like(T)
         if solid is None:
             # the lowest melting pressure at T: the first line (in order of pressure) that reaches T
-            codes = np.full(np.shape(T), -1)
-            for k in reversed(range(len(ice_lines.ICES))):
-                (t_lo, t_hi), _ = ice_lines.line_range(ice_lines.ICES[k])
-                codes = np.where((T >= t_lo * (1 - LINE_TOL)) & (T <= t_hi * (1 + LINE_TOL)), SOLID + k, codes)
-            r.flag(codes < 0, OUT_OF_RANGE, "{} K is outside the melting lines of water (251.165 K to 715 K)", T)
+            codes = SOLID + _LOWEST_ICE[np.searchsorted(_LOWEST_EDGES, T)]
+            r.flag(codes < SOLID, OUT_OF_RANGE, "{} K is outside the melting lines of water (251.165 K to 715 K)", T)
         else:
             ice = ice_lines.ICES[solid - SOLID]
             (t_lo, t_hi), _ = ice_lines.line_range(ice)
             codes = np.full(np.shape(T), solid)
             r.flag((T < t_lo * (1 - LINE_TOL)) | (T > t_hi * (1 + LINE_TOL)), OUT_OF_RANGE,
                    "{} K is outside the ice " + ice + f" melting line ({fmt(t_lo)} K to {fmt(t_hi)} K)", T)
-        for k, ice in enumerate(ice_lines.ICES):
-            here = codes == SOLID + k
-            if np.any(here & np.broadcast_to(r.ok, np.shape(T))):
-                r.fill(ice_lines.melting_pressure(T, ice), where=here)
+        for code in np.unique(codes[np.broadcast_to(r.ok, np.shape(T))]):
+            r.fill(ice_lines.melting_pressure(T, ice_lines.ICES[code - SOLID]), where=codes == code)
         return r, codes
 
     def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
