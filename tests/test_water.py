@@ -703,7 +703,7 @@ def test_one_bad_element_never_blanks_the_rest(name, position):
 
 def test_saturation_margins_broadcast_a_column_of_temperatures_against_a_row_of_pressures():
     # Tsat(1 atm) = 99.9743 degC (IAPWS-IF97 region 4, as BOIL_TEMP gives it)
-    out = cellfuncs.SUBCOOLING("water", [[90.0], [100.0]], [[1.0, 2.0]], "degC", "atm")
+    out = SUBCOOLING("water", [[90.0], [100.0]], [[1.0, 2.0]], "degC", "atm")
     assert out.shape == (2, 2)
-    t_sat = cellfuncs.BOIL_TEMP("water", [[1.0, 2.0]], "atm", "degC")
+    t_sat = BOIL_TEMP("water", [[1.0, 2.0]], "atm", "degC")
     assert np.allclose(out.astype(float), t_sat - np.array([[90.0], [100.0]]), rtol=1e-14)
