@@ -1,4 +1,4 @@
-"""The ``cellfuncs`` command: evaluate formulas, list the functions.
+"""The ``cellfuncs`` command: evaluate formulas, list the functions, recalculate workbooks.
 
 Exit status: 0 clean; 1 an error value in a result; 2 a usage problem or a
 formula that does not parse; 3 an internal failure.
@@ -40,6 +40,16 @@ def _parser() -> argparse.ArgumentParser:
     evaluate.add_argument("formulas", nargs="+", metavar="FORMULA")
     evaluate.add_argument("--json", action="store_true", help="print a JSON list of {formula, value, error}")
     commands.add_parser("functions", help="list the sheet functions with their signatures")
+    from .workbook import command as recalc_command
+
+    recalc = commands.add_parser(
+        "recalc",
+        help="recalculate workbooks (.xlsx/.xlsm) without Excel",
+        description=recalc_command.DESCRIPTION,
+        epilog=recalc_command.LIMITS + "\n\n" + CAUTION,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    recalc_command.add_arguments(recalc)
     return parser
 
 
@@ -130,6 +140,10 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         if args.command == "eval":
             return _evaluate(args.formulas, args.json)
+        if args.command == "recalc":
+            from .workbook.command import run
+
+            return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance)
         return _functions()
     except Exception as exc:  # an internal failure, not a cell error
         print(f"cellfuncs: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)

@@ -1,0 +1,607 @@
+"""Recalculation: every formula cell evaluated in dependency order, spills placed.
+
+Cells of one formula shape that stand one below the other in a column are evaluated
+as one call on whole columns when the formula acts element by element (the pack's
+functions broadcast); an element that comes out as an error is evaluated again on its
+own, so its value and reason are exactly a single cell's.
+
+Decisions:
+
+- A circular reference gives ``#CALC!`` in every cell of the loop, with a reason naming
+  it (``circular reference: Sheet1!A1 -> Sheet1!B1 -> Sheet1!A1``); cells that use
+  those cells get the error in turn.
+- A formula whose result is an array spills (Excel 365 dynamic arrays) unless a cell of
+  the spill range holds a value or a formula or another spill: then ``#SPILL!``.
+  A legacy array formula ({=...}) fills its stored range, as Excel does.
+- A formula whose value is a blank cell shows 0, as in Excel.
+- References to whole columns or rows are cut to the sheet's used range.
+
+>>> from cellfuncs.workbook.model import Book, Sheet
+>>> from cellfuncs.workbook.sheetxml import FormulaXml, SheetScan
+>>> scan = SheetScan("s", values={(1, 1): 2.0}, formulas={(1, 2): FormulaXml("A1*3", "normal", None, None, None, None)})
+>>> r = Recalc(Book("wb", [Sheet("S", 0, "s", scan)], {}, None, None), {})
+>>> r.run(); r.values[0][(1, 2)]
+6.0
+"""
+
+from __future__ import annotations
+
+import bisect
+from dataclasses import dataclass
+from typing import Any, Callable, Iterator, Mapping
+
+import numpy as np
+
+from ..errors import CALC, NA, NAME, REF, SPILL, CellError
+from ..formula import Value, evaluate
+from .graph import components, cycle
+from .model import Book
+from .refs import MAX_COL, MAX_ROW, Area, address, area, shifted
+from .templates import Template, Templates, build
+
+MAX_PASSES = 4
+_PREFIXES = ("_XLUDF.", "_XLFN.", "_XLWS.")
+
+
+@dataclass(slots=True)
+class FormulaCell:
+    sheet: int
+    row: int
+    col: int
+    template: Template
+    kind: str  # "normal", "dynamic" (an Excel 365 dynamic array) or "legacy" (an {=array} formula)
+    old_area: Area | None  # the stored range of an array formula
+
+
+def quoted(sheet: str) -> str:
+    """A sheet name as a formula writes it.
+
+    >>> quoted("Data"), quoted("My data"), quoted("it's")
+    ('Data', "'My data'", "'it''s'")
+    """
+    plain = sheet.replace("_", "").replace(".", "").isalnum() and not sheet[0].isdigit()
+    return sheet if plain else "'" + sheet.replace("'", "''") + "'"
+
+
+class _Context:
+    """The formula engine's view of the workbook from one cell (``dr``, ``dc``: the cell's
+    offset from its template's cell)."""
+
+    def __init__(self, engine: Recalc):
+        self.engine = engine
+        self.functions = engine.functions
+        self.sheet = 0
+        self.dr = 0
+        self.dc = 0
+        self.resolving: set = set()
+
+    def function(self, name: str) -> Callable[..., Any] | None:
+        fn = self.functions.get(name)
+        if fn is None:
+            for prefix in _PREFIXES:
+                if name.startswith(prefix):
+                    return self.function(name[len(prefix):])
+        return fn
+
+    def _area(self, sheet: str | None, ref: str) -> tuple[int, Area] | CellError:
+        s = self.engine.sheet_number(sheet, self.sheet)
+        if type(s) is CellError:
+            return s
+        a = area(ref)
+        if self.dr or self.dc:
+            a = shifted(a, self.dr, self.dc)
+            if a is None:
+                return CellError(REF, f"{ref} moved by {self.dr} rows and {self.dc} columns is off the sheet")
+        return s, a
+
+    def reference(self, sheet: str | None, ref: str) -> Value:
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return found
+        s, a = found
+        values = self.engine.values[s]
+        if a.r1 == a.r2 and a.c1 == a.c2:
+            return values.get((a.r1, a.c1))
+        return self.engine.block(s, a)
+
+    def name(self, text: str) -> Value:
+        engine = self.engine
+        key = engine.resolve_name(self.sheet, text)
+        if key is None:
+            if "|" in text:
+                return CellError(REF, "a DDE link (another program's data) is not supported")
+            if "[" in text:
+                return CellError(REF, f"{text} is an external reference (another workbook)")
+            return CellError(NAME, f"unknown name {text}")
+        t = engine.name_template(key)
+        if t.error is not None:
+            return t.error
+        if key in self.resolving:
+            return CellError(CALC, f"circular reference: the name {text} refers to itself")
+        self.resolving.add(key)
+        offset = self.dr, self.dc
+        self.dr = self.dc = 0  # a name's references are as written
+        try:
+            return evaluate(t.ast, self)
+        finally:
+            self.dr, self.dc = offset
+            self.resolving.discard(key)
+
+
+class _Column(_Context):
+    """The view from ``n`` cells of one column at once: a relative reference gives the
+    n x 1 column of values the cells would each see (numbers as a float array)."""
+
+    n = 1
+
+    def reference(self, sheet: str | None, ref: str) -> Value:
+        s = self.engine.sheet_number(sheet, self.sheet)
+        if type(s) is CellError:
+            return s
+        a = area(ref)
+        fixed_row, fixed_col = a.fixed[0], a.fixed[1]
+        col = a.c1 if fixed_col else a.c1 + self.dc
+        get = self.engine.values[s].get
+        if fixed_row:
+            return get((a.r1, col))
+        start = a.r1 + self.dr
+        column = [get((r, col)) for r in range(start, start + self.n)]
+        for x in column:
+            if type(x) is not float:
+                out = np.empty((self.n, 1), dtype=object)
+                for i, x in enumerate(column):
+                    out[i, 0] = x
+                return out
+        return np.array(column, dtype=float).reshape(self.n, 1)
+
+
+def _legacy_fill(value: Value, shape: tuple[int, int]) -> np.ndarray:
+    """The values an {=array} formula shows in its range: a single row or column repeats,
+    places beyond the result are #N/A."""
+    h, w = shape
+    out = np.empty(shape, dtype=object)
+    if type(value) is not np.ndarray:
+        out.fill(value)
+        return out
+    vh, vw = value.shape
+    for i in range(h):
+        for j in range(w):
+            ii, jj = (0 if vh == 1 else i), (0 if vw == 1 else j)
+            out[i, j] = value[ii, jj] if ii < vh and jj < vw else CellError(NA, "beyond the array formula's result")
+    return out
+
+
+class Recalc:
+    """Recalculation of one workbook: :meth:`run` fills :attr:`values` (per sheet,
+    (row, column) -> value), :attr:`result` (per formula cell) and :attr:`spills`."""
+
+    def __init__(self, book: Book, functions: Mapping[str, Callable[..., Any]],
+                 progress: Callable[[int, int], None] | None = None):
+        self.book = book
+        self.functions = dict(functions)
+        self.progress = progress
+        self._sheet_numbers = {s.name.lower(): s.index for s in book.sheets if s.scan is not None}
+        self._sheet_names = {s.name.lower() for s in book.sheets}
+        self.templates = Templates()
+        self._name_templates: dict = {}
+        self._name_targets: dict = {}
+        n = len(book.sheets)
+        self.cells: list[FormulaCell] = []
+        self.at: list[dict[tuple[int, int], int]] = [{} for _ in range(n)]
+        self.constants: list[dict] = [{} for _ in range(n)]
+        self.stored: list[dict] = [{} for _ in range(n)]  # cached values inside stored array ranges
+        self.fixed: list[set] = [set() for _ in range(n)]  # cells of {=array} formula ranges: never spilled into
+        self._load()
+        self._columns = self._column_index()
+        self.values: list[dict] = []
+        self.result: list[Value] = []
+        self.spills: dict[int, Area] = {}
+        self.blocked: set[int] = set()  # formula cells whose spill was blocked (#SPILL!)
+
+    # ---- reading -------------------------------------------------------------------
+    def _load(self) -> None:
+        dynamic = self.book.dynamic_cm
+        for sheet in self.book.sheets:
+            scan = sheet.scan
+            if scan is None:
+                continue
+            s = sheet.index
+            masters = {f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
+            arrays = []
+            for (row, col), f in scan.formulas.items():
+                if f.kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
+                    if f.cached is not None:
+                        self.constants[s][(row, col)] = f.cached
+                    continue
+                text, base = f.text, (row, col)
+                if f.kind == "shared" and not f.text:
+                    base = masters.get(f.si)
+                    text = scan.formulas[base].text if base is not None else None
+                if text is None:
+                    template = Template(None, CellError(REF, "a shared formula whose first cell is missing"),
+                                        row, col, (), (), False)
+                elif base == (row, col):
+                    template = self.templates.get(text, row, col)
+                else:  # a shared formula's other cells: the first cell's text, moved
+                    template = self.templates.get(text, *base)
+                old = None
+                kind = "normal"
+                if f.kind == "array":
+                    old = area(f.ref) if f.ref else None
+                    old = old if old is not None and old.r1 == row and old.c1 == col else Area(row, col, row, col)
+                    kind = "dynamic" if dynamic is not None and f.cm == dynamic else "legacy"
+                    arrays.append((old, kind))
+                self.at[s][(row, col)] = len(self.cells)
+                self.cells.append(FormulaCell(s, row, col, template, kind, old))
+            inside = set()
+            for a, kind in arrays:
+                cells = {(r, c) for r in range(a.r1, a.r2 + 1) for c in range(a.c1, a.c2 + 1)}
+                inside |= cells
+                if kind == "legacy":
+                    self.fixed[s] |= cells
+            for key, v in scan.values.items():
+                if key in inside:
+                    self.stored[s][key] = v
+                elif key not in self.at[s]:
+                    self.constants[s][key] = v
+
+    def _column_index(self) -> list[dict[int, tuple[list[int], list[int]]]]:
+        index: list[dict] = [{} for _ in self.book.sheets]
+        for fi, fc in enumerate(self.cells):
+            rows, fis = index[fc.sheet].setdefault(fc.col, ([], []))
+            rows.append(fc.row)
+            fis.append(fi)
+        for cols in index:
+            for col, (rows, fis) in cols.items():
+                order = sorted(range(len(rows)), key=rows.__getitem__)
+                cols[col] = ([rows[k] for k in order], [fis[k] for k in order])
+        return index
+
+    # ---- names and sheets ------------------------------------------------------------
+    def sheet_number(self, name: str | None, current: int) -> int | CellError:
+        if name is None:
+            return current
+        s = self._sheet_numbers.get(name.lower())
+        if s is not None:
+            return s
+        if name.startswith("["):
+            return CellError(REF, f"{quoted(name)}! is an external reference (another workbook)")
+        if name.lower() in self._sheet_names:
+            return CellError(REF, f"sheet {name} has no cells (a chart sheet)")
+        return CellError(REF, f"there is no sheet named {name}")
+
+    def resolve_name(self, sheet: int, text: str) -> tuple[int | None, str] | None:
+        names = self.book.names
+        if "!" in text:
+            where, _, local = text.rpartition("!")
+            where = where[1:-1].replace("''", "'") if where.startswith("'") else where
+            s = self._sheet_numbers.get(where.lower())
+            local = local.upper()
+            if s is not None and (s, local) in names:
+                return s, local
+            return (None, local) if (None, local) in names else None
+        key = text.upper()
+        if (sheet, key) in names:
+            return sheet, key
+        return (None, key) if (None, key) in names else None
+
+    def name_template(self, key: tuple[int | None, str]) -> Template:
+        t = self._name_templates.get(key)
+        if t is None:
+            t = self._name_templates[key] = build(self.book.names[key], 1, 1)
+        return t
+
+    def _targets_of_name(self, sheet: int, text: str, seen: frozenset = frozenset()) -> list[tuple[int, Area]]:
+        memo = (sheet, text)
+        if not seen and memo in self._name_targets:
+            return self._name_targets[memo]
+        key = self.resolve_name(sheet, text)
+        out: list[tuple[int, Area]] = []
+        if key is not None and key not in seen:
+            t = self.name_template(key)
+            for name, a in t.refs:
+                s = self.sheet_number(name, sheet)
+                if type(s) is int:
+                    out.append((s, a))
+            for other in t.names:
+                out += self._targets_of_name(sheet, other, seen | {key})
+        if not seen:  # results inside a loop of names are partial
+            self._name_targets[memo] = out
+        return out
+
+    # ---- values ----------------------------------------------------------------------
+    def block(self, s: int, a: Area) -> np.ndarray:
+        """The values of area ``a`` of sheet ``s`` as a 2-D object array (whole columns
+        and rows cut to the used range)."""
+        r2, c2 = a.r2, a.c2
+        if r2 == MAX_ROW or c2 == MAX_COL:
+            rows, cols = self.extent[s]
+            r2, c2 = min(r2, max(rows, a.r1)), min(c2, max(cols, a.c1))
+        get = self.values[s].get
+        out = np.empty((r2 - a.r1 + 1, c2 - a.c1 + 1), dtype=object)
+        for i, r in enumerate(range(a.r1, r2 + 1)):
+            for j, c in enumerate(range(a.c1, c2 + 1)):
+                out[i, j] = get((r, c))
+        return out
+
+    # ---- the dependency graph --------------------------------------------------------
+    def _units(self, dissolved: set[int]) -> list[tuple[int, ...]]:
+        """Formula cells grouped: runs of one batchable shape down a column, else single cells."""
+        units: list[tuple[int, ...]] = []
+        cells = self.cells
+
+        def flush(run: list[int]) -> None:
+            if len(run) > 1 and self._in_bounds(run):
+                units.append(tuple(run))
+            else:
+                units.extend((fi,) for fi in run)
+
+        for cols in self._columns:
+            for rows, fis in cols.values():
+                run: list[int] = []
+                for row, fi in zip(rows, fis):
+                    fc = cells[fi]
+                    ok = fc.template.batchable and fc.kind == "normal" and fi not in dissolved
+                    if ok and run and cells[run[-1]].row == row - 1 and cells[run[-1]].template is fc.template:
+                        run.append(fi)
+                        continue
+                    flush(run)
+                    run = [fi] if ok else []
+                    if not ok:
+                        units.append((fi,))
+                flush(run)
+        return units
+
+    def _in_bounds(self, run: list[int]) -> bool:
+        first, last = self.cells[run[0]], self.cells[run[-1]]
+        t = first.template
+        for _, a in t.refs:
+            for fc in (first, last):
+                if shifted(a, fc.row - t.row, fc.col - t.col) is None:
+                    return False
+        return True
+
+    def _targets(self, unit: tuple[int, ...]) -> Iterator[tuple[int, Area]]:
+        first, last = self.cells[unit[0]], self.cells[unit[-1]]
+        t = first.template
+        for name, a in t.refs:
+            s = self.sheet_number(name, first.sheet)
+            if type(s) is not int:
+                continue
+            top = shifted(a, first.row - t.row, first.col - t.col)
+            bottom = shifted(a, last.row - t.row, last.col - t.col) if len(unit) > 1 else top
+            if top is None or bottom is None:
+                continue
+            yield s, Area(top.r1, top.c1, max(top.r2, bottom.r2), max(top.c2, bottom.c2))
+        for name in t.names:
+            yield from self._targets_of_name(first.sheet, name)
+
+    def _graph(self, assumed: dict[int, Area]) -> tuple[list[tuple[int, ...]], list[list[int]], list[list[int]]]:
+        """Units, what each needs, and the components in evaluation order."""
+        covered: list[dict[tuple[int, int], int]] = [{} for _ in self.book.sheets]
+        spill_list: list[list[tuple[Area, int]]] = [[] for _ in self.book.sheets]
+        for fi, a in assumed.items():
+            s = self.cells[fi].sheet
+            spill_list[s].append((a, fi))
+            for r in range(a.r1, a.r2 + 1):
+                for c in range(a.c1, a.c2 + 1):
+                    covered[s][(r, c)] = fi
+        dissolved: set[int] = set()
+        while True:
+            units = self._units(dissolved)
+            unit_of = [0] * len(self.cells)
+            for u, members in enumerate(units):
+                for fi in members:
+                    unit_of[fi] = u
+            adj = []
+            for u, members in enumerate(units):
+                needs = set()
+                for s, a in self._targets(members):
+                    self._formulas_in(s, a, unit_of, needs)
+                    if a.single:
+                        anchor = covered[s].get((a.r1, a.c1))
+                        if anchor is not None:
+                            needs.add(unit_of[anchor])
+                    else:
+                        for b, anchor in spill_list[s]:
+                            if a.meets(b):
+                                needs.add(unit_of[anchor])
+                adj.append(sorted(needs))
+            comps = components(adj)
+            looped = {fi for comp in comps if len(comp) > 1 or comp[0] in adj[comp[0]]
+                      for u in comp if len(units[u]) > 1 for fi in units[u]}
+            if not looped:
+                return units, adj, comps
+            dissolved |= looped  # a column evaluated at once cannot be part of a loop: take it cell by cell
+
+    def _formulas_in(self, s: int, a: Area, unit_of: list[int], needs: set[int]) -> None:
+        cols = self._columns[s]
+        if a.c2 - a.c1 + 1 <= len(cols):
+            candidates = ((c, cols[c]) for c in range(a.c1, a.c2 + 1) if c in cols)
+        else:
+            candidates = ((c, v) for c, v in cols.items() if a.c1 <= c <= a.c2)
+        for _, (rows, fis) in candidates:
+            lo, hi = bisect.bisect_left(rows, a.r1), bisect.bisect_right(rows, a.r2)
+            for k in range(lo, hi):
+                needs.add(unit_of[fis[k]])
+
+    # ---- evaluation --------------------------------------------------------------------
+    def run(self) -> None:
+        """Evaluate every formula; repeat while spills land where the order did not expect them."""
+        assumed = {fi: fc.old_area for fi, fc in enumerate(self.cells) if fc.old_area is not None}
+        graph = self._graph(assumed)
+        for _ in range(MAX_PASSES):
+            self._evaluate(*graph, assumed)
+            actual = dict(self.spills)
+            if actual == assumed:
+                return
+            assumed = actual
+            again = self._graph(assumed)
+            if again == graph:  # the same order constraints: the results stand
+                return
+            graph = again
+
+    def _reset(self, assumed: dict[int, Area]) -> None:
+        self.values = [dict(c) for c in self.constants]
+        self.claims: list[dict[tuple[int, int], int]] = [{} for _ in self.book.sheets]
+        self.result = [None] * len(self.cells)
+        self.spills = {}
+        self.blocked = set()
+        self.extent = []
+        for s in range(len(self.book.sheets)):
+            keys = list(self.constants[s]) + list(self.at[s])
+            self.extent.append([max((k[0] for k in keys), default=1), max((k[1] for k in keys), default=1)])
+        for fi, a in assumed.items():  # whole-column references reach spills not placed yet
+            self._grow(self.cells[fi].sheet, a)
+
+    def _grow(self, s: int, a: Area) -> None:
+        ext = self.extent[s]
+        ext[0], ext[1] = max(ext[0], a.r2), max(ext[1], a.c2)
+
+    def _evaluate(self, units: list[tuple[int, ...]], adj: list[list[int]], comps: list[list[int]],
+                  assumed: dict[int, Area]) -> None:
+        self._reset(assumed)
+        self._context = _Context(self)
+        self._column = _Column(self)
+        done, total, step = 0, len(self.cells), 0
+        for comp in comps:
+            if len(comp) > 1 or comp[0] in adj[comp[0]]:
+                self._loop(units, adj, comp)
+                done += len(comp)
+                continue
+            members = units[comp[0]]
+            if len(members) == 1:
+                self._cell(members[0])
+            else:
+                self._group(members)
+            done += len(members)
+            if self.progress is not None and done >= step:
+                self.progress(done, total)
+                step = done + 2000
+
+    def _loop(self, units: list[tuple[int, ...]], adj: list[list[int]], comp: list[int]) -> None:
+        members = set(comp)
+        shared = None
+        for u in sorted(comp, key=lambda u: self._sort_key(units[u][0])):
+            if shared is None or len(comp) <= 200:  # beyond that, one loop names them all
+                path = cycle(adj, u, members)
+                shared = "circular reference: " + " -> ".join(self.where(units[v][0]) for v in path)
+            self._store(units[u][0], CellError(CALC, shared))
+
+    def _sort_key(self, fi: int) -> tuple[int, int, int]:
+        fc = self.cells[fi]
+        return fc.sheet, fc.row, fc.col
+
+    def where(self, fi: int, row: int | None = None, col: int | None = None) -> str:
+        """``Sheet!A1`` of formula cell ``fi`` (or of another cell of its sheet)."""
+        fc = self.cells[fi]
+        return f"{quoted(self.book.sheets[fc.sheet].name)}!{address(row or fc.row, col or fc.col)}"
+
+    def _cell(self, fi: int) -> None:
+        fc = self.cells[fi]
+        t = fc.template
+        if t.ast is None:
+            self._store(fi, t.error)
+            return
+        ctx = self._context
+        ctx.sheet, ctx.dr, ctx.dc = fc.sheet, fc.row - t.row, fc.col - t.col
+        self._store(fi, evaluate(t.ast, ctx))
+
+    def _group(self, members: tuple[int, ...]) -> None:
+        first = self.cells[members[0]]
+        t = first.template
+        ctx = self._column
+        n = len(members)
+        ctx.sheet, ctx.dr, ctx.dc, ctx.n = first.sheet, first.row - t.row, first.col - t.col, n
+        v = evaluate(t.ast, ctx)
+        if type(v) is np.ndarray:
+            if v.shape != (n, 1):
+                column = None
+            else:
+                column = v[:, 0].tolist()
+        else:
+            column = None if type(v) is CellError else [v] * n
+        if column is None:
+            for fi in members:
+                self._cell(fi)
+            return
+        values = self.values[first.sheet]
+        result = self.result
+        col = first.col
+        for fi, x, row in zip(members, column, range(first.row, first.row + n)):
+            if type(x) is CellError or type(x) is np.ndarray:
+                self._cell(fi)  # exactly what the cell alone gives, reason included
+            else:
+                values[(row, col)] = result[fi] = 0.0 if x is None else x
+
+    def _store(self, fi: int, v: Value) -> None:
+        fc = self.cells[fi]
+        if type(v) is np.ndarray and v.size == 1:
+            v = v[0, 0]
+        if fc.kind == "legacy":
+            a = fc.old_area
+            filled = _legacy_fill(v, a.shape)
+            self._place(fi, a, filled)
+            return
+        if type(v) is np.ndarray:
+            self._spill(fi, v)
+            return
+        self.values[fc.sheet][(fc.row, fc.col)] = self.result[fi] = 0.0 if v is None else v
+
+    def _spill(self, fi: int, v: np.ndarray) -> None:
+        fc = self.cells[fi]
+        h, w = v.shape
+        a = Area(fc.row, fc.col, fc.row + h - 1, fc.col + w - 1)
+        blocker = None
+        if a.r2 > MAX_ROW or a.c2 > MAX_COL:
+            blocker = "the edge of the sheet"
+        else:
+            s = fc.sheet
+            constants, formulas, claims, fixed = self.constants[s], self.at[s], self.claims[s], self.fixed[s]
+            for r in range(a.r1, a.r2 + 1):
+                for c in range(a.c1, a.c2 + 1):
+                    key = (r, c)
+                    if key in constants or key in claims or key in fixed or (key in formulas and formulas[key] != fi):
+                        blocker = self.where(fi, r, c)
+                        break
+                if blocker:
+                    break
+        if blocker:
+            error = CellError(SPILL, f"the {h}x{w} result would overwrite {blocker}")
+            self.blocked.add(fi)
+            self.values[fc.sheet][(fc.row, fc.col)] = self.result[fi] = error
+            return
+        self._place(fi, a, v)
+
+    def _place(self, fi: int, a: Area, v: np.ndarray) -> None:
+        fc = self.cells[fi]
+        values, claims = self.values[fc.sheet], self.claims[fc.sheet]
+        for i, row in enumerate(v.tolist()):
+            for j, x in enumerate(row):
+                key = (a.r1 + i, a.c1 + j)
+                values[key] = 0.0 if x is None else x
+                claims[key] = fi
+        del claims[(fc.row, fc.col)]
+        self.result[fi] = values[(fc.row, fc.col)]
+        self.spills[fi] = a
+        self._grow(fc.sheet, a)
+
+    # ---- results -----------------------------------------------------------------------
+    def error_cells(self) -> Iterator[tuple[str, CellError]]:
+        """(``Sheet!A1``, error) of every formula or spill cell holding an error, sheet by sheet."""
+        found = []
+        for fi, v in enumerate(self.result):
+            fc = self.cells[fi]
+            a = self.spills.get(fi)
+            if a is None:
+                if type(v) is CellError:
+                    found.append((fc.sheet, fc.row, fc.col, fi, v))
+                continue
+            values = self.values[fc.sheet]
+            for r in range(a.r1, a.r2 + 1):
+                for c in range(a.c1, a.c2 + 1):
+                    x = values.get((r, c))
+                    if type(x) is CellError:
+                        found.append((fc.sheet, r, c, fi, x))
+        for s, r, c, fi, x in sorted(found, key=lambda e: e[:3]):
+            yield self.where(fi, r, c), x

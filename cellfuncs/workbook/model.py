@@ -1,0 +1,193 @@
+"""The workbook as read: sheets in order, their cells and formulas, defined names,
+shared strings and the dynamic-array cell metadata.
+
+>>> part_of("xl/workbook.xml", "worksheets/sheet1.xml"), part_of("xl/workbook.xml", "/xl/a.xml")
+('xl/worksheets/sheet1.xml', 'xl/a.xml')
+>>> rels_part("xl/workbook.xml")
+'xl/_rels/workbook.xml.rels'
+"""
+
+from __future__ import annotations
+
+import posixpath
+from dataclasses import dataclass, field
+from typing import NamedTuple
+from xml.etree.ElementTree import Element
+
+from .package import Package, Refused
+from .sheetxml import MAX_FORMULAS, NAMESPACES, SheetScan, scan
+
+PACKAGE_RELS = "http://schemas.openxmlformats.org/package/2006/relationships"
+DOC_RELS = ("http://schemas.openxmlformats.org/officeDocument/2006/relationships",
+            "http://purl.oclc.org/ooxml/officeDocument/relationships")
+DYNAMIC_ARRAY_NS = "http://schemas.microsoft.com/office/spreadsheetml/2017/dynamicarray"
+DYNAMIC_TYPE = "XLDAPR"
+
+
+class Rel(NamedTuple):
+    id: str
+    kind: str  # the last path step of the relationship type, e.g. "worksheet"
+    target: str  # the part name inside the package, or the URL of an external target
+    external: bool
+
+
+def part_of(source: str, target: str) -> str:
+    """The package part a relationship target of ``source`` names."""
+    if target.startswith("/"):
+        return target.lstrip("/")
+    return posixpath.normpath(posixpath.join(posixpath.dirname(source), target))
+
+
+def rels_part(part: str) -> str:
+    """The relationships part of ``part``."""
+    folder, name = posixpath.split(part)
+    return posixpath.join(folder, "_rels", name + ".rels")
+
+
+def relationships(pkg: Package, part: str) -> list[Rel]:
+    """The relationships of ``part`` (none when it has no relationships part)."""
+    name = rels_part(part)
+    if name not in pkg:
+        return []
+    out = []
+    for el in pkg.xml(name):
+        if el.tag != f"{{{PACKAGE_RELS}}}Relationship":
+            continue
+        external = el.get("TargetMode") == "External"
+        target = el.get("Target", "")
+        out.append(Rel(el.get("Id", ""), el.get("Type", "").rsplit("/", 1)[-1], target if external else part_of(part, target),
+                       external))
+    return out
+
+
+@dataclass
+class Sheet:
+    name: str
+    index: int  # position in the workbook (a sheet-scoped name's localSheetId)
+    part: str | None  # None for chart sheets and others without cells
+    scan: SheetScan | None
+
+
+@dataclass
+class Book:
+    workbook_part: str
+    sheets: list[Sheet]
+    names: dict[tuple[int | None, str], str]  # (sheet index or None, upper-case name) -> formula text
+    metadata_part: str | None
+    dynamic_cm: str | None  # the cm value that marks a dynamic array, if the file has one
+    parsed: set[str] = field(default_factory=set)  # parts read here (the rest are only validated)
+
+    def sheet(self, name: str) -> Sheet | None:
+        lowered = name.lower()
+        for s in self.sheets:
+            if s.name.lower() == lowered:
+                return s
+        return None
+
+
+def _main(local: str) -> tuple[str, ...]:
+    return tuple(f"{{{ns}}}{local}" for ns in NAMESPACES)
+
+
+def _children(el: Element, local: str) -> list[Element]:
+    tags = _main(local)
+    return [c for c in el if c.tag in tags]
+
+
+def shared_strings(root: Element) -> list[str]:
+    """The texts of a shared-strings part: plain or rich text, phonetic runs left out.
+
+    >>> from cellfuncs.workbook.package import parse_xml
+    >>> ns = 'xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"'
+    >>> shared_strings(parse_xml(f'<sst {ns}><si><t>a</t></si><si><r><t>b</t></r><r><t>c</t></r>'
+    ...                          f'<rPh sb="0" eb="1"><t>x</t></rPh></si></sst>'.encode(), "s"))
+    ['a', 'bc']
+    """
+    t_tags, r_tags = _main("t"), _main("r")
+    out = []
+    for si in root:
+        parts = []
+        for child in si:
+            if child.tag in t_tags:
+                parts.append(child.text or "")
+            elif child.tag in r_tags:
+                parts += [(t.text or "") for t in child if t.tag in t_tags]
+        out.append("".join(parts))
+    return out
+
+
+def dynamic_cm(root: Element) -> str | None:
+    """The cell-metadata index (a cell's ``cm``) whose record says "dynamic array"
+    (a futureMetadata XLDAPR block with ``fDynamic="1"``), or None.
+
+    >>> from cellfuncs.workbook.package import parse_xml
+    >>> xml = (b'<metadata xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" xmlns:xda="'
+    ...        + DYNAMIC_ARRAY_NS.encode() + b'"><metadataTypes count="1"><metadataType name="XLDAPR"/>'
+    ...        b'</metadataTypes><futureMetadata name="XLDAPR" count="1"><bk><extLst><ext uri="x">'
+    ...        b'<xda:dynamicArrayProperties fDynamic="1" fCollapsed="0"/></ext></extLst></bk></futureMetadata>'
+    ...        b'<cellMetadata count="1"><bk><rc t="1" v="0"/></bk></cellMetadata></metadata>')
+    >>> dynamic_cm(parse_xml(xml, "m"))
+    '1'
+    """
+    types = [t.get("name") for block in _children(root, "metadataTypes") for t in _children(block, "metadataType")]
+    dynamic_blocks = []
+    for future in _children(root, "futureMetadata"):
+        if future.get("name") == DYNAMIC_TYPE:
+            for bk in _children(future, "bk"):
+                props = bk.find(f".//{{{DYNAMIC_ARRAY_NS}}}dynamicArrayProperties")
+                dynamic_blocks.append(props is not None and props.get("fDynamic") in ("1", "true"))
+    for block in _children(root, "cellMetadata"):
+        for n, bk in enumerate(_children(block, "bk"), start=1):
+            for rc in _children(bk, "rc"):
+                t, v = int(rc.get("t", "0")), int(rc.get("v", "-1"))
+                if 1 <= t <= len(types) and types[t - 1] == DYNAMIC_TYPE and 0 <= v < len(dynamic_blocks) and dynamic_blocks[v]:
+                    return str(n)
+    return None
+
+
+def load(pkg: Package) -> Book:
+    """Read every part recalculation needs; refuse what is not a workbook."""
+    if "[Content_Types].xml" not in pkg:
+        raise Refused("no [Content_Types].xml: not an Office Open XML package")
+    docs = [r for r in relationships(pkg, "") if r.kind == "officeDocument" and not r.external]
+    if not docs or docs[0].target not in pkg:
+        raise Refused("no workbook part in the package")
+    wb_part = docs[0].target
+    root = pkg.xml(wb_part)
+    if root.tag not in _main("workbook"):
+        raise Refused(f"{wb_part}: not a workbook")
+    rels = {r.id: r for r in relationships(pkg, wb_part)}
+    parsed = {"_rels/.rels", wb_part, rels_part(wb_part)}
+    strings: list[str] = []
+    metadata_part = None
+    cm = None
+    for r in rels.values():
+        if r.external or r.target not in pkg:
+            continue
+        if r.kind == "sharedStrings":
+            strings = shared_strings(pkg.xml(r.target))
+            parsed.add(r.target)
+        elif r.kind == "sheetMetadata":
+            metadata_part = r.target
+            cm = dynamic_cm(pkg.xml(r.target))
+            parsed.add(r.target)
+    budget = [MAX_FORMULAS]
+    sheets = []
+    for block in _children(root, "sheets"):
+        for n, el in enumerate(_children(block, "sheet")):
+            rid = next((v for k, v in el.attrib.items() if k in tuple(f"{{{ns}}}id" for ns in DOC_RELS)), None)
+            rel = rels.get(rid)
+            part = rel.target if rel is not None and rel.kind == "worksheet" and not rel.external else None
+            if part is not None and part not in pkg:
+                raise Refused(f"sheet {el.get('name')!r}: part {part} missing")
+            sheet_scan = scan(pkg.read(part), part, budget, strings) if part else None
+            if part:
+                parsed.add(part)
+            sheets.append(Sheet(el.get("name", f"Sheet{n + 1}"), n, part, sheet_scan))
+    names: dict[tuple[int | None, str], str] = {}
+    for block in _children(root, "definedNames"):
+        for el in _children(block, "definedName"):
+            scope = el.get("localSheetId")
+            key = (int(scope) if scope is not None and scope.isdigit() else None, el.get("name", "").upper())
+            names[key] = (el.text or "").strip()
+    return Book(wb_part, sheets, names, metadata_part, cm, parsed)

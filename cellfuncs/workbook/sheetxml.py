@@ -1,0 +1,308 @@
+"""One pass over a worksheet's XML: cell values, formulas, and where each element sits in the bytes.
+
+The positions let the writer patch the sheet in place (a formula cell's value, a spill's
+cells) and leave every other byte as it was. Positions come from the XML parser itself
+(expat's byte index of each start and end tag), so odd spacing, attribute order or
+namespace prefixes cannot mislead them.
+
+>>> xml = (b'<worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>'
+...        b'<row r="1"><c r="A1"><v>2</v></c><c r="B1"><f>A1*2</f></c></row></sheetData></worksheet>')
+>>> s = scan(xml, "sheet1.xml", [10])
+>>> s.values, s.formulas[(1, 2)].text, xml[s.cells[(1, 2)].start:s.cells[(1, 2)].end(xml)]
+({(1, 1): 2.0}, 'A1*2', b'<c r="B1"><f>A1*2</f></c>')
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+
+from ..errors import CODES, CellError
+from .package import Refused, parse_xml
+from .refs import MAX_COL, MAX_ROW, area, cell
+
+NAMESPACES = ("http://schemas.openxmlformats.org/spreadsheetml/2006/main", "http://purl.oclc.org/ooxml/spreadsheetml/main")
+MAX_FORMULAS = 1_000_000
+MAX_CELLS = 5_000_000
+
+_TAG_END = re.compile(rb"""<[^\s/>]+(?:\s+[^\s=/>]+\s*=\s*(?:"[^"]*"|'[^']*'))*\s*/?>""")
+
+
+def tag_end(data: bytes, start: int) -> int:
+    """The offset just past the start tag that begins at ``start``.
+
+    >>> tag_end(b'<a x="1>2"/><b/>', 0)  # a ">" inside a quoted value does not end the tag
+    12
+    """
+    m = _TAG_END.match(data, start)
+    if m is None:
+        raise Refused("a start tag the scanner cannot delimit")
+    return m.end()
+
+
+def closing(data: bytes, start: int, pos: int) -> int:
+    """Where the end tag of the element starting at ``start`` begins, given expat's byte
+    index ``pos`` at its end event; ``start`` for a self-closing element (expat then
+    reports the index just past ``/>``).
+
+    >>> data = b"<r><a/><b></b></r>"
+    >>> closing(data, 3, 7), closing(data, 7, 10)
+    (3, 10)
+    """
+    if data[pos - 2:pos] == b"/>" and tag_end(data, start) == pos:
+        return start
+    return pos
+
+
+@dataclass(slots=True)
+class Span:
+    """An element's bytes: ``start`` at its ``<``, ``close`` at its end tag's ``<``
+    (equal to ``start`` for a self-closing element)."""
+
+    start: int
+    close: int = -1
+
+    def end(self, data: bytes) -> int:
+        if self.close == self.start:
+            return tag_end(data, self.start)
+        return data.index(b">", self.close) + 1
+
+    @property
+    def empty(self) -> bool:
+        return self.close == self.start
+
+
+@dataclass(slots=True)
+class CellSpan(Span):
+    formula: Span | None = None
+    extra: list[Span] | None = None  # children other than f, v, is (kept as they are)
+
+
+@dataclass(slots=True)
+class RowSpan(Span):
+    cells: list[tuple[int, int]] = field(default_factory=list)  # (column, start offset)
+
+
+@dataclass(slots=True)
+class FormulaXml:
+    """A formula as stored: ``kind`` is "normal", "shared", "array" or "dataTable"."""
+
+    text: str
+    kind: str
+    ref: str | None
+    si: str | None
+    cm: str | None
+    cached: object  # the cell's cached value (None: none stored)
+
+
+@dataclass
+class SheetScan:
+    part: str
+    values: dict[tuple[int, int], object] = field(default_factory=dict)
+    formulas: dict[tuple[int, int], FormulaXml] = field(default_factory=dict)
+    cells: dict[tuple[int, int], CellSpan] = field(default_factory=dict)
+    rows: dict[int, RowSpan] = field(default_factory=dict)
+    sheet_data: Span | None = None
+    dimension: tuple[int, str] | None = None  # (start offset, ref)
+
+
+class _Scanner:
+    """A parser target building a :class:`SheetScan`; element positions come from expat."""
+
+    def __init__(self, data: bytes, part: str, strings: list[str], budget: list[int]):
+        self.bytes = data
+        self.out = SheetScan(part)
+        self.strings = strings
+        self.budget = budget  # [formula cells left]: shared by all sheets of a workbook
+        self.cells_left = MAX_CELLS
+        self.depth = 0
+        self.data_depth = -1  # depth of <sheetData>
+        self.row: RowSpan | None = None
+        self.row_number = 0
+        self.col = 0
+        self.cell: CellSpan | None = None
+        self.cell_key = (0, 0)
+        self.cell_attrs: dict = {}
+        self.text: list[str] | None = None
+        self.value_text: str | None = None
+        self.inline: list[str] | None = None
+        self.phonetic = 0
+        self.f_attrs: dict | None = None
+        self.f_text = ""
+        self.first = True
+
+    def bind(self, parser) -> None:
+        self.expat = parser.parser
+
+    def start(self, tag: str, attrib: dict) -> None:
+        pos = self.expat.CurrentByteIndex
+        self.depth += 1
+        ns, _, local = tag[1:].partition("}")
+        if self.first:
+            self.first = False
+            if ns not in NAMESPACES:
+                raise Refused(f"{self.out.part}: not a worksheet")
+        d = self.depth - self.data_depth
+        if ns not in NAMESPACES:  # another vocabulary: kept as it is if it sits in a cell
+            if self.data_depth >= 0 and d == 3 and self.cell is not None:
+                self.cell.extra = (self.cell.extra or []) + [Span(pos)]
+            return
+        if self.data_depth < 0:
+            if local == "sheetData" and self.depth == 2:
+                self.data_depth = self.depth
+                self.out.sheet_data = Span(pos)
+            elif local == "dimension" and self.depth == 2:
+                self._dimension(pos, attrib.get("ref", ""))
+        elif d == 1 and local == "row":
+            r = attrib.get("r")
+            self.row_number = int(r) if r is not None and r.isdigit() else self.row_number + 1
+            if not 1 <= self.row_number <= MAX_ROW:
+                raise Refused(f"{self.out.part}: row {self.row_number} is beyond Excel's {MAX_ROW} rows")
+            self.row = RowSpan(pos)
+            self.out.rows[self.row_number] = self.row
+            self.col = 0
+        elif d == 2 and local == "c":
+            self._cell_start(pos, attrib)
+        elif d == 3 and self.cell is not None:
+            if local == "f":
+                self.cell.formula = Span(pos)
+                self.f_attrs = attrib
+                self.text = []
+            elif local == "v":
+                self.text = []
+            elif local == "is":
+                self.inline = []
+            else:
+                self.cell.extra = (self.cell.extra or []) + [Span(pos)]
+        elif self.inline is not None:
+            if local == "rPh":
+                self.phonetic += 1
+            elif local == "t" and not self.phonetic:
+                self.text = []
+
+    def _dimension(self, pos: int, ref: str) -> None:
+        if ref and area(ref) is None:
+            raise Refused(f"{self.out.part}: used range {ref} is beyond Excel's limits")
+        self.out.dimension = (pos, ref)
+
+    def _cell_start(self, pos: int, attrib: dict) -> None:
+        ref = attrib.get("r")
+        if ref is not None:
+            rc = cell(ref)
+            if rc is None:
+                raise Refused(f"{self.out.part}: cell reference {ref!r} is not a cell within Excel's limits")
+            row, self.col = rc
+        else:  # the reference is optional: the next column of the row
+            row, self.col = self.row_number, self.col + 1
+            if self.col > MAX_COL:
+                raise Refused(f"{self.out.part}: a row runs beyond Excel's {MAX_COL} columns")
+        self.cells_left -= 1
+        if self.cells_left < 0:
+            raise Refused(f"{self.out.part}: more than {MAX_CELLS:,} cells")
+        self.cell = CellSpan(pos)
+        self.cell_key = (row, self.col)
+        self.cell_attrs = attrib
+        self.value_text = None
+        self.f_attrs = None
+        if self.row is not None:
+            self.row.cells.append((self.col, pos))
+
+    def end(self, tag: str) -> None:
+        pos = self.expat.CurrentByteIndex
+        ns, _, local = tag[1:].partition("}")
+        d = self.depth - self.data_depth
+        self.depth -= 1
+        if self.data_depth < 0:
+            return
+        data = self.bytes
+        if ns not in NAMESPACES:
+            if d == 3 and self.cell is not None and self.cell.extra:
+                self.cell.extra[-1].close = closing(data, self.cell.extra[-1].start, pos)
+            return
+        if d == 0:
+            self.out.sheet_data.close = closing(data, self.out.sheet_data.start, pos)
+            self.data_depth = -1
+        elif d == 1:
+            if self.row is not None:
+                self.row.close = closing(data, self.row.start, pos)
+            self.row = None
+        elif d == 2 and self.cell is not None:
+            self.cell.close = closing(data, self.cell.start, pos)
+            self._cell_end()
+            self.cell = None
+        elif d == 3 and self.cell is not None:
+            if local == "f":
+                self.cell.formula.close = closing(data, self.cell.formula.start, pos)
+                self.f_text = "".join(self.text)
+                self.text = None
+            elif local == "v":
+                self.value_text = "".join(self.text)
+                self.text = None
+            elif local == "is":
+                self.value_text = "".join(self.inline)
+                self.inline = None
+            elif self.cell.extra:
+                self.cell.extra[-1].close = closing(data, self.cell.extra[-1].start, pos)
+        elif self.inline is not None:
+            if local == "rPh":
+                self.phonetic -= 1
+            elif local == "t" and self.text is not None:
+                self.inline.append("".join(self.text))
+                self.text = None
+
+    def data(self, text: str) -> None:
+        if self.text is not None:
+            self.text.append(text)
+
+    def _cell_end(self) -> None:
+        key = self.cell_key
+        out = self.out
+        out.cells[key] = self.cell
+        kind = self.cell_attrs.get("t", "n")
+        value = self._value(kind, self.value_text)
+        if self.f_attrs is None:
+            if value is not None:
+                out.values[key] = value
+            return
+        f = self.f_attrs
+        self.budget[0] -= 1
+        if self.budget[0] < 0:
+            raise Refused(f"more than {MAX_FORMULAS:,} formula cells")
+        out.formulas[key] = FormulaXml(self.f_text, f.get("t", "normal"), f.get("ref"), f.get("si"),
+                                       self.cell_attrs.get("cm"), value)
+
+    def _value(self, kind: str, text: str | None) -> object:
+        if text is None:
+            return None
+        if kind == "s":
+            try:
+                return self.strings[int(text)]
+            except (ValueError, IndexError):
+                raise Refused(f"{self.out.part}: shared string {text!r} does not exist") from None
+        if kind in ("str", "inlineStr", "d"):
+            return text
+        if kind == "b":
+            return text.strip() in ("1", "true")
+        if kind == "e":
+            code = text.strip()
+            return CellError(code if code in CODES else "#VALUE!")
+        if not text.strip():
+            return None
+        try:
+            return float(text)
+        except ValueError:
+            raise Refused(f"{self.out.part}: cell value {text[:20]!r} is not a number") from None
+
+    def close(self) -> SheetScan:
+        return self.out
+
+
+def scan(data: bytes, part: str, budget: list[int], strings: list[str] | None = None) -> SheetScan:
+    """Read worksheet ``part``: values, formulas and element positions.
+
+    ``budget`` is a one-element list holding how many formula cells may still be read.
+    """
+    if data[:2] in (b"\xff\xfe", b"\xfe\xff") or re.match(rb"<\?xml[^>]*encoding=[\"'](?!utf-8)", data[:100], re.I):
+        raise Refused(f"{part}: not UTF-8 encoded")
+    scanner = _Scanner(data, part, strings or [], budget)
+    return parse_xml(data, part, scanner)

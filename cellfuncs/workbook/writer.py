@@ -1,0 +1,455 @@
+"""The recalculated workbook: sheets patched in place, the calculation chain dropped,
+dynamic-array metadata and the engine's name recorded; every other part untouched.
+
+In a patched sheet only the cells that changed are rewritten: a formula cell keeps its
+attributes (style), its formula and any extension, and gets its new cached value
+(``<v>`` with ``t="str"``, ``"b"`` or ``"e"`` as needed). A spill is stored as Excel 365
+stores a dynamic array: ``<f t="array" ref="A1:B10">`` in the anchor, whose ``cm`` points
+at a cell-metadata record marking it dynamic (XLDAPR, ``fDynamic="1"``), and the values
+in every cell of the range. Cells of an old, larger spill are emptied (their style stays).
+"""
+
+from __future__ import annotations
+
+import re
+from typing import Callable
+
+from .. import __version__
+from ..errors import CellError
+from .engine import Recalc
+from .model import Book, Rel, relationships, rels_part
+from .package import Package, Refused
+from .refs import Area, address, area
+from .sheetxml import CellSpan, FormulaXml, SheetScan, tag_end
+from .xmledit import Element, attr, elements, prefix, retag, splice, text
+
+ENGINE = "cellfuncs"
+PROPERTIES = (("RecalcEngine", ENGINE), ("RecalcEngineVersion", __version__))
+
+_REL = "http://schemas.openxmlformats.org/officeDocument/2006/relationships/"
+_METADATA_TYPE = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheetMetadata+xml"
+_CUSTOM_TYPE = "application/vnd.openxmlformats-officedocument.custom-properties+xml"
+_CUSTOM_NS = b"http://schemas.openxmlformats.org/officeDocument/2006/custom-properties"
+_VT_NS = b"http://schemas.openxmlformats.org/officeDocument/2006/docPropsVTypes"
+_FMTID = b"{D5CDD505-2E9C-101B-9397-08002B2CF9AE}"
+_MAIN_NS = b"http://schemas.openxmlformats.org/spreadsheetml/2006/main"
+_XDA_NS = b"http://schemas.microsoft.com/office/spreadsheetml/2017/dynamicarray"
+_XLDAPR_TYPE = (b'<%smetadataType name="XLDAPR" minSupportedVersion="120000" copy="1" pasteAll="1" pasteValues="1" '
+                b'merge="1" splitFirst="1" rowColShift="1" clearFormats="1" clearComments="1" assign="1" coerce="1" '
+                b'cellMeta="1"/>')
+_XLDAPR_FUTURE = (b'<%sfutureMetadata name="XLDAPR" count="1"><%sbk><%sextLst><%sext uri="{bdbb8cdc-fa1e-496e-a857-'
+                  b'3c3f30c029c3}"><xda:dynamicArrayProperties xmlns:xda="' + _XDA_NS + b'" fDynamic="1" fCollapsed="0"/>'
+                  b'</%sext></%sextLst></%sbk></%sfutureMetadata>')
+_CELL_CHANGES = {b"t", b"cm", b"vm"}
+
+
+def value_xml(v: object) -> tuple[bytes | None, bytes]:
+    """The ``t`` attribute (None for a number) and the ``<v>`` text of a cell value.
+
+    >>> value_xml(2.0), value_xml(0.1), value_xml(True), value_xml("a&b"), value_xml(CellError("#NUM!", "x"))
+    ((None, b'2'), (None, b'0.1'), (b'b', b'1'), (b'str', b'a&amp;b'), (b'e', b'#NUM!'))
+    """
+    if type(v) is bool:
+        return b"b", b"1" if v else b"0"
+    if type(v) is str:
+        return b"str", text(v)
+    if type(v) is CellError:
+        return b"e", v.code.encode()
+    x = 0.0 if v is None else float(v)
+    if x.is_integer() and abs(x) < 1e15:
+        return None, b"%d" % x
+    return None, repr(x).encode()
+
+
+def is_dynamic(engine: Recalc, fi: int) -> bool:
+    """Whether formula cell ``fi`` is written as a dynamic array."""
+    kind = engine.cells[fi].kind
+    return kind != "legacy" and (kind == "dynamic" or fi in engine.spills or fi in engine.blocked)
+
+
+class _SheetPatch:
+    """The edits of one worksheet."""
+
+    def __init__(self, data: bytes, scan: SheetScan, engine: Recalc, s: int, cm: bytes | None):
+        self.data, self.scan, self.engine, self.s, self.cm = data, scan, engine, s, cm
+        sheet_data = scan.sheet_data
+        if sheet_data is None:
+            raise Refused(f"{scan.part}: no sheetData element")
+        self.p = prefix(data, _as_element(sheet_data))
+        self.edits: list[tuple[int, int, bytes]] = []
+        self.new_cells: dict[int, list[tuple[int, bytes]]] = {}
+        masters = {f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text}
+        self.masters = masters
+        at = engine.at[s]
+        self.unshared = {scan.formulas[key].si for key in masters.values() if key in at and is_dynamic(engine, at[key])}
+        self.bounds: Area | None = None
+
+    def build(self) -> bytes:
+        engine, s, scan = self.engine, self.s, self.scan
+        values = engine.values[s]
+        for key, fi in engine.at[s].items():
+            self._formula(key, fi)
+        for key in engine.claims[s]:
+            self._value_cell(key, values[key])
+        for key, fi in engine.at[s].items():
+            old = engine.cells[fi].old_area
+            if old is None or engine.cells[fi].kind == "legacy":
+                continue
+            for r in range(old.r1, old.r2 + 1):
+                for c in range(old.c1, old.c2 + 1):
+                    k = (r, c)
+                    if k != key and k not in engine.claims[s] and k not in engine.at[s]:
+                        self._clear(k)
+        self._insert_new_cells()
+        self._dimension()
+        return splice(self.data, self.edits)
+
+    # -- cells ---------------------------------------------------------------------------
+    def _cell_bytes(self, key: tuple[int, int], value: object, f_bytes: bytes, extra_attrs: list) -> bytes | None:
+        """The new element for a cell holding ``value``; None when it is a new cell (queued)."""
+        t, v = value_xml(value)
+        add = ([(b"t", t)] if t else []) + extra_attrs
+        span = self.scan.cells.get(key)
+        if span is None:
+            p = self.p
+            attrs = b"".join(b' %s="%s"' % kv for kv in add)
+            body = b'<%sc r="%s"%s>%s<%sv>%s</%sv></%sc>' % (p, address(*key).encode(), attrs, f_bytes, p, v, p, p)
+            self.new_cells.setdefault(key[0], []).append((key[1], body))
+            self._extend(key)
+            return None
+        p = prefix(self.data, _as_element(span))
+        start_tag = self.data[span.start:tag_end(self.data, span.start)]
+        extras = b"".join(self.data[e.start:e.end(self.data)] for e in span.extra or ())
+        return (retag(start_tag, _CELL_CHANGES, add, close=False) + f_bytes + b"<%sv>%s</%sv>" % (p, v, p) + extras
+                + b"</%sc>" % p)
+
+    def _replace(self, key: tuple[int, int], new: bytes | None) -> None:
+        if new is not None:
+            span = self.scan.cells[key]
+            self.edits.append((span.start, span.end(self.data), new))
+
+    def _formula(self, key: tuple[int, int], fi: int) -> None:
+        engine = self.engine
+        fx = self.scan.formulas[key]
+        dynamic = is_dynamic(engine, fi)
+        extra = [(b"cm", self.cm)] if dynamic and self.cm else []
+        spill = engine.spills.get(fi) or Area(key[0], key[1], key[0], key[1])
+        f_bytes = self._f(key, fx, dynamic, spill)
+        self._replace(key, self._cell_bytes(key, engine.result[fi], f_bytes, extra))
+        if dynamic:
+            self._extend((spill.r2, spill.c2))
+
+    def _f(self, key: tuple[int, int], fx: FormulaXml, dynamic: bool, spill: Area) -> bytes:
+        span: CellSpan = self.scan.cells[key]
+        f = span.formula
+        data = self.data
+        p = prefix(data, _as_element(f))
+        array = [(b"t", b"array"), (b"ref", spill.text().encode())]
+        if fx.kind == "shared" and (dynamic or fx.si in self.unshared):
+            formula = fx.text if fx.text else self._moved(key, fx)
+            attrs = b"".join(b' %s="%s"' % kv for kv in array) if dynamic else b""
+            return b"<%sf%s>%s</%sf>" % (p, attrs, text(formula), p)
+        if not dynamic or f.empty or (fx.kind == "array" and fx.ref == spill.text()):
+            return data[f.start:f.end(data)]
+        start = tag_end(data, f.start)
+        return retag(data[f.start:start], {b"t", b"ref", b"si"}, array, close=False) + data[start:f.end(data)]
+
+    def _moved(self, key: tuple[int, int], fx: FormulaXml) -> str:
+        """A shared formula's text as written in cell ``key`` (Excel stores it once, in its first cell)."""
+        from openpyxl.formula.translate import Translator
+
+        base = self.masters.get(fx.si)
+        if base is None:
+            return "#REF!"
+        moved = Translator("=" + self.scan.formulas[base].text, origin=address(*base)).translate_formula(address(*key))
+        return moved[1:]
+
+    def _value_cell(self, key: tuple[int, int], value: object) -> None:
+        self._replace(key, self._cell_bytes(key, value, b"", []))
+
+    def _clear(self, key: tuple[int, int]) -> None:
+        span = self.scan.cells.get(key)
+        if span is None:
+            return
+        start_tag = self.data[span.start:tag_end(self.data, span.start)]
+        if span.extra:
+            p = prefix(self.data, _as_element(span))
+            extras = b"".join(self.data[e.start:e.end(self.data)] for e in span.extra)
+            new = retag(start_tag, _CELL_CHANGES, [], close=False) + extras + b"</%sc>" % p
+        else:
+            new = retag(start_tag, _CELL_CHANGES, [], close=True)
+        self.edits.append((span.start, span.end(self.data), new))
+
+    # -- rows ----------------------------------------------------------------------------
+    def _insert_new_cells(self) -> None:
+        data, p = self.data, self.p
+        rows = self.scan.rows
+        ordered_rows = sorted(rows)
+        new_rows: dict[int, list[bytes]] = {}
+        for r, items in sorted(self.new_cells.items()):
+            items.sort()
+            row = rows.get(r)
+            if row is None:
+                at = self._row_position(ordered_rows, r)
+                cells = b"".join(body for _, body in items)
+                new_rows.setdefault(at, []).append(b'<%srow r="%d">%s</%srow>' % (p, r, cells, p))
+                continue
+            start = tag_end(data, row.start)
+            row_tag = retag(data[row.start:start], {b"spans"}, [], close=False)  # spans is only a hint
+            if row.empty:
+                self.edits.append((row.start, start, row_tag + b"".join(b for _, b in items) + b"</%srow>" % p))
+                continue
+            self.edits.append((row.start, start, row_tag))
+            groups: dict[int, list[bytes]] = {}
+            for col, body in items:
+                place = next((pos for c, pos in row.cells if c > col), row.close)
+                groups.setdefault(place, []).append(body)
+            self.edits += [(pos, pos, b"".join(bodies)) for pos, bodies in groups.items()]
+        sheet_data = self.scan.sheet_data
+        for at, bodies in new_rows.items():
+            payload = b"".join(bodies)
+            if at is None:  # <sheetData/>
+                tag = data[sheet_data.start:tag_end(data, sheet_data.start)]
+                self.edits.append((sheet_data.start, sheet_data.end(data),
+                                   retag(tag, set(), [], close=False) + payload + b"</%ssheetData>" % p))
+            else:
+                self.edits.append((at, at, payload))
+
+    def _row_position(self, ordered_rows: list[int], r: int) -> int | None:
+        import bisect
+
+        k = bisect.bisect_right(ordered_rows, r)
+        if k < len(ordered_rows):
+            return self.scan.rows[ordered_rows[k]].start
+        sheet_data = self.scan.sheet_data
+        return None if sheet_data.empty else sheet_data.close
+
+    # -- the used range ------------------------------------------------------------------
+    def _extend(self, key: tuple[int, int]) -> None:
+        r, c = key
+        b = self.bounds
+        self.bounds = Area(r, c, r, c) if b is None else Area(min(b.r1, r), min(b.c1, c), max(b.r2, r), max(b.c2, c))
+
+    def _dimension(self) -> None:
+        if self.scan.dimension is None or self.bounds is None:
+            return
+        start, ref = self.scan.dimension
+        old = area(ref) if ref else None
+        b = self.bounds
+        new = b if old is None else Area(min(old.r1, b.r1), min(old.c1, b.c1), max(old.r2, b.r2), max(old.c2, b.c2))
+        if new[:4] == (old[:4] if old else None):
+            return
+        end = tag_end(self.data, start)
+        self.edits.append((start, end, retag(self.data[start:end], {b"ref"}, [(b"ref", new.text().encode())])))
+
+
+def _as_element(span) -> Element:
+    return Element("", {}, 0, span.start, span.close)
+
+
+# ---- package-level parts --------------------------------------------------------------
+def _edit_children(data: bytes, part: str, drop: Callable[[Element], bool], add: list[bytes],
+                   replace: dict[int, bytes] | None = None) -> bytes:
+    """Children of the root element removed (``drop``), replaced (by start offset) or
+    appended (``add``: templates with ``%s`` for the root's namespace prefix)."""
+    els = elements(data, part)
+    root = els[0]
+    p = prefix(data, root)
+    edits = []
+    for e in els:
+        if e.depth == 2 and replace and e.start in replace:
+            edits.append((e.start, e.end(data), replace[e.start]))
+        elif e.depth == 2 and drop(e):
+            edits.append((e.start, e.end(data), b""))
+    payload = b"".join(a.replace(b"%s", p) for a in add)
+    if payload:
+        if root.close == root.start:
+            tag = data[root.start:root.end(data)]
+            name = re.match(rb"<([^\s/>]+)", tag).group(1)
+            edits.append((root.start, root.end(data), retag(tag, set(), [], close=False) + payload + b"</" + name + b">"))
+        else:
+            edits.append((root.close, root.close, payload))
+    return splice(data, edits)
+
+
+def _new_id(data: bytes, part: str) -> bytes:
+    ids = {e.attrib.get("Id", "") for e in elements(data, part)}
+    n = 1 + max((int(i[3:]) for i in ids if re.fullmatch(r"rId\d+", i)), default=0)
+    return b"rId%d" % n
+
+
+class _PackageEdit:
+    def __init__(self, pkg: Package, book: Book):
+        self.pkg, self.book = pkg, book
+        self.replaced: dict[str, bytes] = {}
+        self.removed: set[str] = set()
+        self.added: list[tuple[str, bytes]] = []
+        self.content_drop: set[str] = set()
+        self.content_add: list[tuple[str, str]] = []
+
+    def current(self, name: str) -> bytes:
+        return self.replaced.get(name) or self.pkg.read(name)
+
+    def relate(self, source: str, kind: str, target_rel: str, drop_kinds: set[str] = frozenset()) -> None:
+        """Add a relationship of ``source`` (and drop those of ``drop_kinds``)."""
+        name = rels_part(source)
+        if name not in self.pkg and not any(n == name for n, _ in self.added):
+            self.added.append((name, b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<Relationships '
+                                     b'xmlns="http://schemas.openxmlformats.org/package/2006/relationships"/>'))
+        data = self._take(name)
+        add = []
+        if kind:
+            rid = _new_id(data, name)
+            add.append(b'<%%sRelationship Id="%s" Type="%s" Target="%s"/>' % (rid, attr(_REL + kind), attr(target_rel)))
+        new = _edit_children(data, name, lambda e: e.attrib.get("Type", "").rsplit("/", 1)[-1] in drop_kinds, add)
+        self._put(name, new)
+
+    def _take(self, name: str) -> bytes:
+        for n, d in self.added:
+            if n == name:
+                return d
+        return self.current(name)
+
+    def _put(self, name: str, data: bytes) -> None:
+        for i, (n, _) in enumerate(self.added):
+            if n == name:
+                self.added[i] = (n, data)
+                return
+        if data != self.pkg.read(name):
+            self.replaced[name] = data
+
+    def content_types(self) -> None:
+        name = "[Content_Types].xml"
+        data = self.pkg.read(name)
+        existing = {e.attrib.get("PartName", "") for e in elements(data, name) if e.local == "Override"}
+        add = [b'<%%sOverride PartName="%s" ContentType="%s"/>' % (attr(p), attr(t))
+               for p, t in self.content_add if p not in existing]
+        new = _edit_children(data, name, lambda e: e.local == "Override" and e.attrib.get("PartName") in self.content_drop, add)
+        self._put(name, new)
+
+
+def _relative(source: str, target: str) -> str:
+    import posixpath
+
+    return posixpath.relpath(target, posixpath.dirname(source) or ".")
+
+
+def _metadata(edit: _PackageEdit, book: Book) -> bytes:
+    """The cm value of a dynamic-array cell, adding the record to xl/metadata.xml if needed."""
+    if book.dynamic_cm is not None:
+        return book.dynamic_cm.encode()
+    part = book.metadata_part
+    if part is None:
+        import posixpath
+
+        part = posixpath.join(posixpath.dirname(book.workbook_part), "metadata.xml")
+        if part in edit.pkg:
+            raise Refused(f"{part} exists but the workbook does not use it")
+        data = (b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<metadata xmlns="' + _MAIN_NS +
+                b'" xmlns:xda="' + _XDA_NS + b'"><metadataTypes count="1">' + _XLDAPR_TYPE % b"" +
+                b"</metadataTypes>" + _XLDAPR_FUTURE.replace(b"%s", b"") +
+                b'<cellMetadata count="1"><bk><rc t="1" v="0"/></bk></cellMetadata></metadata>')
+        edit.added.append((part, data))
+        edit.relate(book.workbook_part, "sheetMetadata", _relative(book.workbook_part, part))
+        edit.content_add.append(("/" + part, _METADATA_TYPE))
+        return b"1"
+    data = edit.pkg.read(part)
+    els = elements(data, part)
+    root = els[0]
+    p = prefix(data, root)
+    top = {e.local: e for e in reversed(els) if e.depth == 2}
+    if "futureMetadata" in top and any(e.attrib.get("name") == "XLDAPR" for e in els if e.depth == 2):
+        raise Refused(f"{part}: an XLDAPR record this tool cannot reuse")
+    edits = []
+    types = top.get("metadataTypes")
+    if types is not None and not types.close == types.start:
+        n_types = sum(1 for e in els if e.depth == 3 and e.local == "metadataType" and types.start < e.start < types.close)
+        edits.append((types.close, types.close, _XLDAPR_TYPE % p))
+        end = types.inner(data)
+        edits.append((types.start, end, retag(data[types.start:end], {b"count"}, [(b"count", b"%d" % (n_types + 1))])))
+    elif types is None:
+        n_types = 0
+        at = root.inner(data)
+        edits.append((at, at, b'<%smetadataTypes count="1">' % p + _XLDAPR_TYPE % p + b"</%smetadataTypes>" % p))
+    else:
+        raise Refused(f"{part}: an empty metadataTypes element")
+    later = [top[k].start for k in ("cellMetadata", "valueMetadata", "extLst") if k in top]
+    at = min(later) if later else root.close
+    edits.append((at, at, _XLDAPR_FUTURE.replace(b"%s", p)))
+    record = b'<%sbk><%src t="%d" v="0"/></%sbk>' % (p, p, n_types + 1, p)
+    cells = top.get("cellMetadata")
+    if cells is not None and cells.close != cells.start:
+        n_bk = sum(1 for e in els if e.depth == 3 and e.local == "bk" and cells.start < e.start < cells.close)
+        edits.append((cells.close, cells.close, record))
+        end = cells.inner(data)
+        edits.append((cells.start, end, retag(data[cells.start:end], {b"count"}, [(b"count", b"%d" % (n_bk + 1))])))
+    else:
+        if cells is not None:
+            raise Refused(f"{part}: an empty cellMetadata element")
+        n_bk = 0
+        later = [top[k].start for k in ("valueMetadata", "extLst") if k in top]
+        at = min(later) if later else root.close
+        edits.append((at, at, b'<%scellMetadata count="1">' % p + record + b"</%scellMetadata>" % p))
+    edit.replaced[part] = splice(data, edits)
+    return b"%d" % (n_bk + 1)
+
+
+def _custom_properties(edit: _PackageEdit) -> None:
+    """Record the engine in the custom document properties."""
+    root_rels: list[Rel] = relationships(edit.pkg, "")
+    rel = next((r for r in root_rels if r.kind == "custom-properties" and not r.external), None)
+
+    def prop(pid: int, name: str, value: str) -> bytes:
+        return (b'<%%sproperty fmtid="%s" pid="%d" name="%s"><vt:lpwstr xmlns:vt="%s">%s</vt:lpwstr></%%sproperty>'
+                % (_FMTID, pid, attr(name), _VT_NS, text(value)))
+
+    if rel is None or rel.target not in edit.pkg:
+        part = "docProps/custom.xml"
+        if part in edit.pkg:
+            raise Refused(f"{part} exists but the package does not use it")
+        body = b"".join(prop(n + 2, name, value) for n, (name, value) in enumerate(PROPERTIES)).replace(b"%s", b"")
+        edit.added.append((part, b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<Properties xmlns="' +
+                           _CUSTOM_NS + b'" xmlns:vt="' + _VT_NS + b'">' + body + b"</Properties>"))
+        edit.relate("", "custom-properties", part)
+        edit.content_add.append(("/" + part, _CUSTOM_TYPE))
+        return
+    part = rel.target
+    data = edit.pkg.read(part)
+    els = [e for e in elements(data, part) if e.depth == 2 and e.local == "property"]
+    p = prefix(data, elements(data, part)[0])
+    by_name = {e.attrib.get("name"): e for e in els}
+    pids = [int(e.attrib.get("pid", "1")) for e in els if e.attrib.get("pid", "").isdigit()]
+    next_pid = max(pids + [1]) + 1
+    replace, add = {}, []
+    for name, value in PROPERTIES:
+        old = by_name.get(name)
+        if old is not None:
+            replace[old.start] = prop(int(old.attrib.get("pid", "2")), name, value).replace(b"%s", p)
+        else:
+            add.append(prop(next_pid, name, value))
+            next_pid += 1
+    edit._put(part, _edit_children(data, part, lambda e: False, add, replace))
+
+
+def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], set[str], list[tuple[str, bytes]]]:
+    """The members to replace, remove and add for the recalculated workbook."""
+    edit = _PackageEdit(pkg, book)
+    cm = None
+    if any(is_dynamic(engine, fi) for fi in range(len(engine.cells))):
+        cm = _metadata(edit, book)
+    for sheet in book.sheets:
+        if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index]):
+            continue
+        data = pkg.read(sheet.part)
+        new = _SheetPatch(data, sheet.scan, engine, sheet.index, cm).build()
+        if new != data:
+            edit.replaced[sheet.part] = new
+    wb_rels = relationships(pkg, book.workbook_part)
+    chains = [r.target for r in wb_rels if r.kind == "calcChain" and not r.external]
+    if chains:
+        edit.removed |= {c for c in chains if c in pkg}
+        edit.relate(book.workbook_part, "", "", drop_kinds={"calcChain"})
+        edit.content_drop |= {"/" + c for c in chains}
+    _custom_properties(edit)
+    edit.content_types()
+    return edit.replaced, edit.removed, edit.added

@@ -1,0 +1,106 @@
+"""Writing the package: untouched members copied as their stored (compressed) bytes,
+changed ones deflated anew, all into a temporary file that replaces the target in one
+step (``os.replace``), so an interrupted run leaves the old file as it was.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import struct
+import tempfile
+import zipfile
+import zlib
+
+from .package import Package
+
+
+def _dos(date_time: tuple[int, ...]) -> tuple[int, int]:
+    y, mo, d, h, mi, s = date_time
+    return (h << 11) | (mi << 5) | (s // 2), ((max(y, 1980) - 1980) << 9) | (mo << 5) | d
+
+
+def _deflate(data: bytes) -> bytes:
+    c = zlib.compressobj(6, zlib.DEFLATED, -15)
+    return c.compress(data) + c.flush()
+
+
+class _Entry:
+    __slots__ = ("name", "flags", "method", "stamp", "crc", "csize", "usize", "made_by", "attr", "comment", "offset")
+
+    def __init__(self, name: str, flags: int, method: int, stamp: tuple[int, int], crc: int, csize: int, usize: int,
+                 made_by: int, attr: int, comment: bytes):
+        self.name = name.encode("utf-8" if flags & 0x800 else "cp437")
+        self.flags, self.method, self.stamp, self.crc = flags, method, stamp, crc
+        self.csize, self.usize, self.made_by, self.attr, self.comment = csize, usize, made_by, attr, comment
+        self.offset = 0
+
+    def local(self) -> bytes:
+        return struct.pack("<4sHHHHHIIIHH", b"PK\x03\x04", 20, self.flags, self.method, *self.stamp, self.crc,
+                           self.csize, self.usize, len(self.name), 0) + self.name
+
+    def central(self) -> bytes:
+        return struct.pack("<4sHHHHHHIIIHHHHHII", b"PK\x01\x02", self.made_by, 20, self.flags, self.method, *self.stamp,
+                           self.crc, self.csize, self.usize, len(self.name), 0, len(self.comment), 0, 0, self.attr,
+                           self.offset) + self.name + self.comment
+
+
+def _entries(pkg: Package, replaced: dict[str, bytes], removed: set[str], added: list[tuple[str, bytes]]):
+    """(entry, payload) in package order, then the added members."""
+    for info in pkg.infos:
+        name = info.filename
+        if name in removed:
+            continue
+        made_by = (info.create_system << 8) | info.create_version
+        stamp = _dos(info.date_time)
+        if name in replaced:
+            data = replaced[name]
+            payload = _deflate(data)
+            flags = info.flag_bits & 0x800
+            entry = _Entry(info.orig_filename, flags, zipfile.ZIP_DEFLATED, stamp, zlib.crc32(data), len(payload),
+                           len(data), made_by, info.external_attr, info.comment)
+        else:
+            payload = pkg.raw(info)
+            flags = info.flag_bits & 0x806  # sizes go in the local header: no data descriptor
+            entry = _Entry(info.orig_filename, flags, info.compress_type, stamp, info.CRC, len(payload), info.file_size,
+                           made_by, info.external_attr, info.comment)
+        yield entry, payload
+    stamp = _dos(pkg.infos[0].date_time) if pkg.infos else _dos((1980, 1, 1, 0, 0, 0))
+    for name, data in added:
+        payload = _deflate(data)
+        flags = 0 if name.isascii() else 0x800
+        yield _Entry(name, flags, zipfile.ZIP_DEFLATED, stamp, zlib.crc32(data), len(payload), len(data), 20, 0,
+                     b""), payload
+
+
+def write_package(pkg: Package, dest: str, replaced: dict[str, bytes], removed: set[str],
+                  added: list[tuple[str, bytes]]) -> None:
+    """Write ``pkg`` with members ``replaced``, ``removed`` and ``added`` to ``dest``, atomically."""
+    folder = os.path.dirname(os.path.abspath(dest))
+    fd, tmp = tempfile.mkstemp(dir=folder, prefix="." + os.path.basename(dest) + ".", suffix=".tmp")
+    try:
+        with os.fdopen(fd, "wb") as out:
+            entries = []
+            for entry, payload in _entries(pkg, replaced, removed, added):
+                entry.offset = out.tell()
+                out.write(entry.local())
+                out.write(payload)
+                entries.append(entry)
+            start = out.tell()
+            for entry in entries:
+                out.write(entry.central())
+            size = out.tell() - start
+            comment = pkg.zip.comment
+            out.write(struct.pack("<4sHHHHIIH", b"PK\x05\x06", 0, 0, len(entries), len(entries), size, start,
+                                  len(comment)) + comment)
+            out.flush()
+            os.fsync(out.fileno())
+        shutil.copymode(pkg.path, tmp)
+        pkg.close()  # some systems cannot replace a file that is still open
+        os.replace(tmp, dest)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
