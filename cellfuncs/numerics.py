@@ -101,7 +101,8 @@ class MonotoneInverse:
         self.slope = np.gradient(x, y)  # dx/dy at the nodes
 
     def __call__(self, y: np.ndarray | float) -> np.ndarray:
-        y = np.asarray(y, dtype=float)
+        shape = np.shape(y)
+        y = np.atleast_1d(np.asarray(y, dtype=float))  # indexable, also for one value
         inside = (y >= self.y[0]) & (y <= self.y[-1])
         with np.errstate(all="ignore"):
             x = np.interp(y, self.y, self.x)
@@ -114,4 +115,4 @@ class MonotoneInverse:
             if slow.any():
                 k = np.clip(np.searchsorted(self.y, y[slow]), 1, len(self.y) - 1)
                 x[slow] = solve_bracketed(lambda t: self.f(t) - y[slow], self.x[k - 1], self.x[k], xtol=1e-15)
-        return np.where(inside, x, np.nan)
+        return np.where(inside, x, np.nan).reshape(shape)

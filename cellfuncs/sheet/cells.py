@@ -64,7 +64,8 @@ def substance(value: Any) -> Substance:
     if isinstance(value, CellError):
         raise CallError(*_named(value, "substance"))
     if isinstance(value, Mapping):
-        return _defined(tuple((k, v if isinstance(v, tuple) else (v, None)) for k, v in value.items()))
+        return _defined(tuple((k, (_frozen(v[0]), v[1]) if isinstance(v, tuple) else (_frozen(v), None))
+                              for k, v in value.items()))
     if isinstance(value, (list, tuple)):
         value = _as_array(value)
     if isinstance(value, np.ndarray):
@@ -78,6 +79,11 @@ def substance(value: Any) -> Substance:
     if value is None or (isinstance(value, str) and not value.strip()):
         raise CallError(VALUE, "substance is blank")
     return model_call(lookup, value)
+
+
+def _frozen(value: Any) -> Any:
+    """A line's list of coefficients as a tuple: the definition cache needs hashable rows."""
+    return tuple(np.ravel(value).tolist()) if isinstance(value, (list, np.ndarray)) else value
 
 
 @lru_cache(maxsize=64)

@@ -464,6 +464,8 @@ def _fixed_point(point, substance, which, unit_text) -> Any:
     if key not in ("T", "P"):
         raise CallError(VALUE, f"which must be \"T\" or \"P\"; got '{which}'")
     fixed = getattr(sub, point)
+    if not np.isfinite(fixed.temperature):
+        return CellError(NA, f"{sub.name} has no {point} point in its data")
     if key == "T":
         return float(cells.unit(unit_text, "unit", _T).from_si(fixed.temperature))
     return float(cells.unit(unit_text, "unit", _P).from_si(fixed.pressure))
@@ -570,9 +572,10 @@ def SUBSTANCE_INFO(substance, field=None):
     if key is None:
         return np.array([list(row) for row in sub.definition_rows()], dtype=object)
     info = sub.info()
+    folded = {k.lower(): k for k in info}  # a line's coefficients keep their case ("boil.Tc", "boil.T_min")
     name = key.lower().replace(" ", "_")
-    if name in info:
-        return info[name].value
-    if name.endswith("_source") and name[: -len("_source")] in info:
-        return info[name[: -len("_source")]].source or CellError(NA, f"no source recorded for '{key[:-7]}'")
+    if name in folded:
+        return info[folded[name]].value
+    if name.endswith("_source") and name[: -len("_source")] in folded:
+        return info[folded[name[: -len("_source")]]].source or CellError(NA, f"no source recorded for '{key[:-7]}'")
     return CellError(NA, f"unknown field '{key}' for {sub.name}; SUBSTANCE_INFO(\"{sub.name}\") lists the fields")

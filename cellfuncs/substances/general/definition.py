@@ -48,6 +48,13 @@ REQUIRED = ("name", "molar_mass", "critical_temperature", "critical_pressure")
 LINES = ("boil", "melt", "sublime")
 # line fields: "<line>.<key>"; numbers in K and Pa, lists of numbers written as [a, b, ...]
 LINE_TEXTS = ("form", "reference", "p_unit", "t_unit")
+# each form's numbers, and its lists paired as coefficient and exponent (see lines.py); every line has
+# its range T_min, T_max
+LINE_NUMBERS = {"ancillary": ("Tc", "pc"), "antoine": ("A", "B", "C"), "simon_glatzel": ("T0", "p0", "a", "c"),
+                "ancillary_melting": ("Tt", "pt"), "ancillary_sublimation": ("Tt", "pt")}
+LINE_LISTS = {"ancillary": (("n", "t"),), "antoine": (), "simon_glatzel": (),
+              "ancillary_melting": (("a", "t"), ("b", "s")), "ancillary_sublimation": (("a", "t"),)}
+OPTIONAL_LISTS = ("b", "s")
 
 
 @dataclass
@@ -129,11 +136,9 @@ def _number(key: str, value: Any, unit: Any, si: str) -> float:
 def _line_value(key: str, part: str, value: Any) -> Any:
     if part in LINE_TEXTS:
         return str(value).strip()
-    if isinstance(value, list):
-        return [float(v) for v in value]
-    if isinstance(value, str) and value.strip().startswith("["):
+    if isinstance(value, (list, tuple)) or isinstance(value, str) and value.strip().startswith("["):
         try:
-            items = ast.literal_eval(value.strip())
+            items = ast.literal_eval(value.strip()) if isinstance(value, str) else value
             return [float(v) for v in items]
         except (ValueError, SyntaxError, TypeError):
             raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a list of numbers like [1.5, -2]") from None
@@ -160,13 +165,40 @@ def _validate(d: Definition) -> None:
     if "triple_point_pressure" in v and v["triple_point_pressure"] >= v["critical_pressure"]:
         raise ModelError(BAD_ARGUMENT, "field 'triple_point_pressure' must be below the critical pressure")
     for line, table in d.lines.items():
-        if "form" not in table:
-            raise ModelError(BAD_ARGUMENT, f"field '{line}.form' is missing for the {line} line")
-        from ..lines import FORMS
+        _validate_line(line, table)
 
-        if table["form"] not in FORMS:
-            raise ModelError(BAD_ARGUMENT, f"field '{line}.form': unknown form '{table['form']}'; "
-                                           f"known: {', '.join(FORMS)}")
+
+def _validate_line(line: str, table: dict[str, Any]) -> None:
+    """A line's form, and its coefficients as that form needs them; raises ModelError naming the field."""
+    from ..lines import _PRESSURE_UNITS, _TEMPERATURE_OFFSETS, FORMS
+
+    form = table.get("form")
+    if form is None:
+        raise ModelError(BAD_ARGUMENT, f"field '{line}.form' is missing for the {line} line")
+    if form not in FORMS:
+        raise ModelError(BAD_ARGUMENT, f"field '{line}.form': unknown form '{form}'; known: {', '.join(FORMS)}")
+    numbers = LINE_NUMBERS[form] + ("T_min", "T_max")
+    lists = [key for pair in LINE_LISTS[form] for key in pair]
+    for key in numbers + tuple(k for k in lists if k not in OPTIONAL_LISTS):
+        if key not in table:
+            raise ModelError(BAD_ARGUMENT, f"field '{line}.{key}' is missing for the {line} line ({form} form)")
+    for key, value in table.items():
+        if key in LINE_TEXTS:
+            continue
+        if key not in numbers and key not in lists:
+            raise ModelError(BAD_ARGUMENT, f"unknown field '{line}.{key}' for the {line} line ({form} form)")
+        if (key in lists) != isinstance(value, list):
+            raise ModelError(BAD_ARGUMENT, f"field '{line}.{key}' must be "
+                             + ("a list of numbers like [1.5, -2]" if key in lists else "a number"))
+    for first, second in LINE_LISTS[form]:
+        if len(table.get(first, [])) != len(table.get(second, [])):
+            raise ModelError(BAD_ARGUMENT, f"fields '{line}.{first}' and '{line}.{second}' must have as many numbers")
+    if table["T_min"] >= table["T_max"]:
+        raise ModelError(BAD_ARGUMENT, f"field '{line}.T_min' must be below '{line}.T_max'")
+    for key, known in (("p_unit", _PRESSURE_UNITS), ("t_unit", _TEMPERATURE_OFFSETS)):
+        if key in table and table[key] not in known:
+            raise ModelError(BAD_ARGUMENT, f"field '{line}.{key}': unknown unit '{table[key]}'; "
+                                           f"known: {', '.join(known)}")
 
 
 @lru_cache(maxsize=None)

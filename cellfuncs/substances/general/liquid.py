@@ -47,6 +47,14 @@ class LiquidVolume:
         t = _TAIT
         return self.pc * (-1.0 + t["a"] * tau ** (1 / 3) + t["b"] * tau ** (2 / 3) + t["d"] * tau + self._e * tau ** (4 / 3))
 
+    def holds(self, T, p_sat) -> np.ndarray:
+        """Where the Tait form applies: B + p_sat > 0.
+
+        B tends to -pc at the critical point and its tau^(1/3) term is negative, so B + p_sat
+        turns negative within about 2 % of Tc; above that, compression would swell the liquid.
+        """
+        return self._B(T) + np.asarray(p_sat, float) > 0.0
+
     def volume(self, T, p, p_sat) -> np.ndarray:
         """Molar volume at (T, p) for a liquid whose saturation pressure at T is p_sat."""
         B = self._B(T)

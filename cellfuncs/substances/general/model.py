@@ -4,8 +4,9 @@ Lines (these decide the stable phase):
   boiling      the published vapour-pressure equation within its range; outside it, and
                for substances without one, the Lee-Kesler corresponding-states equation
                (Lee and Kesler 1975, AIChE J. 21, 510) with the acentric factor solved
-               from the normal boiling point, matched to the published line at its ends
-               and running to the critical point
+               from the normal boiling point, matched to the published line at its ends,
+               running to the critical point above it and to the data's triple-point
+               pressure below it
   melting      the published equation (Simon-Glatzel or a reference-equation ancillary),
                shifted by the small difference between its triple-point pressure and the
                model's; else the Clapeyron equation integrated from the triple point with
@@ -15,7 +16,8 @@ Lines (these decide the stable phase):
                H_sub = H_fus + H_vap(T_t) (estimate, from T_t/2 to T_t)
 Phases:
   vapour, gas and supercritical fluid: Peng-Robinson (see peng_robinson.py)
-  liquid: Rackett saturated volume with the COSTALD-Tait compression (see liquid.py)
+  liquid: Rackett saturated volume with the COSTALD-Tait compression (see liquid.py); the
+          compressed liquid only where the Tait form holds, up to a few per cent below Tc
   solid: constant molar volume from the solid density (no expansivity or compressibility)
 Chemical potential (one consistent model; CHEM_POTENTIAL's reference state is the ideal
 gas at the same temperature and 101.325 kPa):
@@ -46,14 +48,31 @@ P0 = 101325.0  # Pa, the pressure of the chemical potential's reference state
 P_MAX = 100e6  # Pa, highest pressure the liquid and fluid estimates are used at
 VERTICAL_P_MAX = 10e6  # Pa, top of a melting line taken as pressure-independent
 _LABELS, _STATE_PHASE = state_table(("solid",))
+_NO_TRIPLE = "the data give no triple point (triple_point_temperature)"
 
 
-def _lee_kesler(tr: np.ndarray, omega: float) -> np.ndarray:
-    """ln(p/pc) by Lee and Kesler (1975), eqs. for f0 and f1."""
+def _lee_kesler_terms(tr):
+    """f0 and f1 of Lee and Kesler (1975): ln(p/pc) = f0 + omega f1."""
     ln_tr = np.log(tr)
     f0 = 5.92714 - 6.09648 / tr - 1.28862 * ln_tr + 0.169347 * tr**6
     f1 = 15.2518 - 15.6875 / tr - 13.4721 * ln_tr + 0.43577 * tr**6
-    return f0 + omega * f1
+    return f0, f1
+
+
+# the rounded coefficients leave f0 = 7e-6 and f1 = 7e-5 at Tr = 1; taken off, the line ends at pc
+_F0_CRITICAL, _F1_CRITICAL = _lee_kesler_terms(1.0)
+
+
+def _lee_kesler(tr: np.ndarray, omega: float) -> np.ndarray:
+    """ln(p/pc) by Lee and Kesler (1975), exactly zero at the critical point."""
+    f0, f1 = _lee_kesler_terms(tr)
+    return (f0 - _F0_CRITICAL) + omega * (f1 - _F1_CRITICAL)
+
+
+def _in_u(inverse: MonotoneInverse, y: np.ndarray) -> np.ndarray:
+    """1/T on a line from ln p, by a table in u = 1/T. The table's ends are f(1/(1/T)), which may lie
+    an ulp inside the line's ends: the line's own end pressures are clipped onto them."""
+    return inverse(np.clip(y, inverse.y[0], inverse.y[-1]))
 
 
 class GeneralSubstance(Substance):
@@ -94,6 +113,11 @@ class GeneralSubstance(Substance):
             self._boil_range = (lo, hi)
             self._match_lo = float(line_pressure(self._boil, lo) / self._corresponding(np.array(lo)))
             self._match_hi = float(line_pressure(self._boil, hi) / self._corresponding(np.array(hi)))
+            # where the line stops short of the triple point, the data's triple-point pressure is
+            # the other end to match (ranges are quoted in whole kelvins: a shorter gap is rounding)
+            pt = self.definition.values.get("triple_point_pressure")
+            self._match_tt = (float(pt / self._corresponding(np.array(tt))) if tt and pt and lo - tt > 1.0
+                              else self._match_lo)
         self.t_low = tt if tt else (self._boil.get("T_min") if self._boil else 0.3 * self.tc)
 
     def _corresponding(self, T: np.ndarray) -> np.ndarray:
@@ -109,10 +133,13 @@ class GeneralSubstance(Substance):
         cs = self._corresponding(T)
         published = line_pressure(self._boil, np.clip(T, lo, hi))
         # continue past the published ends by corresponding states, matched at the ends and
-        # (above the top) blended to reach the critical pressure at the critical temperature
+        # blended to reach the critical pressure at the critical temperature above the top and
+        # the data's triple-point pressure at the triple point below the bottom
         weight = np.clip((T - hi) / max(self.tc - hi, 1e-12), 0.0, 1.0)
         above = cs * (self._match_hi + (1.0 - self._match_hi) * weight)
-        return np.where(T < lo, cs * self._match_lo, np.where(T > hi, above, published))
+        weight = np.clip((lo - T) / max(lo - self.t_low, 1e-12), 0.0, 1.0)
+        below = cs * self._match_lo * (self._match_tt / self._match_lo) ** weight  # even in ln p
+        return np.where(T < lo, below, np.where(T > hi, above, published))
 
     @cached_property
     def _p_low(self) -> float:
@@ -120,12 +147,18 @@ class GeneralSubstance(Substance):
         return float(self._p_boil(np.array(self.t_low)))
 
     @cached_property
+    def _p_high(self) -> float:
+        """Pressure at the top of the boiling line: the critical pressure, or a published line's own
+        where its critical point differs slightly from the data's."""
+        return float(self._p_boil(np.array(self.tc)))
+
+    @cached_property
     def _boil_inverse(self) -> MonotoneInverse:
         # ln p is nearly linear in 1/T (Clausius-Clapeyron): the table's best variable
         return MonotoneInverse(lambda u: np.log(self._p_boil(1.0 / u)), 1.0 / self.tc, 1.0 / self.t_low)
 
     def _t_boil(self, p: np.ndarray) -> np.ndarray:
-        return 1.0 / self._boil_inverse(np.log(np.asarray(p, float)))
+        return 1.0 / _in_u(self._boil_inverse, np.log(np.asarray(p, float)))
 
     def _setup_triple(self) -> None:
         tt = self.definition.values.get("triple_point_temperature")
@@ -207,7 +240,7 @@ class GeneralSubstance(Substance):
         tt, pt = self.triple
         if self._sub is None:
             return 1.0 / (1.0 / tt - R / self._sub_enthalpy * np.log(np.asarray(p, float) / pt))
-        return 1.0 / self._sub_inverse(np.log(np.asarray(p, float)))
+        return 1.0 / _in_u(self._sub_inverse, np.log(np.asarray(p, float)))
 
     @cached_property
     def _sub_inverse(self) -> MonotoneInverse:
@@ -217,6 +250,10 @@ class GeneralSubstance(Substance):
     # --- boundaries -------------------------------------------------------------------
     def _missing(self, r: Result, line: str, why: str) -> None:
         r.flag(True, NOT_AVAILABLE, f"{self.name} has no {line} line: {why}")
+
+    def _lacking(self) -> str:
+        """The data a Clapeyron melting line needs that the definition lacks, by field name."""
+        return " and ".join(k for k in ("enthalpy_of_fusion", "solid_density") if k not in self.definition.values)
 
     def boil_pressure(self, T: np.ndarray) -> Result:
         r = Result.like(T)
@@ -237,19 +274,19 @@ class GeneralSubstance(Substance):
         r.flag(p < p_low * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the " + (
             "triple-point pressure" if self.has_triple else "lowest pressure of the vapour-pressure line")
                + f" of {self.name} ({fmt(p_low)} Pa)", p, see="sublime" if self.has_triple else "")
-        r.flag(p > self.pc * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the critical pressure of "
-               + f"{self.name} ({fmt(self.pc)} Pa): there is no liquid-vapour line above it", p)
-        r.fill(self._t_boil(np.clip(p, p_low, self.pc)))
+        r.flag(p > self._p_high * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the top of the boiling line of "
+               + f"{self.name} ({fmt(self._p_high)} Pa at the critical temperature)", p)
+        r.fill(self._t_boil(np.clip(p, p_low, self._p_high)))
         return r
 
     def melt_pressure(self, T: np.ndarray, solid: int | None = None) -> tuple[Result, np.ndarray]:
         r = Result.like(T)
         if self._melt_range is None:
-            self._missing(r, "melting", "the data lack the enthalpy of fusion or the solid density")
+            self._missing(r, "melting", _NO_TRIPLE + " and no melting equation")
             return r, SOLID
         if self._melt_slope == np.inf:
-            self._missing(r, "melting-pressure", "without the solid's density its melting temperature is taken as "
-                          f"independent of pressure ({fmt(self.triple.temperature)} K); use MELT_TEMP")
+            self._missing(r, "melting-pressure", f"without {self._lacking()} in its data its melting temperature is "
+                          f"taken as independent of pressure ({fmt(self.triple.temperature)} K); use MELT_TEMP")
             return r, SOLID
         lo, hi = self._melt_range
         r.flag((T < lo * (1 - LINE_TOL)) | (T > hi * (1 + LINE_TOL)), OUT_OF_RANGE,
@@ -267,7 +304,7 @@ class GeneralSubstance(Substance):
     def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
         r = Result.like(p)
         if self._melt_range is None:
-            self._missing(r, "melting", "the data lack the enthalpy of fusion or the solid density")
+            self._missing(r, "melting", _NO_TRIPLE + " and no melting equation")
             return r, SOLID
         p_lo, p_hi = self._melt_p_range()
         r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the melting line of "
@@ -292,7 +329,7 @@ class GeneralSubstance(Substance):
 
     def _no_sublimation_reason(self) -> str:
         if not self.has_triple:
-            return "it has no solid-liquid-vapour triple point (helium stays liquid down to 0 K at low pressure)"
+            return _NO_TRIPLE + ": helium, liquid down to 0 K at low pressure, has none"
         return "the data lack a sublimation equation and the enthalpy of fusion"
 
     def sublime_temperature(self, p: np.ndarray) -> Result:
@@ -327,7 +364,8 @@ class GeneralSubstance(Substance):
                    "lack the enthalpy of fusion or the solid density): solid and liquid cannot be told apart")
         if self._sub_range is not None:
             p_lo = float(self._p_sub(np.array(self._sub_range[0])))
-            r.flag(~high & (p < p_lo) & (T < self.triple.temperature), OUT_OF_RANGE,
+            # below the line's lowest pressure the vapour is stable wherever the line is known
+            r.flag(~high & (p < p_lo) & (T < self._sub_range[0]), OUT_OF_RANGE,
                    "{} Pa is below the sublimation line's range for " + f"{self.name} ({fmt(p_lo)} Pa)", p)
             sub = ~high & (p >= p_lo)
             if sub.any():
@@ -340,7 +378,7 @@ class GeneralSubstance(Substance):
                    + f"{self.name} ({fmt(self.t_low)} K)", T)
         p_low = self._p_low
         t_boil = np.where(high & (p >= p_low), self.tc, -np.inf)
-        sat = high & (p >= p_low) & (p <= self.pc)
+        sat = high & (p >= p_low) & (p <= self._p_high)
         if sat.any():
             t_boil[sat] = self._t_boil(p[sat])
         state = classify(T, p, t_solid=t_solid, solid=np.zeros(T.shape, int), t_boil=t_boil, sat=sat, high=high,
@@ -390,11 +428,20 @@ class GeneralSubstance(Substance):
         volume = self.liquid.volume(t_in, q, p_sat)
         step = 1e-3
         t_up, t_down = np.minimum(t_in + step, self.tc), t_in - step
-        v_up = self.liquid.volume(t_up, q, np.minimum(self._p_boil(t_up), q))
+        p_up = self._p_boil(t_up)
+        v_up = self.liquid.volume(t_up, q, np.minimum(p_up, q))
         v_down = self.liquid.volume(t_down, q, np.minimum(self._p_boil(t_down), q))
-        self._store(fields, sel, r, sub, v=volume, g=self._mu_liquid(t_in, q),
-                    alpha=(v_up - v_down) / ((t_up - t_down) * volume),
-                    kappa=self.liquid.compressibility(t_in, q, p_sat))
+        alpha = (v_up - v_down) / ((t_up - t_down) * volume)
+        # near the critical point the Tait compression fails (its B + p_sat turns negative within
+        # about 2 % of Tc, and before that the compression term outgrows the expansion, so alpha
+        # turns negative): the saturated liquid's volume and chemical potential stand, a
+        # compressed liquid and the derivatives do not
+        tait = self.liquid.holds(t_up, p_up) & (volume > 0.0) & (alpha > 0.0)
+        sub.flag(~tait & (q > p_sat * (1 + LINE_TOL)), OUT_OF_RANGE, lambda tt, qq: f"compressed liquid {self.name} "
+                 f"at {fmt(tt)} K and {fmt(qq)} Pa is too near its critical temperature ({fmt(self.tc)} K) for the "
+                 "Tait compression estimate", t, q)
+        self._store(fields, sel, r, sub, v=volume, g=self._mu_liquid(t_in, q), alpha=np.where(tait, alpha, np.nan),
+                    kappa=np.where(tait, self.liquid.compressibility(t_in, q, p_sat), np.nan))
 
     def _gas(self, t, q, sel, r, fields, sub: Result) -> None:
         z = self.eos.compressibility(t, q, "vapor")
@@ -508,7 +555,7 @@ class GeneralSubstance(Substance):
                 f"{fmt(self._boil_range[0])} K to {fmt(self._boil_range[1])} K" if self._boil_range != (self.t_low, self.tc) else "")
                 if self._boil is not None else "corresponding states (Lee-Kesler) through the normal boiling point")
         melt = ("published " + self._melt["form"] + " equation" if self._melt is not None else
-                "triple-point temperature, taken as independent of pressure to 10 MPa (estimate; no solid density)"
+                f"triple-point temperature, taken as independent of pressure to 10 MPa (estimate; no {self._lacking()})"
                 if self._melt_slope == np.inf else
                 "Clapeyron equation from the triple point (estimate)" if self._melt_range else "none")
         sub = ("published " + self._sub["form"] + " equation" if self._sub is not None else
@@ -519,7 +566,8 @@ class GeneralSubstance(Substance):
             "melt": (melt, rng(self._melt_range)),
             "sublime": (sub, rng(self._sub_range)),
             "vapor": ("Peng-Robinson equation of state", "to 100 MPa"),
-            "liquid": ("Rackett saturated volume with COSTALD-Tait compression", "triple point to critical, to 100 MPa"),
+            "liquid": ("Rackett saturated volume with COSTALD-Tait compression",
+                       "triple point to critical, to 100 MPa; compressed liquid to a few per cent below Tc"),
             "solid": ("constant molar volume from the solid density", ""),
             "chem_potential": ("molar Gibbs energy relative to the ideal gas at the same temperature and 101.325 kPa",
                                ""),
