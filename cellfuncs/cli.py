@@ -1,4 +1,4 @@
-"""The ``cellfuncs`` command: evaluate formulas, list the functions, recalculate workbooks.
+"""The ``cellfuncs`` command: evaluate formulas, list the functions, recalculate workbooks, set up Excel.
 
 Exit status: 0 clean; 1 an error value in a result; 2 a usage problem or a
 formula that does not parse; 3 an internal failure.
@@ -50,6 +50,17 @@ def _parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     recalc_command.add_arguments(recalc)
+    setup = commands.add_parser(
+        "excel-setup",
+        help="print (and on Windows with Excel, take) the steps that make the functions appear in Excel",
+        description="Print the steps that make the pack's functions appear in Excel through xlwings: the "
+        "add-in, the UDF Modules setting (ribbon or the workbook's xlwings.conf sheet), importing the "
+        "functions, and how a shipped workbook reaches them. On Windows with Excel, install the add-in and "
+        "write the setting; elsewhere say that nothing can be done here.",
+        epilog=CAUTION,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    setup.add_argument("--print-only", action="store_true", help="print the steps, change nothing")
     return parser
 
 
@@ -144,6 +155,10 @@ def main(argv: Sequence[str] | None = None) -> int:
             from .workbook.command import run
 
             return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance)
+        if args.command == "excel-setup":
+            from .excel_setup import run as excel_setup
+
+            return excel_setup(args.print_only)
         return _functions()
     except Exception as exc:  # an internal failure, not a cell error
         print(f"cellfuncs: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)

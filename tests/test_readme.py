@@ -1,4 +1,4 @@
-"""The README's promises: its set-up commands are what CI runs, and its example runs clean."""
+"""The README's promises: its set-up commands are what CI runs, and its main command runs clean."""
 
 from __future__ import annotations
 
@@ -21,10 +21,16 @@ def test_ci_runs_the_readme_test_command():
     assert test_command in (ROOT / ".ci" / "run").read_text(encoding="utf-8")
 
 
-def test_readme_example_formulas_evaluate_without_errors():
+def test_readme_main_command_is_one_line_install_then_cellfuncs():
     main_command = _commands()[0]
-    formulas = shlex.split(main_command.split("cellfuncs eval", 1)[1])
-    done = subprocess.run([sys.executable, "-m", "cellfuncs", "eval", *formulas], capture_output=True, text=True,
-                          cwd=ROOT)
+    assert "\n" not in main_command
+    install, run = main_command.split(" && ", 1)
+    assert install == "python3 -m pip install ."
+    assert shlex.split(run)[:2] == ["cellfuncs", "recalc"]
+
+
+def test_readme_main_command_recalculates_a_design_workbook_cleanly():
+    run = shlex.split(_commands()[0].split(" && ", 1)[1])
+    done = subprocess.run([sys.executable, "-m", "cellfuncs", *run[1:]], capture_output=True, text=True, cwd=ROOT)
     assert done.returncode == 0, done.stdout + done.stderr
-    assert "#" not in done.stdout
+    assert re.search(r"^recalc: 1 files, \d+ cells, 0 errors, 0 differences, ", done.stderr, flags=re.M), done.stderr

@@ -75,6 +75,18 @@ def _in_u(inverse: MonotoneInverse, y: np.ndarray) -> np.ndarray:
     return inverse(np.clip(y, inverse.y[0], inverse.y[-1]))
 
 
+_METHOD_SOURCES = {
+    "boil": "Lee and Kesler (1975), AIChE J. 21, 510",
+    "melt": "Clapeyron equation with the data's enthalpy of fusion and the phases' volumes",
+    "sublime": "Clausius-Clapeyron equation with H_fus + H_vap at the triple point",
+    "vapor": "Peng and Robinson (1976), Ind. Eng. Chem. Fundam. 15, 59",
+    "liquid": "Rackett (1970), J. Chem. Eng. Data 15, 514; Spencer and Danner (1972), J. Chem. Eng. Data 17, 236; "
+              "Thomson, Brobst and Hankinson (1982), AIChE J. 28, 671",
+    "solid": "the data's solid density",
+    "chem_potential": "the construction in cellfuncs/substances/general/model.py (module docstring)",
+}
+
+
 class GeneralSubstance(Substance):
     solids = ("solid",)
 
@@ -540,9 +552,20 @@ class GeneralSubstance(Substance):
             line = name.split(".")[0]
             items[name] = InfoItem(value, unit, d.sources.get(name, d.sources.get(line, "")))
         for key, (model, valid) in self._models().items():
-            items[f"{key}_model"] = InfoItem(model, "", "")
-            items[f"{key}_range"] = InfoItem(valid, "", "")
+            source = self._model_source(key)
+            items[f"{key}_model"] = InfoItem(model, "", source)
+            items[f"{key}_range"] = InfoItem(valid, "", source)
         return items
+
+    def _model_source(self, key: str) -> str:
+        """The publications behind a quantity's model (the line's own source first)."""
+        d = self.definition
+        line = {"boil": self._boil, "melt": self._melt, "sublime": self._sub}.get(key)
+        if line is not None:
+            return d.sources.get(key, "") + ("; continued by " + _METHOD_SOURCES["boil"] if key == "boil" else "")
+        if key == "melt" and self._melt_slope == np.inf:
+            return "the data's triple-point temperature (without a solid density there is no Clapeyron slope)"
+        return _METHOD_SOURCES.get(key, "")
 
     def definition_rows(self) -> list[tuple]:
         """The definition's own fields only, so that the rows paste back as a user definition."""
