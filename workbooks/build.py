@@ -19,12 +19,17 @@ import argparse
 import datetime
 import io
 import math
+import os
 import sys
 import zipfile
 from pathlib import Path
 from typing import Callable
 
-from openpyxl import Workbook
+# openpyxl serialises XML with lxml when it is installed and with the standard library
+# otherwise, and the two differ in bytes; the standard library's is the one every machine has
+os.environ["OPENPYXL_LXML"] = "False"
+
+from openpyxl import Workbook  # noqa: E402  (after the setting above)
 from openpyxl.chart import Reference, ScatterChart, Series
 from openpyxl.chart.marker import Marker
 from openpyxl.formatting.rule import FormulaRule
