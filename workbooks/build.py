@@ -543,10 +543,15 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
     ws = wb.create_sheet(title)
     s = Sheet(ws, {get_column_letter(c): 11 for c in range(1, 3 * len(lines) + 1)})
     s.title(f"Lines of {substance}: boiling, melting and sublimation (PHASE_LINE), triple and critical points",
-            note, "The line data below are PHASE_LINE spills, stored with their values. LibreOffice recomputes array "
-            "formulas that use functions it does not know: there they show #NAME? and the chart only the two points.")
+            note, "The line data below are PHASE_LINE spills, stored with their values; the chart reads plain "
+            "references to them (lower block). LibreOffice recomputes array formulas that use functions it does not "
+            "know, so it shows #NAME? in the spills, but keeps the references' stored values and draws the chart.")
     sub = f"'{map_title}'!$D$5"
     points, data = 40, 33
+    copy = data + points + 3  # first row of the chart's data: references to the spills
+    ws[f"A{copy - 3}"] = ("Chart data: references to the spills above (a spreadsheet program that cannot compute the "
+                          "spills still shows these stored values)")
+    ws[f"A{copy - 3}"].font = NOTE_FONT
     ws["B5"], ws["C5"] = "T (°C)", "p (bar)"
     s.put("A6", "Triple point", kind="plain")
     s.put("B6", f'=TRIPLE_POINT({sub},"T","degC")', "0.000")
@@ -579,8 +584,14 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
         ws[f"{x}{data}"] = f'=PHASE_LINE({sub},"{boundary}",{t_a},{t_b},{points},"degC","bar"{extra})'
         for r in range(data, data + points):  # formats of the spill range: empty cells, so nothing blocks it
             ws[f"{x}{r}"].number_format, ws[f"{y}{r}"].number_format = "0.00", "0.000E+00"
-        series = Series(Reference(ws, min_col=col + 1, min_row=data, max_row=data + points - 1),
-                        Reference(ws, min_col=col, min_row=data, max_row=data + points - 1), title=label)
+        ws[f"{x}{copy - 2}"] = label
+        ws[f"{x}{copy - 2}"].font = HEADER_FONT
+        ws[f"{x}{copy - 1}"], ws[f"{y}{copy - 1}"] = "T (°C)", "p (bar)"
+        for k in range(points):
+            s.put(f"{x}{copy + k}", f"={x}{data + k}", "0.00", kind="plain")
+            s.put(f"{y}{copy + k}", f"={y}{data + k}", "0.000E+00", kind="plain")
+        series = Series(Reference(ws, min_col=col + 1, min_row=copy, max_row=copy + points - 1),
+                        Reference(ws, min_col=col, min_row=copy, max_row=copy + points - 1), title=label)
         series.marker = Marker(symbol="none")
         series.smooth = False
         series.graphicalProperties.line.solidFill = colour
@@ -597,7 +608,7 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
     for c in (2, 3):
         ws.cell(5, c).font = HEADER_FONT
     ws.add_chart(chart, "E5")
-    row = s.formulations(data + points + 1, [(what, substance, model, source) for what, model, source in models])
+    row = s.formulations(copy + points + 1, [(what, substance, model, source) for what, model, source in models])
     s.caution(row + 1, [ESTIMATES, CODES])
     return ws
 
