@@ -46,7 +46,7 @@ from .peng_robinson import R, PengRobinson
 
 P0 = 101325.0  # Pa, the pressure of the chemical potential's reference state
 P_MAX = 100e6  # Pa, highest pressure the liquid and fluid estimates are used at
-VERTICAL_P_MAX = 10e6  # Pa, top of a melting line taken as pressure-independent
+VERTICAL_P_MAX = P_MAX  # Pa, top of a melting line taken as pressure-independent
 _LABELS, _STATE_PHASE = state_table(("solid",))
 _NO_TRIPLE = "the data give no triple point (triple_point_temperature)"
 
@@ -202,7 +202,7 @@ class GeneralSubstance(Substance):
             self._melt_range = (min(tt, t_top), max(tt, t_top))
         elif self.has_triple:
             # without the solid's density the melting temperature is taken as independent of
-            # pressure (typically 0.1-0.3 K/MPa in reality), and only to VERTICAL_P_MAX
+            # pressure (in reality it rises by about 0.1-0.3 K/MPa), up to VERTICAL_P_MAX
             self._melt_slope = np.inf
             self._melt_range = (self.triple.temperature, self.triple.temperature)
         else:
@@ -578,7 +578,8 @@ class GeneralSubstance(Substance):
                 f"{fmt(self._boil_range[0])} K to {fmt(self._boil_range[1])} K" if self._boil_range != (self.t_low, self.tc) else "")
                 if self._boil is not None else "corresponding states (Lee-Kesler) through the normal boiling point")
         melt = ("published " + self._melt["form"] + " equation" if self._melt is not None else
-                f"triple-point temperature, taken as independent of pressure to 10 MPa (estimate; no {self._lacking()})"
+                f"triple-point temperature, taken as independent of pressure to 100 MPa (estimate; no {self._lacking()}; "
+                "real melting temperatures rise by about 0.1-0.3 K per MPa)"
                 if self._melt_slope == np.inf else
                 "Clapeyron equation from the triple point (estimate)" if self._melt_range else "none")
         sub = ("published " + self._sub["form"] + " equation" if self._sub is not None else
