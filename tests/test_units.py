@@ -213,8 +213,6 @@ def test_garbage_unit_text_in_a_cell_is_a_value_error(text):
     assert isinstance(error, CellError) and error.code == VALUE and "p_unit" in error.reason
 
 
-@pytest.mark.xfail(strict=True, reason="units.conversion lets the unit parser's own exceptions "
-                   "(ZeroDivisionError, AssertionError, TokenError) through; cells.unit catches them")
 @pytest.mark.parametrize("text", ["1/0", "**", "()"])
 def test_garbage_unit_text_raises_unit_error(text):
     with pytest.raises(UnitError):
