@@ -145,16 +145,17 @@ def test_melting_lines_meet_at_their_triple_points_to_a_few_parts_in_ten_million
 
 
 def test_melting_line_top_end():
-    # the ice VII equation gives 20617.8128 MPa at 715 K, 1.4e-7 above the published top of its
-    # range (20617.81 MPa), where the inverse stops: MELT_TEMP takes the published range
-    assert MELT_TEMP(W, 20617.81, "MPa") == pytest.approx(715.0, rel=2e-7)  # measured 1.1e-7 below
-    assert is_error(MELT_TEMP(W, MELT_PRESSURE(W, 715.0)), NUM, "ice VII")
+    # the top of the ice VII line's range is the equation's own value at 715 K (IAPWS R14-08 eq. 5,
+    # evaluated to full precision in the data file), so the line's end round-trips
+    top = MELT_PRESSURE(W, 715.0)
+    assert MELT_TEMP(W, top) == pytest.approx(715.0, rel=1e-12)
+    assert STABLE_PHASE(W, 715.0, top) == "ice VII + liquid"
+    assert is_error(MELT_TEMP(W, top * 1.000001), NUM, "ice VII")
 
 
 def test_sublimation_line_round_trip():
-    # from just above 50 K: the equation gives 2.6e-7 less at 50 K than the published end of its
-    # range, 1.934959e-40 Pa, below which SUBLIME_TEMP answers #NUM!
-    T = np.linspace(50.0, TT, 2001)[1:]
+    # from 50 K, the bottom of the range (IAPWS R14-08 eq. 6 evaluated there, full precision), to Tt
+    T = np.linspace(50.0, TT, 2001)
     np.testing.assert_allclose(num(SUBLIME_TEMP(W, SUBLIME_PRESSURE(W, T))), T, rtol=1e-9)
     assert SUBLIME_TEMP(W, SUBLIME_PRESSURE(W, 0.01, "degC")) == pytest.approx(TT, rel=1e-9)
     assert is_error(SUBLIME_TEMP(W, 1.9e-40), NUM, "below the sublimation line's range")
