@@ -253,7 +253,7 @@ def test_error_values(formula, code):
 
 
 def test_unknown_function_reason():
-    assert calc("=FOO(1)") == CellError(NAME, "unknown function FOO")  # brief
+    assert calc("=FOO(1)") == CellError(NAME, "unknown function FOO")  # the pack's own message
     assert compute("=A1").reason == "A1 is a cell reference, but the formula has no workbook"  # engine contract
 
 
@@ -319,7 +319,7 @@ def test_broadcasting():
 
 
 def test_shape_mismatch():
-    # brief: one #VALUE! naming both shapes
+    # the pack's contract: one #VALUE! naming both shapes
     assert calc("={1,2,3;4,5,6}+{1;2;3;4}") == CellError(VALUE, "array shapes 2x3 and 4x1 do not match")
     assert calc("={1,2}*{1,2,3}") == CellError(VALUE, "array shapes 1x2 and 1x3 do not match")
 

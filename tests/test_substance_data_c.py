@@ -2,7 +2,7 @@
 
 The reference values of these checks (normal boiling point, triple point, critical point) are the constants
 of the same data file; each names its source there (handbook table or reference-equation paper, recalled
-from memory, marked ``memory = true``). Tolerances are the data brief's: 0.5 K on the normal boiling point,
+from memory, marked ``memory = true``). Tolerances are the project's data checks: 0.5 K on the normal boiling point,
 2 % (5 % for associating fluids) on the triple-point pressure, 2 % on the critical pressure, 1 % where a
 melting line meets the triple point.
 """
