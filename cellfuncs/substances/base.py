@@ -137,19 +137,32 @@ class Substance:
         r.flag((phase == FLUID) & (T < tc), BAD_ARGUMENT, "{} K is below the critical temperature of "
                + f"{self.name} ({tc:.6g} K): ask for liquid or vapor", T)
         self._unmodelled(r, phase, blank)
-        fields = {name: np.full(T.shape, np.nan) for name in Props._fields}
+        fields: dict[str, np.ndarray] = {}  # filled by the phase methods through _put
         ok = np.broadcast_to(r.ok, T.shape)
-        for code, method in self._phase_methods().items():
-            sel = (phase == code) & ok
-            if sel.any():
-                method(T[sel], p[sel], sel, r, fields)
-        return Props(**fields), r
+        methods = self._phase_methods()
+        # one phase for every element, all still unflagged: the usual single-cell case
+        one = int(phase.flat[0]) if phase.size and r.problems is None and (phase == phase.flat[0]).all() else None
+        if one is not None and one in methods:
+            methods[one](T.reshape(-1), p.reshape(-1), np.ones(T.shape, bool), r, fields)
+        elif one is None:
+            for code in np.unique(phase[ok]):
+                if int(code) in methods:
+                    sel = (phase == code) & ok
+                    methods[int(code)](T[sel], p[sel], sel, r, fields)
+        missing = np.full(T.shape, np.nan)
+        return Props(**{name: fields.get(name, missing) for name in Props._fields}), r
 
     @staticmethod
     def _put(fields: dict, sel: np.ndarray, part, values: dict) -> None:
         """Store values of the elements ``part`` of the selection ``sel`` in the full-shape fields."""
         index = np.flatnonzero(sel)[part]
+        whole = index.size == sel.size  # every element: take the arrays as they are
         for name, value in values.items():
+            if whole and np.size(value) == sel.size:
+                fields[name] = np.asarray(value, dtype=float).reshape(sel.shape)
+                continue
+            if name not in fields:
+                fields[name] = np.full(sel.shape, np.nan)
             fields[name].flat[index] = value if np.shape(value) == index.shape else np.broadcast_to(value, index.shape)
 
     @staticmethod
