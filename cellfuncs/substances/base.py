@@ -42,6 +42,17 @@ _FIELD_NAMES = {"v": "the molar volume", "alpha": "the thermal expansivity", "ka
                 "g": "the chemical potential", "h": "the enthalpy"}
 
 
+class Fields(dict):
+    """A call's properties by field name, as the phase methods store them, and the fields it needs."""
+
+    def __init__(self, want: tuple[str, ...] | None = None):
+        super().__init__()
+        self.want = want
+
+    def wants(self, name: str) -> bool:
+        return self.want is None or name in self.want
+
+
 class FixedPoint(NamedTuple):
     temperature: float  # K
     pressure: float  # Pa
@@ -118,8 +129,12 @@ class Substance:
         labels.values[ok] = self._labels[codes.values[ok].astype(int)]
         return labels
 
-    def props(self, T, p, phase=STABLE) -> tuple[Props, Result]:
-        """Molar properties of ``phase`` at (T, p); the Result carries the problems only."""
+    def props(self, T, p, phase=STABLE, want: tuple[str, ...] | None = None) -> tuple[Props, Result]:
+        """Molar properties of ``phase`` at (T, p); the Result carries the problems only.
+
+        ``want`` names the fields the caller needs; a model may leave the others NaN
+        when they cost extra work (None: all of them).
+        """
         T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
         r = Result(np.full(T.shape, np.nan))
         blank = phase == STABLE
@@ -137,7 +152,7 @@ class Substance:
         r.flag((phase == FLUID) & (T < tc), BAD_ARGUMENT, "{} K is below the critical temperature of "
                + f"{self.name} ({tc:.6g} K): ask for liquid or vapor", T)
         self._unmodelled(r, phase, blank)
-        fields: dict[str, np.ndarray] = {}  # filled by the phase methods through _put
+        fields = Fields(want)  # filled by the phase methods through _put
         ok = np.broadcast_to(r.ok, T.shape)
         methods = self._phase_methods()
         # one phase for every element, all still unflagged: the usual single-cell case
@@ -204,7 +219,7 @@ class Substance:
 
     # --- quantities derived from the above ---------------------------------------------
     def _one_property(self, T, p, phase, field: str) -> Result:
-        props, result = self.props(T, p, phase)
+        props, result = self.props(T, p, phase, want=(field,))
         values = getattr(props, field)
         # a model leaves NaN where it has no formulation for the quantity (a solid's expansivity
         # without data, for one); say so rather than pass a NaN on

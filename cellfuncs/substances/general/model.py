@@ -452,16 +452,22 @@ class GeneralSubstance(Substance):
         sub.flag(~tait & (q > p_sat * (1 + LINE_TOL)), OUT_OF_RANGE, lambda tt, qq: f"compressed liquid {self.name} "
                  f"at {fmt(tt)} K and {fmt(qq)} Pa is too near its critical temperature ({fmt(self.tc)} K) for the "
                  "Tait compression estimate", t, q)
-        self._store(fields, sel, r, sub, v=volume, g=self._mu_liquid(t_in, q), alpha=np.where(tait, alpha, np.nan),
-                    kappa=np.where(tait, self.liquid.compressibility(t_in, q, p_sat), np.nan))
+        values = dict(v=volume, alpha=np.where(tait, alpha, np.nan),
+                      kappa=np.where(tait, self.liquid.compressibility(t_in, q, p_sat), np.nan))
+        if fields.wants("g"):  # the chemical potential needs the vapour's fugacity: only when asked
+            values["g"] = self._mu_liquid(t_in, q)
+        self._store(fields, sel, r, sub, **values)
 
     def _gas(self, t, q, sel, r, fields, sub: Result) -> None:
         z = self.eos.compressibility(t, q, "vapor")
         volume = z * R * t / q
-        dp_dv, dp_dT = self.eos.derivatives(t, volume)
-        g = R * t * (np.log(q / P0) + self.eos.ln_fugacity_coefficient(t, q, z))
-        self._store(fields, sel, r, sub, v=volume, g=g, kappa=-1.0 / (volume * dp_dv),
-                    alpha=-dp_dT / (volume * dp_dv))
+        values = dict(v=volume)
+        if fields.wants("alpha") or fields.wants("kappa"):
+            dp_dv, dp_dT = self.eos.derivatives(t, volume)
+            values.update(kappa=-1.0 / (volume * dp_dv), alpha=-dp_dT / (volume * dp_dv))
+        if fields.wants("g"):
+            values["g"] = R * t * (np.log(q / P0) + self.eos.ln_fugacity_coefficient(t, q, z))
+        self._store(fields, sel, r, sub, **values)
 
     def _vapor(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
@@ -469,7 +475,9 @@ class GeneralSubstance(Substance):
         if self._sub_range is not None:
             sub.flag(t < self._sub_range[0], OUT_OF_RANGE, "{} K is below the sublimation line's range for "
                      + f"{self.name} ({fmt(self._sub_range[0])} K)", t)
-            p_line = np.where(cold, self._p_sub(np.clip(t, *self._sub_range)), self._p_boil(np.clip(t, self.t_low, self.tc)))
+            p_line = self._p_boil(np.clip(t, self.t_low, self.tc))
+            if cold.any():
+                p_line = np.where(cold, self._p_sub(np.clip(t, *self._sub_range)), p_line)
         else:
             sub.flag(cold, OUT_OF_RANGE, "{} K is below the " + self._low_name() + f" of {self.name}", t)
             p_line = self._p_boil(np.clip(t, self.t_low, self.tc))
