@@ -371,9 +371,7 @@ class GeneralSubstance(Substance):
             melt = high & (p >= p_lo) & (p <= p_hi)
             if melt.any():
                 t_solid[melt] = self._t_melt(p[melt])
-        elif self.has_triple:
-            r.flag(high & (T < self.triple.temperature), NOT_AVAILABLE, f"{self.name} has no melting line (the data "
-                   "lack the enthalpy of fusion or the solid density): solid and liquid cannot be told apart")
+        # (with a triple point there is always a melting line: published, Clapeyron or pressure-independent)
         if self._sub_range is not None:
             p_lo = float(self._p_sub(np.array(self._sub_range[0])))
             # below the line's lowest pressure the vapour is stable wherever the line is known
