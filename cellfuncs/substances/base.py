@@ -212,11 +212,6 @@ class Substance:
         names = ", ".join(['"liquid"', '"vapor"', '"gas"', '"supercritical fluid"', '"solid"'] + [f'"{s}"' for s in self.solids if s != "solid"])
         raise ModelError(BAD_ARGUMENT, f"unknown phase '{word}' for {self.name}; use one of {names}")
 
-    def phase_label(self, code: int) -> str:
-        if code >= SOLID:
-            return self.solids[code - SOLID]
-        return {LIQUID: "liquid", VAPOR: "vapor", FLUID: "supercritical fluid", STABLE: "stable phase"}[code]
-
     # --- quantities derived from the above ---------------------------------------------
     def _one_property(self, T, p, phase, field: str) -> Result:
         props, result = self.props(T, p, phase, want=(field,))

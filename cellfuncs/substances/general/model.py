@@ -306,7 +306,9 @@ class GeneralSubstance(Substance):
         r.fill(self._p_melt(np.clip(T, lo, hi)))
         return r, SOLID
 
+    @cached_property
     def _melt_p_range(self) -> tuple[float, float]:
+        """Pressures at the ends of the melting line (fixed per substance: computed once)."""
         if self._melt_slope == np.inf:
             return self.triple.pressure, VERTICAL_P_MAX
         lo, hi = self._melt_range
@@ -318,7 +320,7 @@ class GeneralSubstance(Substance):
         if self._melt_range is None:
             self._missing(r, "melting", _NO_TRIPLE + " and no melting equation")
             return r, SOLID
-        p_lo, p_hi = self._melt_p_range()
+        p_lo, p_hi = self._melt_p_range
         r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the melting line of "
                + f"{self.name} (from {fmt(p_lo)} Pa)", p, see="sublime" if self.has_triple else "")
         r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the melting line's range for "
@@ -339,6 +341,11 @@ class GeneralSubstance(Substance):
         r.fill(self._p_sub(np.clip(T, lo, hi)))
         return r
 
+    @cached_property
+    def _p_sub_low(self) -> float:
+        """Pressure at the low end of the sublimation line."""
+        return float(self._p_sub(np.array(self._sub_range[0])))
+
     def _no_sublimation_reason(self) -> str:
         if not self.has_triple:
             return _NO_TRIPLE + ": helium, liquid down to 0 K at low pressure, has none"
@@ -350,7 +357,7 @@ class GeneralSubstance(Substance):
             self._missing(r, "solid-vapour", self._no_sublimation_reason())
             return r
         lo, hi = self._sub_range
-        p_lo, p_hi = float(self._p_sub(np.array(lo))), self.triple.pressure
+        p_lo, p_hi = self._p_sub_low, self.triple.pressure
         r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of "
                + f"{self.name} ({fmt(p_hi)} Pa)", p, see="boil")
         r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the sublimation line's range for "
@@ -365,7 +372,7 @@ class GeneralSubstance(Substance):
         high = p >= self.triple.pressure if self.has_triple else np.ones(T.shape, bool)
         t_solid = np.full(T.shape, -np.inf)
         if self._melt_range is not None:
-            p_lo, p_hi = self._melt_p_range()
+            p_lo, p_hi = self._melt_p_range
             r.flag(high & (p > p_hi * (1 + LINE_TOL)), OUT_OF_RANGE, "{} Pa is above the melting line's range for "
                    + f"{self.name} ({fmt(p_hi)} Pa)", p)
             melt = high & (p >= p_lo) & (p <= p_hi)
@@ -373,7 +380,7 @@ class GeneralSubstance(Substance):
                 t_solid[melt] = self._t_melt(p[melt])
         # (with a triple point there is always a melting line: published, Clapeyron or pressure-independent)
         if self._sub_range is not None:
-            p_lo = float(self._p_sub(np.array(self._sub_range[0])))
+            p_lo = self._p_sub_low
             # below the line's lowest pressure the vapour is stable wherever the line is known
             r.flag(~high & (p < p_lo) & (T < self._sub_range[0]), OUT_OF_RANGE,
                    "{} Pa is below the sublimation line's range for " + f"{self.name} ({fmt(p_lo)} Pa)", p)
@@ -428,7 +435,7 @@ class GeneralSubstance(Substance):
         sub.flag(q < p_sat * (1 - LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"liquid {self.name} at {fmt(tt)} K and "
                  f"{fmt(qq)} Pa is below its vapour pressure: superheated liquid is outside the model", t, q)
         if self._melt_range is not None:
-            p_lo, p_hi = self._melt_p_range()
+            p_lo, p_hi = self._melt_p_range
             frozen = (q >= p_lo) & (q <= p_hi)
             if frozen.any():
                 t_m = np.full(t.shape, -np.inf)
