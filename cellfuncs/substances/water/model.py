@@ -71,6 +71,10 @@ _SUB_P_MIN = ice_lines.line_range("sublimation")[1][0]
 _MELT_T_NEAR = ice_lines.line_range("V")[0][1]
 _MELT_P_NEAR = ice_lines.line_range("V")[1][1]
 
+# messages of the range checks made on every call, formatted once
+_ABOVE_ICE_VII = "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)"
+_BELOW_SUBLIMATION = "{} Pa is below the sublimation line's range (" + fmt(_SUB_P_MIN) + " Pa at 50 K)"
+
 _LABELS, _STATE_PHASE = state_table(SOLIDS)
 
 
@@ -145,7 +149,7 @@ class Water(Substance):
         r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)",
                p, see="sublime")
         r.flag(p > _MELT_P_TOP * (1 + LINE_TOL), OUT_OF_RANGE,
-               "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)", p)
+               _ABOVE_ICE_VII, p)
         inside = np.clip(p, PT, _MELT_P_TOP)  # the inverse gives NaN past the ends
         T, index = ice_lines.melting_temperature_any(np.where(np.broadcast_to(r.ok, np.shape(p)), inside, np.nan))
         r.fill(T)
@@ -161,10 +165,9 @@ class Water(Substance):
 
     def sublime_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
-        p_min = _SUB_P_MIN
         r.flag(p > PT * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa)",
                p, see="boil")
-        r.flag(p < p_min, OUT_OF_RANGE, "{} Pa is below the sublimation line's range (" + fmt(p_min) + " Pa at 50 K)", p)
+        r.flag(p < _SUB_P_MIN, OUT_OF_RANGE, _BELOW_SUBLIMATION, p)
         r.fill(ice_lines.sublimation_temperature(np.minimum(p, PT)))  # the inverse gives NaN past the end
         return r
 
@@ -176,9 +179,9 @@ class Water(Substance):
         r.flag(T > REGION5_T_MAX, OUT_OF_RANGE,
                "{} K is above the highest temperature of the water formulations (2273.15 K)", T)
         r.flag(p > _MELT_P_TOP, OUT_OF_RANGE,
-               "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)", p)
+               _ABOVE_ICE_VII, p)
         r.flag((p < _SUB_P_MIN) & (T < TT), OUT_OF_RANGE,
-               "{} Pa is below the sublimation line's range (" + fmt(_SUB_P_MIN) + " Pa at 50 K)", p)
+               _BELOW_SUBLIMATION, p)
         high = p >= PT
         # the solid is stable below one line: melting above the triple-point pressure (a
         # single-valued T(p) there), sublimation below it
