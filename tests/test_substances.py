@@ -666,3 +666,16 @@ def test_a_published_line_ending_at_its_own_critical_point_still_inverts(name):
     pressures = np.array([0.99, 0.999999]) * top
     assert num(BOIL_PRESSURE(name, BOIL_TEMP(name, pressures))) == pytest.approx(pressures, rel=1e-9)
     assert is_error(BOIL_TEMP(name, 1.001 * top), NUM, "top of the boiling line")
+
+
+# Refrigerant blends are mixtures (ANSI/ASHRAE Standard 34, from memory of its table of blends);
+# air, LPG and natural gas are mixtures (common practice). The pack names them as such.
+@pytest.mark.parametrize("name, component", [("R-410A", "R-125"), ("r404a", "R-143a"), ("R-407C", "R-134a"),
+                                             ("R-454B", "R-1234yf"), ("R-513A", "R-134a"), ("air", "oxygen"),
+                                             ("LNG", "methane"), ("LPG", "propane")])
+def test_mixture_names_say_they_are_mixtures(name, component):
+    from cellfuncs.sheet.functions import BOIL_TEMP
+
+    result = BOIL_TEMP(name, 1, "atm")
+    assert isinstance(result, CellError) and result.code == VALUE
+    assert "is a mixture" in result.reason and component in result.reason and "pure substances" in result.reason

@@ -50,11 +50,36 @@ def names() -> list[str]:
     return sorted(s.name for s in _catalogue()[1])
 
 
+def _normal(name: str) -> str:
+    return " ".join(str(name).split()).lower()
+
+
+@lru_cache(maxsize=1)
+def _mixtures() -> dict[str, tuple[str, str]]:
+    """Lower-case mixture names (with and without a designation's hyphen) -> (name, components)."""
+    from ..data import load
+
+    table = {}
+    for name, entry in load("mixtures")["mixtures"].items():
+        for key in (name, name.replace("-", ""), *entry.get("aliases", ())):
+            table[_normal(key)] = (name, entry["components"])
+    return table
+
+
 def lookup(name: str) -> Substance:
-    """The substance called ``name``; an unknown or ambiguous name raises ModelError."""
-    key = " ".join(str(name).split()).lower()
+    """The substance called ``name``; an unknown or ambiguous name raises ModelError.
+
+    >>> lookup("R-410A")
+    Traceback (most recent call last):
+    ...
+    cellfuncs.substances.result.ModelError: 'R-410A' is a mixture (R-32/R-125, 50/50 % by mass); this pack models pure substances
+    """
+    key = _normal(name)
     found = _catalogue()[0].get(key)
     if not found:
+        mixture = _mixtures().get(key)
+        if mixture is not None:
+            raise ModelError(BAD_ARGUMENT, f"'{name}' is a mixture ({mixture[1]}); this pack models pure substances")
         raise ModelError(BAD_ARGUMENT, f"unknown substance '{name}'; SUBSTANCES() lists the known names")
     if len(found) > 1:
         which = ", ".join(sorted(s.name for s in found))
