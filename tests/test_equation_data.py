@@ -1,0 +1,180 @@
+"""Every Helmholtz-energy equation's data file against check values printed in its own publication.
+
+The coefficients in ``cellfuncs/data/equations/`` were transcribed from memory of the papers'
+tables (each file says so with ``memory = true``); so were the check values below, each named
+beside its table with the publication and table or section it comes from. Coefficients and
+check values were recalled independently: a wrong digit in a coefficient does not reproduce a
+paper's saturation state or critical point to its printed digits.
+
+Printed values are written as strings so that each check's tolerance is half a unit in the last
+printed digit, nothing more; where a printed input (a temperature such as 77.355 K) is itself
+rounded, the tolerance adds the output's change over half a unit of that input.
+
+Kinds of table:
+
+- ``critical``: the paper's critical point (Tc, rho_c, p_c). The reference equations were fitted
+  with the critical conditions as constraints, so at (Tc, rho_c) the equation gives p_c to the
+  printed digits and (dp/drho)_T = (d2p/drho2)_T = 0 (checked relative to RT and RT/rho_c to 1e-6).
+- ``saturation``: (T, p_s, rho', rho''): the phase equilibrium of the equation itself (equal
+  pressure and Gibbs energy, solved here by Newton from the printed densities) reproduces the
+  printed pressure and densities. Columns the paper's row does not give (or that were not
+  recalled) are "".
+- ``state``: single-phase values at a printed (T, rho).
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import dataclass
+from importlib import resources
+
+import numpy as np
+import pytest
+
+from cellfuncs.substances.helmholtz.equation import equation
+from cellfuncs.substances.helmholtz.schema import CONSTANTS
+
+
+@dataclass(frozen=True)
+class Table:
+    key: str  # data file cellfuncs/data/equations/<key>.toml
+    source: str  # publication and table the rows are printed in
+    kind: str  # "critical" | "saturation" | "state"
+    density_unit: str  # "kg/m3" or "mol/dm3", as printed
+    rows: tuple
+    energy_unit: str = "J/mol"  # "J/mol" (J/(mol K)) or "kJ/kg" (kJ/(kg K)) for state tables
+
+
+TABLES = [
+    # --- carbon dioxide ---------------------------------------------------------------------
+    Table("carbon-dioxide", "Span and Wagner (1996), Sec. 3.1.2 critical point (from memory)", "critical", "kg/m3",
+          (("304.1282", "467.6", "7.3773"),)),
+    Table("carbon-dioxide", "Span and Wagner (1996), Table 34, saturated carbon dioxide (from memory of Table 34)",
+          "saturation", "kg/m3",
+          (("216.592", "0.51796", "1178.46", "13.761"),
+           ("220", "0.59913", "1166.14", ""),
+           ("250", "1.7850", "1045.97", "46.644"),
+           ("280", "4.1607", "883.58", ""),
+           ("300", "6.7131", "679.24", "268.58"))),
+    # --- nitrogen ---------------------------------------------------------------------------
+    Table("nitrogen", "Span et al. (2000), Sec. 3.2 critical point (from memory)", "critical", "mol/dm3",
+          (("126.192", "11.1839", "3.3958"),)),
+    Table("nitrogen", "Span et al. (2000), Sec. 3.1 triple point and Sec. 3.3 normal boiling point (from memory)",
+          "saturation", "mol/dm3",
+          (("63.151", "0.0125198", "30.957", ""),
+           ("77.355", "0.101325", "", ""))),
+    # --- methane ----------------------------------------------------------------------------
+    Table("methane", "Setzmann and Wagner (1991), Sec. 3.1 triple point and Sec. 3.3 normal boiling point (from memory)",
+          "saturation", "mol/dm3",
+          (("90.6941", "0.011696", "28.142", ""),
+           ("111.667", "0.101325", "", ""))),
+]
+
+DENSITY = {"kg/m3": None, "mol/dm3": 1e3}  # None: divide by the equation's molar mass
+
+
+def printed(text: str) -> tuple[float, float]:
+    """A printed number and half a unit in its last digit."""
+    mantissa = text.lower().split("e")[0]
+    decimals = len(mantissa.split(".")[1]) if "." in mantissa else 0
+    exponent = int(text.lower().split("e")[1]) if "e" in text.lower() else 0
+    return float(text), 0.5 * 10.0 ** (exponent - decimals)
+
+
+def molar_density(eq, value: float, unit: str) -> float:
+    scale = DENSITY[unit]
+    return value / eq.M if scale is None else value * scale
+
+
+def saturation(eq, T: float, rho_l: float, rho_v: float) -> tuple[float, float, float]:
+    """(p, rho', rho'') of the equation's own phase equilibrium at T, by Newton from a close start."""
+    x = np.log([rho_l, rho_v])
+    for _ in range(60):
+        rl, rv = np.exp(x)
+        s = eq.state(T, np.array([rl, rv]))
+        rt = eq.R * T
+        f = np.array([(s.p[0] - s.p[1]) / (rt * eq.rhoc), (s.g[0] - s.g[1]) / rt])
+        # d/d(ln rho) of p and g at constant T: rho dp/drho and dp/drho
+        jac = np.array([[rl * s.dp_drho[0] / eq.rhoc, -rv * s.dp_drho[1] / eq.rhoc],
+                        [s.dp_drho[0], -s.dp_drho[1]]]) / rt
+        step = np.linalg.solve(jac, -f)
+        x = x + np.clip(step, -0.2, 0.2)
+        if np.max(np.abs(step)) < 1e-13:
+            break
+    rl, rv = np.exp(x)
+    return float(eq.pressure(T, rl)[0]), float(rl), float(rv)
+
+
+def _rows(kind: str):
+    for table in TABLES:
+        if table.kind == kind:
+            for row in table.rows:
+                yield pytest.param(table, row, id=f"{table.key}-{row[0]}")
+
+
+@pytest.mark.parametrize(("table", "row"), list(_rows("critical")))
+def test_critical_point(table: Table, row) -> None:
+    eq = equation(table.key)
+    (Tc, dT), (rhoc, _), (pc, dp) = (printed(v) for v in row)
+    rho = molar_density(eq, rhoc, table.density_unit)
+    assert abs(eq.Tc - Tc) <= dT and abs(eq.rhoc - rho) <= 1e-9 * rho, "reducing constants are the critical point"
+    h = 1e-4 * rho
+    s = eq.state(Tc, np.array([rho - h, rho, rho + h]))
+    rt = eq.R * Tc
+    assert abs(s.p[1] / 1e6 - pc) <= dp, f"{table.source}: p = {s.p[1] / 1e6} MPa"
+    assert abs(s.dp_drho[1] / rt) < 1e-6
+    assert abs((s.dp_drho[2] - s.dp_drho[0]) / (2 * h) * rho / rt) < 1e-6
+
+
+@pytest.mark.parametrize(("table", "row"), list(_rows("saturation")))
+def test_saturation_state(table: Table, row) -> None:
+    eq = equation(table.key)
+    T, dT = printed(row[0])
+    # Start Newton from the printed densities, or from a rough estimate where a column is blank.
+    guess_l = molar_density(eq, printed(row[2])[0], table.density_unit) if row[2] else 3.0 * eq.rhoc
+    guess_v = (molar_density(eq, printed(row[3])[0], table.density_unit) if row[3]
+               else printed(row[1])[0] * 1e6 / (eq.R * T))
+    got = np.array(saturation(eq, T, guess_l, guess_v))
+    # The outputs' change over half a unit of the printed temperature, when that is rounded.
+    near = np.array(saturation(eq, T + dT, *got[1:]))
+    wiggle = np.abs(near - got)
+    scale = {1: 1e6, 2: None, 3: None}
+    for col, (value, w) in zip((1, 2, 3), zip(got, wiggle)):
+        if not row[col]:
+            continue
+        want, tol = printed(row[col])
+        if col == 1:
+            got_printed, w_printed = value / 1e6, w / 1e6
+        else:
+            unit = DENSITY[table.density_unit]
+            factor = eq.M if unit is None else 1.0 / unit
+            got_printed, w_printed = value * factor, w * factor
+        assert abs(got_printed - want) <= tol + w_printed, (
+            f"{table.source}, T = {row[0]} K, column {col}: got {got_printed:.8g}, printed {row[col]}")
+
+
+def _equation_files() -> list[str]:
+    folder = resources.files("cellfuncs.data").joinpath("equations")
+    return sorted(p.name[: -len(".toml")] for p in folder.iterdir() if p.name.endswith(".toml"))
+
+
+def test_every_equation_file_has_check_values() -> None:
+    """Nothing unverified ships: each data file has a table of its publication's check values
+    that reaches into the liquid (a saturated-liquid density or a dense state)."""
+    checked = {t.key for t in TABLES}
+    assert set(_equation_files()) <= checked, f"no check values for {sorted(set(_equation_files()) - checked)}"
+    assert checked <= set(_equation_files()), f"check values for missing files {sorted(checked - set(_equation_files()))}"
+    for key in checked:
+        dense = [t for t in TABLES if t.key == key and (t.kind == "state" or any(r[2] for r in t.rows if t.kind == "saturation"))]
+        assert dense, f"{key}: no check value in the liquid"
+
+
+@pytest.mark.parametrize("key", _equation_files())
+def test_file_says_where_its_coefficients_came_from(key: str) -> None:
+    text = resources.files("cellfuncs.data").joinpath(f"equations/{key}.toml").read_text(encoding="utf-8")
+    raw = tomllib.loads(text)
+    assert "memory" in raw, "each file states whether its coefficients were recalled (memory = true) or read"
+    assert raw["memory"] or "http" in text, "coefficients read from a stored copy name its address"
+    eq = equation(key)
+    assert set(eq.constants) == set(CONSTANTS)
+    assert eq.T_min < eq.Tc < eq.T_max and eq.p_max > 0
