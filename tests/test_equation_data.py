@@ -19,7 +19,8 @@ Kinds of table:
   pressure and Gibbs energy, solved here by Newton from the printed densities) reproduces the
   printed pressure and densities. Columns the paper's row does not give (or that were not
   recalled) are "".
-- ``state``: single-phase values at a printed (T, rho).
+- ``state``: single-phase values at a printed (T, rho): rows (T, rho, p / MPa, cv, cp, w / (m/s)),
+  heat capacities in J/(mol K) (or kJ/(kg K) where ``energy_unit`` is "kJ/kg"); "" where not printed.
 """
 
 from __future__ import annotations
@@ -68,6 +69,16 @@ TABLES = [
           "saturation", "mol/dm3",
           (("90.6941", "0.011696", "28.142", ""),
            ("111.667", "0.101325", "", ""))),
+    # --- propane ----------------------------------------------------------------------------
+    Table("propane", "Lemmon, McLinden and Wagner (2009), table of calculated values for algorithm verification "
+          "(from memory; table number not recalled)", "state", "mol/dm3",
+          (("200", "14", "2.3795138", "61.078424", "93.475362", "1381.9552"),
+           ("300", "12", "19.053797", "", "", ""))),
+    Table("propane", "Lemmon, McLinden and Wagner (2009), critical-point section (from memory)", "critical", "mol/dm3",
+          (("369.89", "5.0", "4.2512"),)),
+    Table("propane", "Lemmon, McLinden and Wagner (2009), fixed points: normal boiling point (from memory)",
+          "saturation", "mol/dm3",
+          (("231.036", "0.101325", "", ""),)),
 ]
 
 DENSITY = {"kg/m3": None, "mol/dm3": 1e3}  # None: divide by the equation's molar mass
@@ -151,6 +162,20 @@ def test_saturation_state(table: Table, row) -> None:
             got_printed, w_printed = value * factor, w * factor
         assert abs(got_printed - want) <= tol + w_printed, (
             f"{table.source}, T = {row[0]} K, column {col}: got {got_printed:.8g}, printed {row[col]}")
+
+
+@pytest.mark.parametrize(("table", "row"), list(_rows("state")))
+def test_single_phase_state(table: Table, row) -> None:
+    eq = equation(table.key)
+    T = printed(row[0])[0]
+    rho = molar_density(eq, printed(row[1])[0], table.density_unit)
+    s = eq.state(T, rho)
+    per = 1.0 if table.energy_unit == "J/mol" else 1e-3 / eq.M  # J/(mol K) -> kJ/(kg K)
+    got = {"p": float(s.p) / 1e6, "cv": float(s.cv) * per, "cp": float(s.cp) * per, "w": float(s.w)}
+    for name, text in zip(("p", "cv", "cp", "w"), row[2:]):
+        if text:
+            want, tol = printed(text)
+            assert abs(got[name] - want) <= tol, f"{table.source}, ({row[0]} K, {row[1]}): {name} = {got[name]:.10g}, printed {text}"
 
 
 def _equation_files() -> list[str]:
