@@ -220,6 +220,23 @@ def test_single_phase_state(table: Table, row) -> None:
             assert abs(got[name] - want) <= tol, f"{table.source}, ({row[0]} K, {row[1]}): {name} = {got[name]:.10g}, printed {text}"
 
 
+# The ideal part's heat capacity, which no saturation check sees (water's and propane's are checked
+# by their tables' cv and w above), against the JANAF tables
+# (M. W. Chase, NIST-JANAF Thermochemical Tables, 4th ed., J. Phys. Chem. Ref. Data Monograph 9,
+# 1998; values from memory). Tolerance 0.1 %: the spread between ideal-gas tabulations (common practice).
+JANAF_CP = [
+    ("nitrogen", 298.15, 29.124), ("nitrogen", 500.0, 29.580), ("nitrogen", 1000.0, 32.697),
+    ("carbon-dioxide", 298.15, 37.129), ("carbon-dioxide", 500.0, 44.627), ("carbon-dioxide", 1000.0, 54.308),
+    ("hydrogen", 298.15, 28.836), ("hydrogen", 500.0, 29.260), ("hydrogen", 1000.0, 30.205),
+]
+
+
+@pytest.mark.parametrize(("key", "T", "cp0"), JANAF_CP)
+def test_ideal_gas_heat_capacity(key: str, T: float, cp0: float) -> None:
+    cp = float(equation(key).state(T, 1e-6).cp)  # J/(mol K); 1e-6 mol/m3 is the ideal-gas limit
+    assert abs(cp / cp0 - 1.0) < 1e-3
+
+
 def _equation_files() -> list[str]:
     folder = resources.files("cellfuncs.data").joinpath("equations")
     return sorted(p.name[: -len(".toml")] for p in folder.iterdir() if p.name.endswith(".toml"))
