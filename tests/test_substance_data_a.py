@@ -36,7 +36,7 @@ UNITS = {
     "critical_temperature": "K",
     "critical_pressure": "Pa",
     "critical_density": "kg/m3",
-    "acentric_factor": "-",
+    "acentric_factor": "",
     "triple_point_temperature": "K",
     "triple_point_pressure": "Pa",
     "normal_boiling_point": "K",
@@ -44,7 +44,7 @@ UNITS = {
     "enthalpy_of_fusion": "J/mol",
     "liquid_density": "kg/m3",
     "solid_density": "kg/m3",
-    "liquid_heat_capacity": "J/(mol K)",
+    "liquid_heat_capacity": "J/(mol*K)",
 }
 REQUIRED = ["molar_mass", "critical_temperature", "critical_pressure", "critical_density", "acentric_factor"]
 WITH_STATE = {"liquid_density", "solid_density", "liquid_heat_capacity"}
