@@ -331,7 +331,11 @@ def test_latent_heat_of_boiling_at_the_normal_boiling_point(name, T, kj_per_mol)
 
 
 FROM_A_PUBLISHED_MELTING_LINE = ["argon", "carbon dioxide", "nitrogen"]
-FROM_THE_ENTHALPY_OF_FUSION = ["acetic acid", "ammonia", "benzene", "hydrogen", "neon", "sulfur hexafluoride"]
+FROM_THE_ENTHALPY_OF_FUSION = [
+    "2-propanol", "acetic acid", "acetone", "acetonitrile", "ammonia", "benzene", "carbon monoxide", "chlorine",
+    "cyclohexane", "dichloromethane", "diethyl ether", "ethanol", "ethyl acetate", "ethylene", "ethylene glycol",
+    "hydrogen", "hydrogen sulfide", "n-heptane", "n-hexane", "n-octane", "n-pentane", "neon", "nitrous oxide", "oxygen",
+    "p-xylene", "propane", "propylene", "sulfur dioxide", "sulfur hexafluoride", "toluene"]
 
 
 def test_latent_heat_of_melting_has_the_substances_it_should():
