@@ -304,3 +304,23 @@ def test_units_command_lists_every_quantity(capsys):
     out = capsys.readouterr().out
     for heading in ("temperature:", "pressure:", "plant spellings:", "barg@1600m"):
         assert heading in out
+
+
+# --- the usual units without pint ----------------------------------------------------------------
+
+def test_the_common_unit_table_is_what_pint_computes_from_units_txt():
+    from importlib import resources
+
+    stored = resources.files("cellfuncs").joinpath("data", "unit_table.toml").read_text(encoding="utf-8")
+    assert stored == units.common_table_text(), "regenerate: python -m cellfuncs.units > cellfuncs/data/unit_table.toml"
+
+
+def test_a_formula_in_common_units_does_not_import_pint():
+    import subprocess
+    import sys
+
+    code = ("import sys; from cellfuncs.sheet.functions import BOIL_TEMP, MASS_DENSITY; "
+            "BOIL_TEMP('water', 1, 'atm', 'degC'); MASS_DENSITY('water', 20, 5, '', 'degC', 'barg', 'kg/m3'); "
+            "print('pint' in sys.modules)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert done.stdout.strip() == "False", done.stdout + done.stderr
