@@ -106,8 +106,7 @@ def _molar(p: Props) -> Props:
 
 
 class Water(Substance):
-    name = "water"
-    aliases = ("water", "h2o", "r-718", "r718")
+    name = load(_DATA)["name"]
     molar_mass = M
     critical = FixedPoint(TC, PC)
     triple = FixedPoint(TT, PT)
