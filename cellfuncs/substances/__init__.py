@@ -28,7 +28,6 @@ def _keys(substance: Substance, formula: str, designation: str, aliases) -> set[
 @lru_cache(maxsize=None)
 def _catalogue() -> tuple[dict[str, list[Substance]], tuple[Substance, ...]]:
     from .general.definition import builtin_keys, load_builtin
-    from .general.model import GeneralSubstance
     from .water.model import Water
 
     table: dict[str, list[Substance]] = {}
@@ -38,11 +37,22 @@ def _catalogue() -> tuple[dict[str, list[Substance]], tuple[Substance, ...]]:
         table.setdefault(key, []).append(water)
     for file_key in builtin_keys():
         d = load_builtin(file_key)
-        substance = GeneralSubstance(d)
+        substance = _model(d)
         every.append(substance)
         for key in _keys(substance, d.formula, d.designation, d.aliases):
             table.setdefault(key, []).append(substance)
     return table, tuple(every)
+
+
+def _model(definition) -> Substance:
+    """The model of a definition: its equation of state's when it names one, else the general model."""
+    from .general.model import GeneralSubstance
+    from .helmholtz.equation import equation
+    from .helmholtz.substance import EquationSubstance
+
+    if definition.equation:
+        return EquationSubstance(definition, equation(definition.equation))
+    return GeneralSubstance(definition)
 
 
 def names() -> list[str]:
@@ -65,6 +75,5 @@ def lookup(name: str) -> Substance:
 def define(fields: Mapping[str, Any]) -> Substance:
     """A user-defined substance from field -> value or (value, unit); see general/definition.py."""
     from .general.definition import Definition
-    from .general.model import GeneralSubstance
 
-    return GeneralSubstance(Definition.from_fields(fields))
+    return _model(Definition.from_fields(fields))

@@ -12,13 +12,15 @@ T in K, rho in mol/m3, p in Pa, energies in J/mol.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import cached_property, lru_cache
+from functools import lru_cache
+from importlib import resources
+from typing import NamedTuple
 
 import numpy as np
 
 from ... import data
 from . import schema
-from .terms import GaussianTerms, IdealTerms, NonanalyticTerms, PowerTerms, evaluate
+from .terms import DERIVATIVES, IdealTerms, evaluate
 
 
 @dataclass(frozen=True)
@@ -54,6 +56,24 @@ class State:
         return 1.0 / (self.rho * self.dp_drho)
 
 
+class Mechanical(NamedTuple):
+    """The residual-only properties at (T, rho): pressure, its derivatives, the residual Gibbs energy."""
+
+    p: np.ndarray  # Pa
+    dp_drho: np.ndarray  # Pa m3/mol
+    dp_dT: np.ndarray  # Pa/K
+    g_residual: np.ndarray  # J/mol
+    rho: np.ndarray  # mol/m3
+
+    @property
+    def alpha(self) -> np.ndarray:
+        return self.dp_dT / (self.rho * self.dp_drho)
+
+    @property
+    def kappa(self) -> np.ndarray:
+        return 1.0 / (self.rho * self.dp_drho)
+
+
 class HelmholtzEquation:
     """One published Helmholtz-energy equation: reducing constants, term families, range."""
 
@@ -82,19 +102,31 @@ class HelmholtzEquation:
         delta = np.asarray(rho, dtype=float) / self.rhoc
         return evaluate((self._ideal,), tau, delta), evaluate(self._residual, tau, delta)
 
-    def residual(self, T, rho) -> dict:
-        """The residual part alone: all that pressure, density solving and phase equilibrium need."""
+    def residual(self, T, rho, want=DERIVATIVES) -> dict:
+        """The residual part alone (the derivatives named in ``want``): all that pressure, density
+        solving and phase equilibrium need."""
         tau = self.Tc / np.asarray(T, dtype=float)
         delta = np.asarray(rho, dtype=float) / self.rhoc
-        return evaluate(self._residual, tau, delta)
+        return evaluate(self._residual, tau, delta, want)
 
     def pressure(self, T, rho) -> tuple[np.ndarray, np.ndarray]:
         """p and (dp/drho)_T at (T, rho)."""
         T = np.asarray(T, dtype=float)
         rho = np.asarray(rho, dtype=float)
-        r = self.residual(T, rho)
+        r = self.residual(T, rho, ("d", "dd"))
         rt = self.R * T
         return rho * rt * (1.0 + r["d"]), rt * (1.0 + 2.0 * r["d"] + r["dd"])
+
+    def mechanical(self, T, rho) -> Mechanical:
+        """The properties that need no ideal-gas part: cheaper than :meth:`state`."""
+        T = np.asarray(T, dtype=float)
+        rho = np.asarray(rho, dtype=float)
+        r = self.residual(T, rho, ("a", "d", "dd", "dt"))
+        rt = self.R * T
+        z = 1.0 + r["d"]
+        return Mechanical(p=rho * rt * z, dp_drho=rt * (1.0 + 2.0 * r["d"] + r["dd"]),
+                          dp_dT=rho * self.R * (1.0 + r["d"] - r["dt"]),
+                          g_residual=rt * (r["a"] + r["d"] - np.log(z)), rho=rho)
 
     def state(self, T, rho) -> State:
         """Every property at (T, rho) from the equation's relations (e.g. Span 2000, Table 3.3)."""
@@ -126,6 +158,13 @@ class HelmholtzEquation:
             dp_dT=rho * R * cross,
             g_residual=rt * (r["a"] + r["d"] - np.log(z)),
         )
+
+
+@lru_cache(maxsize=None)
+def equation_keys() -> frozenset[str]:
+    """The substance keys that have an equation data file."""
+    folder = resources.files("cellfuncs.data").joinpath("equations")
+    return frozenset(p.name[:-5] for p in folder.iterdir() if p.name.endswith(".toml"))
 
 
 @lru_cache(maxsize=None)
