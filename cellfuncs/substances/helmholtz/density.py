@@ -25,7 +25,7 @@ import numpy as np
 
 from .equation import HelmholtzEquation
 
-RTOL = 1e-10  # relative size of a Newton step after which an element counts as converged (Newton
+RTOL = 1e-8  # relative size of a Newton step after which an element counts as converged (Newton
 # converges quadratically: the step's own result is then at rounding level)
 PTOL = 1e-9  # a bracket collapsed by bisection is a root only if Newton puts the root this close
 _ITERATIONS = 80
