@@ -300,3 +300,15 @@ def test_fluid_words_above_the_critical_temperature_mean_the_one_fluid():
     co2 = lookup(CO2)
     for phase in (LIQUID, VAPOR, FLUID):
         assert float(co2.molar_volume(320.0, 1e7, phase).values) == float(co2.molar_volume(320.0, 1e7).values)
+
+
+def test_the_ideal_gas_part():
+    # Span and Wagner (1996), reference state of the ideal part: h = 0 and s = 0 for the ideal gas at
+    # 298.15 K and 0.101325 MPa (from memory of the paper); the ideal-gas heat capacity at 298.15 K,
+    # 37.135 J/(mol K) in the JANAF tables (from memory of the table), within 0.05 %
+    eq = lookup(CO2).equation
+    rho = 1e-6  # mol/m3: the ideal gas to 1e-12
+    state = eq.state(298.15, rho)
+    assert float(state.h) == pytest.approx(0.0, abs=1e-3)
+    assert float(state.s) - eq.R * np.log(101325.0 / (rho * eq.R * 298.15)) == pytest.approx(0.0, abs=1e-3)
+    assert float(state.cp) == pytest.approx(37.135, rel=5e-4)
