@@ -59,9 +59,19 @@ def _build(key: str) -> Substance:
 
         return Water()
     from .general.definition import load_builtin
-    from .general.model import GeneralSubstance
 
-    return GeneralSubstance(load_builtin(key))
+    return _model(load_builtin(key))
+
+
+def _model(definition) -> Substance:
+    """The model of a definition: its equation of state's when it names one, else the general model."""
+    from .general.model import GeneralSubstance
+    from .helmholtz.equation import equation
+    from .helmholtz.substance import EquationSubstance
+
+    if definition.equation:
+        return EquationSubstance(definition, equation(definition.equation))
+    return GeneralSubstance(definition)
 
 
 def names() -> list[str]:
@@ -109,6 +119,5 @@ def lookup(name: str) -> Substance:
 def define(fields: Mapping[str, Any]) -> Substance:
     """A user-defined substance from field -> value or (value, unit); see general/definition.py."""
     from .general.definition import Definition
-    from .general.model import GeneralSubstance
 
-    return GeneralSubstance(Definition.from_fields(fields))
+    return _model(Definition.from_fields(fields))

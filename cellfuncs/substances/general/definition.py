@@ -43,7 +43,7 @@ NUMBERS: dict[str, str] = {
     "liquid_heat_capacity": "J/(mol*K)",
     "liquid_heat_capacity.temperature": "K",
 }
-TEXTS = ("name", "formula", "designation", "aliases", "note", "associating")
+TEXTS = ("name", "formula", "designation", "aliases", "note", "associating", "equation")
 REQUIRED = ("name", "molar_mass", "critical_temperature", "critical_pressure")
 LINES = ("boil", "melt", "sublime")
 # line fields: "<line>.<key>"; numbers in K and Pa, lists of numbers written as [a, b, ...]
@@ -67,6 +67,7 @@ class Definition:
     aliases: tuple[str, ...] = ()
     associating: bool = False
     note: str = ""
+    equation: str = ""  # key of a shipped equation of state (data/equations/<key>.toml) for the fluid
     values: dict[str, float] = field(default_factory=dict)
     lines: dict[str, dict[str, Any]] = field(default_factory=dict)
     ideal_gas: dict[str, Any] = field(default_factory=dict)
@@ -106,6 +107,8 @@ class Definition:
                                             ("associating", "TRUE" if self.associating else "FALSE", "")]
         if self.note:
             rows.append(("note", self.note, ""))
+        if self.equation:
+            rows.append(("equation", self.equation, ""))
         rows += [(k, self.values[k], NUMBERS[k]) for k in NUMBERS if k in self.values]
         tables = [(line, self.lines.get(line, {})) for line in LINES] + [(IDEAL_GAS, self.ideal_gas)]
         for prefix, table in tables:
@@ -159,6 +162,12 @@ def _validate(d: Definition) -> None:
             raise ModelError(BAD_ARGUMENT, "the substance definition needs a 'name'")
         if key != "name" and key not in d.values:
             raise ModelError(BAD_ARGUMENT, f"the substance definition needs '{key}'")
+    if d.equation:
+        from ..helmholtz.equation import equation_keys
+
+        if d.equation not in equation_keys():
+            raise ModelError(BAD_ARGUMENT, f"field 'equation': no equation of state '{d.equation}'; known: "
+                                           f"{', '.join(sorted(equation_keys()))}")
     v = d.values
     if "acentric_factor" not in v and "normal_boiling_point" not in v:
         raise ModelError(BAD_ARGUMENT, "the substance definition needs 'acentric_factor' or 'normal_boiling_point'")
@@ -225,6 +234,10 @@ def load_builtin(key: str) -> Definition:
     text = resources.files("cellfuncs.data").joinpath("substances", f"{key}.toml").read_text(encoding="utf-8")
     data = tomllib.loads(text)
     fields: dict[str, Any] = {k: data[k] for k in TEXTS if k in data}
+    from ..helmholtz.equation import equation_keys
+
+    if key in equation_keys():  # the substance's fluid comes from its equation of state
+        fields["equation"] = key
     if "aliases" in fields:
         fields["aliases"] = ", ".join(fields["aliases"])
     sources: dict[str, str] = {}

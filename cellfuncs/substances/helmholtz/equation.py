@@ -12,13 +12,15 @@ T in K, rho in mol/m3, p in Pa, energies in J/mol.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import cached_property, lru_cache
+from functools import lru_cache
+from importlib import resources
+from typing import NamedTuple
 
 import numpy as np
 
 from ... import data
 from . import schema
-from .terms import GaussianTerms, IdealTerms, NonanalyticTerms, PowerTerms, evaluate
+from .terms import DERIVATIVES, IdealTerms, evaluate
 
 
 @dataclass(frozen=True)
@@ -37,7 +39,7 @@ class State:
     w: np.ndarray  # m/s
     dp_drho: np.ndarray  # (dp/drho)_T, Pa m3/mol
     dp_dT: np.ndarray  # (dp/dT)_rho, Pa/K
-    g_residual: np.ndarray  # J/mol: g - g_ideal_gas(T, p): RT ln(fugacity coefficient)
+    g_density: np.ndarray  # J/mol: g - g_ideal_gas(T, rho) = RT (alphar + delta alphar_delta)
 
     @property
     def v(self) -> np.ndarray:
@@ -51,6 +53,24 @@ class State:
     @property
     def kappa(self) -> np.ndarray:
         """Isothermal compressibility -(1/v)(dv/dp)_T."""
+        return 1.0 / (self.rho * self.dp_drho)
+
+
+class Mechanical(NamedTuple):
+    """The residual-only properties at (T, rho): pressure, its derivatives, the residual Gibbs energy."""
+
+    p: np.ndarray  # Pa
+    dp_drho: np.ndarray  # Pa m3/mol
+    dp_dT: np.ndarray  # Pa/K
+    g_density: np.ndarray  # J/mol: g - g_ideal_gas(T, rho) = RT (alphar + delta alphar_delta)
+    rho: np.ndarray  # mol/m3
+
+    @property
+    def alpha(self) -> np.ndarray:
+        return self.dp_dT / (self.rho * self.dp_drho)
+
+    @property
+    def kappa(self) -> np.ndarray:
         return 1.0 / (self.rho * self.dp_drho)
 
 
@@ -82,19 +102,31 @@ class HelmholtzEquation:
         delta = np.asarray(rho, dtype=float) / self.rhoc
         return evaluate((self._ideal,), tau, delta), evaluate(self._residual, tau, delta)
 
-    def residual(self, T, rho) -> dict:
-        """The residual part alone: all that pressure, density solving and phase equilibrium need."""
+    def residual(self, T, rho, want=DERIVATIVES) -> dict:
+        """The residual part alone (the derivatives named in ``want``): all that pressure, density
+        solving and phase equilibrium need."""
         tau = self.Tc / np.asarray(T, dtype=float)
         delta = np.asarray(rho, dtype=float) / self.rhoc
-        return evaluate(self._residual, tau, delta)
+        return evaluate(self._residual, tau, delta, want)
 
     def pressure(self, T, rho) -> tuple[np.ndarray, np.ndarray]:
         """p and (dp/drho)_T at (T, rho)."""
         T = np.asarray(T, dtype=float)
         rho = np.asarray(rho, dtype=float)
-        r = self.residual(T, rho)
+        r = self.residual(T, rho, ("d", "dd"))
         rt = self.R * T
         return rho * rt * (1.0 + r["d"]), rt * (1.0 + 2.0 * r["d"] + r["dd"])
+
+    def mechanical(self, T, rho) -> Mechanical:
+        """The properties that need no ideal-gas part: cheaper than :meth:`state`."""
+        T = np.asarray(T, dtype=float)
+        rho = np.asarray(rho, dtype=float)
+        r = self.residual(T, rho, ("a", "d", "dd", "dt"))
+        rt = self.R * T
+        z = 1.0 + r["d"]
+        return Mechanical(p=rho * rt * z, dp_drho=rt * (1.0 + 2.0 * r["d"] + r["dd"]),
+                          dp_dT=rho * self.R * (1.0 + r["d"] - r["dt"]),
+                          g_density=rt * (r["a"] + r["d"]), rho=rho)
 
     def state(self, T, rho) -> State:
         """Every property at (T, rho) from the equation's relations (e.g. Span 2000, Table 3.3)."""
@@ -124,8 +156,15 @@ class HelmholtzEquation:
             w=w,
             dp_drho=rt * stiff,
             dp_dT=rho * R * cross,
-            g_residual=rt * (r["a"] + r["d"] - np.log(z)),
+            g_density=rt * (r["a"] + r["d"]),
         )
+
+
+@lru_cache(maxsize=None)
+def equation_keys() -> frozenset[str]:
+    """The substance keys that have an equation data file."""
+    folder = resources.files("cellfuncs.data").joinpath("equations")
+    return frozenset(p.name[:-5] for p in folder.iterdir() if p.name.endswith(".toml"))
 
 
 @lru_cache(maxsize=None)

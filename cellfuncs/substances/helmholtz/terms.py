@@ -26,7 +26,8 @@ and that stay finite as delta -> 0:
     t = tau a_tau, tt = tau^2 a_tautau, dt = delta tau a_deltatau
 
 Terms are evaluated as one array operation over all terms of a family (shape state x terms),
-in chunks of states so that memory stays bounded for very large inputs.
+in chunks of states so that memory stays bounded for very large inputs, and only for the
+derivatives a caller asks for.
 """
 
 from __future__ import annotations
@@ -68,6 +69,7 @@ class PowerTerms:
     t: np.ndarray
     l: np.ndarray
     g: np.ndarray
+    exponential: bool
 
     @classmethod
     def from_table(cls, table: Mapping, exponential: bool) -> "PowerTerms":
@@ -76,21 +78,31 @@ class PowerTerms:
         if not exponential:
             c["l"] = np.zeros_like(c["n"])
             c["g"] = np.zeros_like(c["n"])
-        return cls(**c)
+        return cls(**c, exponential=exponential)
 
     def add(self, tau: np.ndarray, delta: np.ndarray, out: dict) -> None:
         ln_d = np.log(delta)[:, None]
-        ln_t = np.log(tau)[:, None]
-        dl = np.exp(self.l * ln_d)  # delta^l
-        gl = self.g * dl
-        f = self.n * np.exp(self.d * ln_d + self.t * ln_t - gl)
-        A = self.d - self.l * gl  # delta * d(ln term)/d(delta)
-        out["a"] += f.sum(axis=1)
-        out["d"] += (f * A).sum(axis=1)
-        out["dd"] += (f * (A * A - self.d - self.l * (self.l - 1.0) * gl)).sum(axis=1)
-        out["t"] += (f * self.t).sum(axis=1)
-        out["tt"] += (f * (self.t * (self.t - 1.0))).sum(axis=1)
-        out["dt"] += (f * (A * self.t)).sum(axis=1)
+        arg = self.d * ln_d + self.t * np.log(tau)[:, None]
+        if self.exponential:
+            gl = self.g * np.exp(self.l * ln_d)  # g delta^l
+            f = self.n * np.exp(arg - gl)
+            A = self.d - self.l * gl  # delta * d(ln term)/d(delta)
+        else:
+            f = self.n * np.exp(arg)
+            A = self.d
+        if "a" in out:
+            out["a"] += f.sum(axis=1)
+        if "d" in out:
+            out["d"] += (f * A).sum(axis=1)
+        if "dd" in out:
+            curl = A * A - self.d - self.l * (self.l - 1.0) * gl if self.exponential else A * (A - 1.0)
+            out["dd"] += (f * curl).sum(axis=1)
+        if "t" in out:
+            out["t"] += f @ self.t
+        if "tt" in out:
+            out["tt"] += f @ (self.t * (self.t - 1.0))
+        if "dt" in out:
+            out["dt"] += (f * (A * self.t)).sum(axis=1)
 
 
 @dataclass(frozen=True)
@@ -116,13 +128,20 @@ class GaussianTerms:
         xt = ta - self.gamma
         f = self.n * np.exp(self.d * np.log(dl) + self.t * np.log(ta) - self.eta * xd * xd - self.beta * xt * xt)
         A = self.d - 2.0 * self.eta * dl * xd
-        B = self.t - 2.0 * self.beta * ta * xt
-        out["a"] += f.sum(axis=1)
-        out["d"] += (f * A).sum(axis=1)
-        out["dd"] += (f * (A * A - self.d - 2.0 * self.eta * dl * dl)).sum(axis=1)
-        out["t"] += (f * B).sum(axis=1)
-        out["tt"] += (f * (B * B - self.t - 2.0 * self.beta * ta * ta)).sum(axis=1)
-        out["dt"] += (f * A * B).sum(axis=1)
+        if "a" in out:
+            out["a"] += f.sum(axis=1)
+        if "d" in out:
+            out["d"] += (f * A).sum(axis=1)
+        if "dd" in out:
+            out["dd"] += (f * (A * A - self.d - 2.0 * self.eta * dl * dl)).sum(axis=1)
+        if "t" in out or "tt" in out or "dt" in out:
+            B = self.t - 2.0 * self.beta * ta * xt
+            if "t" in out:
+                out["t"] += (f * B).sum(axis=1)
+            if "tt" in out:
+                out["tt"] += (f * (B * B - self.t - 2.0 * self.beta * ta * ta)).sum(axis=1)
+            if "dt" in out:
+                out["dt"] += (f * A * B).sum(axis=1)
 
 
 @dataclass(frozen=True)
@@ -154,46 +173,51 @@ class NonanalyticTerms:
         dl = dm + 1.0
         ta = tau[:, None]
         sq = dm * dm
+        ln_sq = np.log(sq)
         ib = 1.0 / (2.0 * self.beta)
-        theta = (1.0 - ta) + self.A * sq**ib
-        Delta = theta * theta + self.B * sq**self.a
+        sq_ib = np.exp(ib * ln_sq)  # ((delta - 1)^2)^(1/(2 beta))
+        sq_a = np.exp(self.a * ln_sq)  # ((delta - 1)^2)^a
+        theta = (1.0 - ta) + self.A * sq_ib
+        Delta = theta * theta + self.B * sq_a
         psi = np.exp(-self.C * sq - self.D * (ta - 1.0) ** 2)
-        # Delta and its delta-derivatives
-        D_d = dm * (self.A * theta * (2.0 / self.beta) * sq ** (ib - 1.0) + 2.0 * self.B * self.a * sq ** (self.a - 1.0))
-        D_dd = D_d / dm + sq * (
-            4.0 * self.B * self.a * (self.a - 1.0) * sq ** (self.a - 2.0)
-            + 2.0 * (self.A / self.beta) ** 2 * (sq ** (ib - 1.0)) ** 2
-            + self.A * theta * (4.0 / self.beta) * (ib - 1.0) * sq ** (ib - 2.0)
-        )
-        Db = Delta**self.b
-        Db1 = Delta ** (self.b - 1.0)
-        Db2 = Delta ** (self.b - 2.0)
-        Db_d = self.b * Db1 * D_d
-        Db_dd = self.b * (Db1 * D_dd + (self.b - 1.0) * Db2 * D_d * D_d)
-        Db_t = -2.0 * theta * self.b * Db1
-        Db_tt = 2.0 * self.b * Db1 + 4.0 * theta * theta * self.b * (self.b - 1.0) * Db2
-        Db_dt = -self.A * self.b * (2.0 / self.beta) * Db1 * dm * sq ** (ib - 1.0) - 2.0 * theta * self.b * (self.b - 1.0) * Db2 * D_d
-        # psi and its derivatives
-        p_d = -2.0 * self.C * dm * psi
-        p_dd = (2.0 * self.C * sq - 1.0) * 2.0 * self.C * psi
-        p_t = -2.0 * self.D * (ta - 1.0) * psi
-        p_tt = (2.0 * self.D * (ta - 1.0) ** 2 - 1.0) * 2.0 * self.D * psi
-        p_dt = 4.0 * self.C * self.D * dm * (ta - 1.0) * psi
+        Db = np.exp(self.b * np.log(Delta))  # Delta^b
+        Db1 = Db / Delta  # Delta^(b-1)
         n = self.n
-        a = n * Db * dl * psi
-        a_d = n * (Db * (psi + dl * p_d) + Db_d * dl * psi)
-        a_dd = n * (Db * (2.0 * p_d + dl * p_dd) + 2.0 * Db_d * (psi + dl * p_d) + Db_dd * dl * psi)
-        a_t = n * dl * (Db_t * psi + Db * p_t)
-        a_tt = n * dl * (Db_tt * psi + 2.0 * Db_t * p_t + Db * p_tt)
-        a_dt = n * (Db * (p_t + dl * p_dt) + dl * Db_d * p_t + Db_t * (psi + dl * p_d) + Db_dt * dl * psi)
         d1 = dl[:, 0]
         t1 = ta[:, 0]
-        out["a"] += a.sum(axis=1)
-        out["d"] += d1 * a_d.sum(axis=1)
-        out["dd"] += d1 * d1 * a_dd.sum(axis=1)
-        out["t"] += t1 * a_t.sum(axis=1)
-        out["tt"] += t1 * t1 * a_tt.sum(axis=1)
-        out["dt"] += d1 * t1 * a_dt.sum(axis=1)
+        if "a" in out:
+            out["a"] += (n * Db * dl * psi).sum(axis=1)
+        if "d" in out or "dd" in out or "dt" in out:
+            # dDelta/ddelta, written with sq^x / sq in place of sq^(x - 1)
+            D_d = (self.A * (2.0 / self.beta) * theta * sq_ib + 2.0 * self.B * self.a * sq_a) / dm
+            Db_d = self.b * Db1 * D_d
+            p_d = -2.0 * self.C * dm * psi
+            psi_dl = psi + dl * p_d  # d(delta psi)/ddelta
+        if "d" in out:
+            out["d"] += d1 * (n * (Db * psi_dl + Db_d * dl * psi)).sum(axis=1)
+        Db2 = Db1 / Delta if ("dd" in out or "tt" in out or "dt" in out) else None  # Delta^(b-2)
+        if "dd" in out:
+            D_dd = D_d / dm + (4.0 * self.B * self.a * (self.a - 1.0) * sq_a + 2.0 * (self.A / self.beta) ** 2 * sq_ib * sq_ib
+                               + self.A * (4.0 / self.beta) * (ib - 1.0) * theta * sq_ib) / sq
+            Db_dd = self.b * (Db1 * D_dd + (self.b - 1.0) * Db2 * D_d * D_d)
+            p_dd = (2.0 * self.C * sq - 1.0) * 2.0 * self.C * psi
+            a_dd = n * (Db * (2.0 * p_d + dl * p_dd) + 2.0 * Db_d * psi_dl + Db_dd * dl * psi)
+            out["dd"] += d1 * d1 * a_dd.sum(axis=1)
+        if "t" in out or "tt" in out or "dt" in out:
+            Db_t = -2.0 * self.b * theta * Db1
+            p_t = -2.0 * self.D * (ta - 1.0) * psi
+            if "t" in out:
+                out["t"] += t1 * (n * dl * (Db_t * psi + Db * p_t)).sum(axis=1)
+            if "tt" in out:
+                Db_tt = 2.0 * self.b * Db1 + 4.0 * self.b * (self.b - 1.0) * theta * theta * Db2
+                p_tt = (2.0 * self.D * (ta - 1.0) ** 2 - 1.0) * 2.0 * self.D * psi
+                out["tt"] += t1 * t1 * (n * dl * (Db_tt * psi + 2.0 * Db_t * p_t + Db * p_tt)).sum(axis=1)
+            if "dt" in out:
+                Db_dt = (-self.A * self.b * (2.0 / self.beta) * Db1 * sq_ib / dm
+                         - 2.0 * self.b * (self.b - 1.0) * theta * Db2 * D_d)
+                p_dt = 4.0 * self.C * self.D * dm * (ta - 1.0) * psi
+                a_dt = n * (Db * (p_t + dl * p_dt) + dl * Db_d * p_t + Db_t * psi_dl + Db_dt * dl * psi)
+                out["dt"] += d1 * t1 * a_dt.sum(axis=1)
 
 
 @dataclass(frozen=True)
@@ -210,8 +234,8 @@ class IdealTerms:
     cosh: tuple[np.ndarray, np.ndarray]
 
     def add(self, tau: np.ndarray, delta: np.ndarray, out: dict) -> None:
-        """Adds alpha0 (to 'a') and its tau-derivatives; the delta-derivatives of ln delta are
-        1 and -1 and are applied by the property relations (they never involve the terms)."""
+        """Adds alpha0 (to 'a') and its tau-derivatives ('t', 'tt'; asked for together); the
+        delta-derivatives of ln delta are 1 and -1 and are applied by the property relations."""
         ta = tau[:, None]
         out["a"] += np.log(delta) + self.a1 + self.a2 * tau + self.a3 * np.log(tau)
         out["t"] += self.a2 * tau + self.a3
@@ -246,18 +270,25 @@ class IdealTerms:
             out["tt"] += (-n * x * x * (1.0 - tn * tn)).sum(axis=1)
 
 
-def evaluate(families: Sequence, tau: np.ndarray, delta: np.ndarray) -> dict[str, np.ndarray]:
-    """Sum of the families' reduced derivatives at broadcast (tau, delta), in the input's shape."""
+def evaluate(families: Sequence, tau: np.ndarray, delta: np.ndarray,
+             want: Sequence[str] = DERIVATIVES) -> dict[str, np.ndarray]:
+    """Sum of the families' reduced derivatives named in ``want`` at broadcast (tau, delta), in the
+    input's shape. A family computes only what is asked for (the density solver wants d and dd)."""
     tau, delta = np.broadcast_arrays(np.asarray(tau, dtype=float), np.asarray(delta, dtype=float))
     shape = tau.shape
     tf = tau.ravel()
     df = delta.ravel()
-    out = {k: np.zeros(tf.size) for k in DERIVATIVES}
-    for start in range(0, max(tf.size, 1), _CHUNK):
+    if tf.size <= _CHUNK:  # one chunk: the usual case, without the copying
+        out = {k: np.zeros(tf.size) for k in want}
+        for family in families:
+            family.add(tf, df, out)
+        return {k: v.reshape(shape) for k, v in out.items()}
+    out = {k: np.empty(tf.size) for k in want}
+    for start in range(0, tf.size, _CHUNK):
         part = slice(start, start + _CHUNK)
-        acc = {k: np.zeros(tf[part].size) for k in DERIVATIVES}
+        acc = {k: np.zeros(tf[part].size) for k in want}
         for family in families:
             family.add(tf[part], df[part], acc)
-        for k in DERIVATIVES:
+        for k in want:
             out[k][part] = acc[k]
     return {k: v.reshape(shape) for k, v in out.items()}
