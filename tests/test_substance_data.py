@@ -1,5 +1,6 @@
 """The substance data files, every one of the catalogue: their format, their published lines against
-their own fixed points, the melting lines the solid data give, and the ideal-gas heat capacities.
+their own fixed points, the model against second publications, the melting lines the solid data give,
+and the ideal-gas heat capacities.
 
 The reference values of the line checks (normal boiling point, triple point, critical point) are the
 constants of the same data file, each naming its source there (handbook table or reference-equation
@@ -9,11 +10,18 @@ check that the coefficients were recalled right. Tolerances are the project's da
 the normal boiling point, 2 % (5 % for associating fluids) on the triple-point pressure, 2 % on the
 critical pressure, 1 % where a melting line meets the triple point. No value was tuned to pass; the
 known misses are listed with what was measured.
+
+What a file holds and lacks is read from the file: the tables below are facts about the substances
+(which fluids associate, which has no triple point, which sublime at 1 atm), not lists of which
+constants a file happens to have. A constant a file lacks is checked through what the model does
+instead (a triple-point pressure from the vapour-pressure line, a melting temperature independent of
+pressure), and the file's note says why it is missing where the model cannot say it.
 """
 
 from __future__ import annotations
 
 import math
+import re
 import tomllib
 from functools import lru_cache
 from importlib import resources
@@ -22,7 +30,9 @@ import numpy as np
 import pytest
 
 from cellfuncs.data import constant
-from cellfuncs.sheet.functions import MELT_TEMP, SUBSTANCE_INFO
+from cellfuncs.errors import CellError
+from cellfuncs.sheet.functions import (BOIL_PRESSURE, BOIL_TEMP, CRITICAL_POINT, MASS_DENSITY, MELT_TEMP, SUBSTANCE_INFO,
+                                       TRIPLE_POINT)
 from cellfuncs.substances import ideal_gas
 from cellfuncs.substances.general.definition import (NUMBERS, Definition, builtin_keys, load_builtin)
 from cellfuncs.substances.general.model import GeneralSubstance
@@ -32,25 +42,18 @@ from cellfuncs.substances.result import ModelError
 KEYS = builtin_keys()
 P_ATM = 101325.0  # Pa, the standard atmosphere (exact), definition of the normal boiling point
 
-REQUIRED = ("molar_mass", "critical_temperature", "critical_pressure", "critical_density", "acentric_factor")
+# what every file states (the reader needs molar mass and critical point; the liquid estimate its one density)
+REQUIRED = ("molar_mass", "critical_temperature", "critical_pressure", "liquid_density")
 WITH_STATE = ("liquid_density", "solid_density", "liquid_heat_capacity")
 CONSTANT_KEYS = {"name", "value", "unit", "uncertainty", "state", "temperature", "reference", "memory", "note"}
-ASSOCIATING = {"2-propanol", "acetic-acid", "ammonia", "ethanol", "ethylene-glycol", "methanol"}
+# Hydrogen-bonding (associating) fluids: the alcohols, the glycol, acetic acid and ammonia (common practice).
+ASSOCIATING = {"1-butanol", "2-propanol", "acetic-acid", "ammonia", "ethanol", "ethylene-glycol", "methanol"}
 # Helium-4 has no solid in equilibrium with its vapour: no triple point, fusion or solid data.
 NO_TRIPLE_POINT = {"helium-4"}
-# No triple-point pressure was recalled with a publication to cite (see the files' notes); the model
-# takes it from the vapour-pressure line there.
-NO_TRIPLE_POINT_PRESSURE = {"2-propanol", "acetonitrile", "dichloromethane", "diethyl-ether", "ethanol", "ethyl-acetate",
-                            "ethylene-glycol", "helium-4", "propylene", "r-1234yf"}
-# No enthalpy of fusion was found for the refrigerants (their melting temperature is taken as
-# independent of pressure; tests/test_substances.py checks that this is said).
-NO_FUSION_ENTHALPY = {"helium-4", "r-134a", "r-32", "r-1234yf"}
 # Carbon dioxide and sulfur hexafluoride sublime at 1 atm: a normal sublimation point instead.
 SUBLIMES_AT_1_ATM = {"carbon-dioxide", "sulfur-hexafluoride"}
 # Quantum fluids and argon have an acentric factor at or below zero (their reference equations' values).
-NONPOSITIVE_ACENTRIC = {"argon", "helium-4", "hydrogen", "neon"}
-# No ideal-gas heat capacity correlation was recalled with confidence for these.
-NO_IDEAL_GAS_CP = {"diethyl-ether", "ethylene-glycol", "p-xylene", "r-1234yf", "r-134a"}
+NONPOSITIVE_ACENTRIC = {"argon", "helium-4", "hydrogen", "neon", "parahydrogen"}
 # Handbook vapour-pressure lines reduced by the handbook's own critical point, which differs from the
 # reference-equation critical point of the file's constants by a fraction of a kelvin or per cent.
 LINE_OWN_CRITICAL_POINT = {"acetone", "benzene", "n-heptane", "n-hexane", "n-octane", "p-xylene"}
@@ -81,6 +84,11 @@ def _line(key: str, kind: str) -> dict | None:
     return _file(key).get("lines", {}).get(kind)
 
 
+def _associating(key: str) -> bool:
+    """The file's own flag (checked against ASSOCIATING in test_file_has_its_texts)."""
+    return _file(key)["associating"]
+
+
 def _need_line(key: str, kind: str) -> dict:
     line = _line(key, kind)
     if line is None:
@@ -105,7 +113,7 @@ def test_file_has_its_texts(key):
     assert isinstance(d["formula"], str) and d["formula"]
     assert isinstance(d["designation"], str)
     assert isinstance(d["associating"], bool) and d["associating"] == (key in ASSOCIATING)
-    assert isinstance(d.get("note", ""), str)
+    assert isinstance(d["note"], str)
     aliases = d["aliases"]
     assert isinstance(aliases, list)
     assert all(a == a.lower() and a not in (d["name"], d["formula"].lower(), d["designation"].lower())
@@ -114,20 +122,29 @@ def test_file_has_its_texts(key):
 
 @pytest.mark.parametrize("key", KEYS)
 def test_file_has_the_constants_its_substance_needs(key):
-    constants = _file(key)["constants"]
+    d = _file(key)
+    constants, note = d["constants"], d["note"].lower()
     for name in REQUIRED:
         assert name in constants, name
-    assert "liquid_density" in constants
+    # the reader takes the acentric factor from the normal boiling point where a file gives none, and the
+    # note says so; a file that gives one gives the critical density too (the model itself uses neither)
+    assert "acentric_factor" in constants or "normal_boiling_point" in constants
+    if "acentric_factor" in constants:
+        assert "critical_density" in constants
+    else:
+        assert "acentric factor follows from the normal boiling point" in note
     assert ("triple_point_temperature" in constants) == (key not in NO_TRIPLE_POINT)
-    assert ("triple_point_pressure" in constants) == (key not in NO_TRIPLE_POINT_PRESSURE)
-    assert ("enthalpy_of_fusion" in constants) == (key not in NO_FUSION_ENTHALPY)
-    # with an enthalpy of fusion and no published melting line a solid density gives the Clapeyron line
+    # the Clapeyron melting line needs both an enthalpy of fusion and a solid density
+    if "solid_density" in constants:
+        assert "enthalpy_of_fusion" in constants
+    # with an enthalpy of fusion and no published melting line a solid density gives the Clapeyron line,
+    # or the note says that none was recalled (the melting temperature is then independent of pressure)
     if "enthalpy_of_fusion" in constants and _line(key, "melt") is None:
-        assert "solid_density" in constants
+        assert "solid_density" in constants or "no solid density recalled" in note
     assert ("normal_boiling_point" in constants) != ("normal_sublimation_point" in constants)
     assert ("normal_sublimation_point" in constants) == (key in SUBLIMES_AT_1_ATM)
-    if key in ASSOCIATING:
-        assert "boil" in _file(key).get("lines", {}), "associating fluids need a published vapour-pressure equation"
+    if _associating(key):
+        assert "boil" in d.get("lines", {}), "associating fluids need a published vapour-pressure equation"
 
 
 @pytest.mark.parametrize("key", KEYS)
@@ -140,7 +157,8 @@ def test_every_constant_has_value_unit_source_and_state(key):
         assert isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value), name
         assert entry["name"].strip() and entry["reference"].strip(), name
         # every value is recalled from a published table, or its reference says where it was read
-        assert entry["memory"] is True or (entry["memory"] is False and "read from a copy" in entry["reference"]), name
+        assert entry["memory"] is True or (entry["memory"] is False and
+                                           re.search("read from a (stored )?copy", entry["reference"])), name
         if name in WITH_STATE:
             assert entry["state"] and entry["temperature"] > 0, name
         if name == "acentric_factor":
@@ -153,9 +171,11 @@ def test_every_constant_has_value_unit_source_and_state(key):
 @pytest.mark.parametrize("key", KEYS)
 def test_file_loads_as_builtin_definition(key):
     d = load_builtin(key)
-    assert d.values["critical_temperature"] == _value(key, "critical_temperature")
+    assert d.name == _file(key)["name"]
+    for name in _file(key)["constants"]:
+        assert d.values[name] == _value(key, name), name  # every unit is the SI one, so nothing is converted
     assert set(d.lines) == set(_file(key).get("lines", {}))
-    assert bool(d.ideal_gas) == (key not in NO_IDEAL_GAS_CP)
+    assert bool(d.ideal_gas) == ("ideal_gas_cp" in _file(key))
     # the rows SUBSTANCE_INFO spills paste back as the same definition
     again = Definition.from_fields({f: (v, u) if u else v for f, v, u in d.fields()})
     assert again.values == d.values and again.lines == d.lines and again.ideal_gas == d.ideal_gas
@@ -222,6 +242,8 @@ def test_vapour_pressure_gives_normal_boiling_point(key):
         pytest.skip(f"{key}: no normal boiling point, the substance sublimes at 1 atm")
     assert _in_range(line, tb)
     T = brentq(lambda T: float(line_pressure(line, T)) - P_ATM, line["T_min"], line["T_max"], xtol=1e-9)
+    # measured for the refrigerants, solvents and parahydrogen added last: within 0.004 K, carbon
+    # tetrachloride 0.073 K, chloroform 0.034 K
     assert abs(T - tb) < 0.5, f"{key}: {T:.3f} K vs {tb} K"
 
 
@@ -243,8 +265,21 @@ def test_vapour_pressure_gives_triple_point_pressure(key):
         pytest.skip(f"{key}: no triple-point pressure in the file")
     if not _in_range(line, tt):
         pytest.skip(f"{key}: the line ({line['T_min']}-{line['T_max']} K) does not reach Tt = {tt} K")
-    bound = 0.05 if key in ASSOCIATING else 0.02
+    bound = 0.05 if _associating(key) else 0.02
+    # measured for the refrigerants and parahydrogen added last: R-1234ze(E) -0.62 %, the others within 0.07 %
     assert float(line_pressure(line, tt)) == pytest.approx(pt, rel=bound)
+
+
+@pytest.mark.parametrize("key", [k for k in KEYS if k not in NO_TRIPLE_POINT])
+def test_the_triple_point_lies_on_the_boiling_line_and_a_missing_pressure_is_said_to_be_missing(key):
+    # The model's triple point is where its vapour-pressure line meets the triple-point temperature
+    # (tests/test_substances.py compares that pressure with the file's, where the file has one). Where
+    # no triple-point pressure was recalled with a publication to cite, SUBSTANCE_INFO says there is none.
+    name, tt, pt = _name(key), _value(key, "triple_point_temperature"), _value(key, "triple_point_pressure")
+    assert TRIPLE_POINT(name, "T") == tt
+    assert TRIPLE_POINT(name, "P") == pytest.approx(BOIL_PRESSURE(name, tt), rel=1e-12)
+    stated = SUBSTANCE_INFO(name, "triple_point_pressure")
+    assert isinstance(stated, CellError) if pt is None else stated == pt
 
 
 @pytest.mark.parametrize("key", KEYS)
@@ -254,11 +289,14 @@ def test_vapour_pressure_gives_critical_pressure(key):
     # the critical point when it ends within 1 K (and 1 %) of it, and is evaluated at the nearer of the two.
     if line["T_max"] < max(tc - 1.0, 0.99 * tc):
         pytest.skip(f"{key}: the line ends below the critical point")
-    assert float(line_pressure(line, min(tc, line["T_max"]))) == pytest.approx(pc, rel=0.02)
+    # a line reduced by the file's own critical point meets it exactly (the ancillary form gives pc at tau = 0)
+    own = (line.get("Tc"), line.get("pc")) == (tc, pc) and line["T_max"] >= tc
+    assert float(line_pressure(line, min(tc, line["T_max"]))) == pytest.approx(pc, rel=1e-9 if own else 0.02)
 
 
 # Pitzer's acentric factor from the line at 0.7 Tc against the file's value: 0.005; measured within
-# 0.002 except ethanol (-0.0057) and acetonitrile (-0.0076), whose handbook lines are held to 0.01.
+# 0.002 except ethanol (-0.0057) and acetonitrile (-0.0076), whose handbook lines are held to 0.01
+# (the refrigerants and parahydrogen added last: within 0.0006).
 OMEGA_TOLERANCE = {"ethanol": 0.01, "acetonitrile": 0.01}
 
 
@@ -270,6 +308,10 @@ def test_vapour_pressure_agrees_with_acentric_factor(key):
         pytest.skip(f"{key}: the line does not reach 0.7 Tc = {0.7 * tc:.2f} K")
     omega = -math.log10(float(line_pressure(line, 0.7 * tc)) / pc) - 1.0
     assert omega == pytest.approx(_value(key, "acentric_factor"), abs=OMEGA_TOLERANCE.get(key, 0.005))
+
+
+def _name(key: str) -> str:
+    return _file(key)["name"]
 
 
 LINES = [(key, kind) for key in KEYS for kind in ("boil", "melt", "sublime") if _line(key, kind) is not None]
@@ -312,19 +354,201 @@ def test_carbon_dioxide_sublimation_line_gives_normal_sublimation_point():
     assert abs(T - _value("carbon-dioxide", "normal_sublimation_point")) < 0.5
 
 
+# --- the model against other publications ------------------------------------------------------
+# The substances added last (refrigerants, solvents, parahydrogen) against a second publication's normal
+# boiling point, critical point, triple point and liquid density, named beside each value.
+# (substance, value, source). "memory": recalled from that publication; "read": read from a stored copy of it.
+
+CRC_REFRIGERANTS = "CRC Handbook of Chemistry and Physics, 97th ed. (2016), Properties of Refrigerants (from memory)"
+POLING = "Poling, Prausnitz and O'Connell, The Properties of Gases and Liquids, 5th ed. (2001), Appendix A (from memory)"
+MERCK = "The Merck Index, 15th ed. (2013) (from memory)"
+RIDDICK = "Riddick, Bunger and Sakano, Organic Solvents, 4th ed. (1986) (from memory)"
+CRC = "CRC Handbook of Chemistry and Physics, 97th ed. (2016), Physical Constants of Organic Compounds (from memory)"
+NBS_H2 = ("McCarty, Hord and Roder, Selected Properties of Hydrogen, NBS Monograph 168 (1981), parahydrogen "
+          "(from memory)")
+DUPONT_R23 = ("DuPont Technical Information T-23, Thermodynamic Properties of HFC-23 (Hou and Martin's data), read "
+              "from a stored copy")
+ECHA_R123 = "ECHA registration dossier of HCFC-123, physical and chemical properties, read from a stored copy"
+
+C = 273.15  # K at 0 degC
+
+BOILING = [  # normal boiling point, K; 0.5 K
+    ("R-22", C - 40.7, CRC_REFRIGERANTS),
+    ("R-1234ze(E)", C - 19.0, "Honeywell, Solstice ze technical data (from memory)"),
+    ("R-1234yf", C - 29.4, "Honeywell, Solstice yf technical data (from memory)"),
+    ("R-152a", C - 24.0, CRC_REFRIGERANTS),
+    ("R-125", C - 48.1, CRC_REFRIGERANTS),
+    ("R-143a", 225.90, "J. Chem. Eng. Data 41, 1477 (1996), vapour pressures of 1,1,1-trifluoroethane, abstract: "
+                       "(225.90 +/- 0.01) K, read from a stored copy"),
+    ("R-245fa", C + 15.3, "Honeywell, Enovate 245fa technical data (from memory; the same 15.3 degC read from a "
+                          "stored copy of a supplier's page)"),
+    ("R-1233zd(E)", C + 18.3, "Honeywell, Solstice zd technical data (from memory)"),
+    ("R-23", C - 82.03, DUPONT_R23),
+    ("R-123", C + 27.8, CRC_REFRIGERANTS),
+    ("R-227ea", C - 16.4, "chemeurope.com encyclopedia, 1,1,1,2,3,3,3-heptafluoropropane, read from a stored copy"),
+    ("parahydrogen", 20.268, NBS_H2),
+    ("tetrahydrofuran", C + 66.0, MERCK),
+    ("chloroform", 334.3, POLING),
+    ("N,N-dimethylformamide", C + 153.0, MERCK),
+    ("dimethyl sulfoxide", C + 189.0, MERCK),
+    ("N-methyl-2-pyrrolidone", C + 202.0, MERCK),
+    ("methyl tert-butyl ether", C + 55.0, CRC),
+    ("1,4-dioxane", C + 101.5, CRC),
+    ("2-butanone", 352.79, POLING),
+    ("1-butanol", 390.81, POLING),
+    ("pyridine", 388.41, POLING),
+    ("carbon tetrachloride", C + 76.8, CRC),
+]
+
+CRITICAL = [  # critical temperature, K (0.5 %) and pressure, Pa (2 %)
+    ("R-22", C + 96.2, 4.990e6, CRC_REFRIGERANTS + "; pc: " + POLING),
+    ("R-1234ze(E)", 382.52, 3.6363e6, "McLinden, Thol and Lemmon (2010), International Refrigeration and Air "
+                                      "Conditioning Conference, Purdue, the earlier R-1234ze(E) equation (from memory)"),
+    ("R-152a", C + 113.3, 4.52e6, CRC_REFRIGERANTS + "; pc: " + POLING),
+    ("R-143a", C + 72.7, 3.776e6, CRC_REFRIGERANTS + "; pc: Zhang, Sato and Watanabe (1995), J. Chem. Eng. Data "
+                                  "40, 887, abstract: (3.776 +/- 0.005) MPa, read from a stored copy"),
+    ("R-23", 299.07, 4.836e6, DUPONT_R23),
+    ("R-123", C + 183.7, 3.6655e6, CRC_REFRIGERANTS + "; pc: Piao, Sato and Watanabe (1991), J. Chem. Eng. Data, "
+                                   "PVT and vapor pressure of HCFC-123, abstract: (3.6655 +/- 0.0030) MPa, read "
+                                   "from a stored copy"),
+    ("R-245fa", C + 154.0, None, "supplier's page for HFC-245fa, 154 degC, read from a stored copy"),
+    ("parahydrogen", 32.938, 1.2838e6, NBS_H2),
+    ("tetrahydrofuran", 540.2, 51.9e5, POLING),
+    ("chloroform", 536.4, 54.7e5, POLING),
+    ("methyl tert-butyl ether", 497.1, 34.3e5, POLING),
+    ("1,4-dioxane", 587.0, 52.1e5, POLING),
+    ("2-butanone", 536.7, 4.207e6, "CRC Handbook of Chemistry and Physics, 97th ed. (2016), Critical Constants of "
+                                   "Organic Compounds (from memory)"),
+    ("1-butanol", 563.05, 44.23e5, POLING),
+    ("pyridine", 620.0, 56.3e5, POLING),
+    ("carbon tetrachloride", 556.4, 45.6e5, POLING),
+]
+
+TRIPLE = [  # triple-point (or melting) temperature, K: 1 K; triple-point pressure, Pa: 2 % where given
+    ("R-22", C - 157.4, None, CRC_REFRIGERANTS),
+    ("R-125", C - 100.6, None, CRC_REFRIGERANTS),
+    ("R-143a", C - 111.8, None, CRC_REFRIGERANTS),
+    ("R-23", C - 155.2, None, "National Academies Press, Spacecraft Maximum Allowable Concentrations vol. 4 (9815), "
+                              "HFC-23 chapter, melting point, read from a stored copy"),
+    ("R-123", C - 107.0, None, ECHA_R123 + " (melting point from Kirk-Othmer, 1991)"),
+    ("parahydrogen", 13.803, 7042.0, NBS_H2),
+    ("tetrahydrofuran", C - 108.5, None, MERCK),
+    ("chloroform", C - 63.5, None, MERCK),
+    ("N,N-dimethylformamide", C - 61.0, None, MERCK),
+    ("dimethyl sulfoxide", C + 18.5, None, MERCK),
+    ("N-methyl-2-pyrrolidone", C - 24.0, None, MERCK),
+    ("methyl tert-butyl ether", C - 108.6, None, CRC),
+    ("1,4-dioxane", C + 11.8, None, MERCK),
+    ("2-butanone", 186.48, None, POLING),
+    ("1-butanol", 183.85, None, POLING),
+    ("pyridine", 231.53, None, POLING),
+    ("carbon tetrachloride", 250.33, None, POLING),
+]
+
+# (substance, T in K, pressure: "sat" saturated liquid, "atm" 1 atm, or Pa, density kg/m3, source); 2 %
+DENSITIES = [
+    ("R-22", 233.15, "sat", 1407.0, "ASHRAE Handbook - Fundamentals (2009), R-22 table at -40 degC (from memory)"),
+    ("R-1234ze(E)", 273.15, "sat", 1240.0, "ASHRAE Handbook - Fundamentals (2017), R-1234ze(E) table at 0 degC "
+                                           "(from memory)"),
+    ("R-152a", 249.127, "sat", 1011.0, "ASHRAE Handbook - Fundamentals (2009), R-152a at the normal boiling point "
+                                       "(from memory)"),
+    ("R-125", 225.06, "sat", 1514.0, "ASHRAE Handbook - Fundamentals (2009), R-125 at the normal boiling point "
+                                     "(from memory)"),
+    ("R-245fa", 273.15, 1e5, 1404.1, "Wikipedia, Pentafluoropropane: liquid at 1 bar and 0 degC, read from a "
+                                     "stored copy"),
+    ("R-123", 290.0, "sat", 1481.2, ECHA_R123 + " (Maezawa et al. 1990, saturated liquid, 290 K)"),
+    ("R-123", 300.0, "sat", 1456.0, ECHA_R123 + " (Maezawa et al. 1990, saturated liquid, 300 K)"),
+    ("R-227ea", 257.15, "sat", 1460.0, "chemeurope.com encyclopedia, 1,1,1,2,3,3,3-heptafluoropropane, 1.46 g/cm3 "
+                                       "at -16 degC, read from a stored copy"),
+    ("R-227ea", 298.15, "sat", 1409.0, "ChemicalBook, 1,1,1,2,3,3,3-heptafluoropropane (CAS 431-89-0), density "
+                                       "1.409 g/cm3 (taken as at 25 degC), read from a stored copy"),
+    ("parahydrogen", 13.8033, "sat", 77.0, NBS_H2 + ", triple-point liquid (at the data's 13.8033 K)"),
+    ("tetrahydrofuran", 293.15, "atm", 889.2, RIDDICK),
+    ("chloroform", 293.15, "atm", 1483.2, RIDDICK),
+    ("N,N-dimethylformamide", 293.15, "atm", 948.7, RIDDICK),
+    ("dimethyl sulfoxide", 293.15, "atm", 1100.4, RIDDICK),
+    ("N-methyl-2-pyrrolidone", 293.15, "atm", 1033.0, "BASF, NMP technical data, 1.033 g/cm3 at 20 degC "
+                                                      "(from memory)"),
+    ("methyl tert-butyl ether", 298.15, "atm", 735.3, CRC),
+    ("1,4-dioxane", 298.15, "atm", 1027.9, RIDDICK),
+    ("2-butanone", 293.15, "atm", 805.0, RIDDICK),
+    ("1-butanol", 298.15, "atm", 805.7, RIDDICK),
+    ("pyridine", 298.15, "atm", 978.2, RIDDICK),
+    ("carbon tetrachloride", 298.15, "atm", 1584.4, RIDDICK),
+]
+
+# measured deviations beyond the bounds, recorded rather than hidden
+DEVIATIONS: dict[tuple[str, str], str] = {
+    ("R-227ea", "density"): "the model gives 1570.7 kg/m3 at -16 degC, +7.6 % over the encyclopedia's 1.46 g/cm3; "
+                            "that figure disagrees with the 1.409 g/cm3 near 25 degC of the data (FM-200 technical "
+                            "data) and of another stored page, which with any liquid's expansion implies about "
+                            "1.55 g/cm3 at -16 degC: the encyclopedia value is doubtful, and neither is tuned",
+    ("parahydrogen", "density"): "the model gives 78.99 kg/m3 for the triple-point liquid, +2.6 % over NBS "
+                                 "Monograph 168's 77.0 kg/m3: the Rackett equation anchored at the normal boiling "
+                                 "point (70.85 kg/m3) overstates the expansion of a quantum liquid 6.5 K below it",
+}
+
+
+# the density rows the deviations above are about (a substance may have other rows that pass)
+DEVIATING_ROWS = {("R-227ea", 257.15), ("parahydrogen", 13.8033)}
+
+
+def _marked(rows, quantity):
+    def deviates(row):
+        return (row[0], quantity) in DEVIATIONS and (quantity != "density" or (row[0], row[1]) in DEVIATING_ROWS)
+
+    return [pytest.param(*row, marks=pytest.mark.xfail(strict=True, reason=DEVIATIONS[(row[0], quantity)]))
+            if deviates(row) else row for row in rows]
+
+
+@pytest.mark.parametrize("name, tb, source", _marked(BOILING, "boil"), ids=[r[0] for r in BOILING])
+def test_normal_boiling_point_matches_another_publication(name, tb, source):
+    assert BOIL_TEMP(name, P_ATM) == pytest.approx(tb, abs=0.5)
+
+
+@pytest.mark.parametrize("name, tc, pc, source", _marked(CRITICAL, "critical"), ids=[r[0] for r in CRITICAL])
+def test_critical_point_matches_another_publication(name, tc, pc, source):
+    assert CRITICAL_POINT(name, "T") == pytest.approx(tc, rel=0.005)
+    if pc is not None:
+        assert CRITICAL_POINT(name, "P") == pytest.approx(pc, rel=0.02)
+
+
+@pytest.mark.parametrize("name, tt, pt, source", _marked(TRIPLE, "triple"), ids=[r[0] for r in TRIPLE])
+def test_triple_point_matches_another_publication(name, tt, pt, source):
+    assert TRIPLE_POINT(name, "T") == pytest.approx(tt, abs=1.0)
+    if pt is not None:
+        assert TRIPLE_POINT(name, "P") == pytest.approx(pt, rel=0.02)
+
+
+@pytest.mark.parametrize("name, T, p, rho, source", _marked(DENSITIES, "density"),
+                         ids=[f"{r[0]}-{r[1]}" for r in DENSITIES])
+def test_liquid_density_matches_another_publication(name, T, p, rho, source):
+    pressure = BOIL_PRESSURE(name, T) * (1 + 1e-12) if p == "sat" else P_ATM if p == "atm" else p
+    assert MASS_DENSITY(name, T, pressure, "liquid") == pytest.approx(rho, rel=0.02)
+
+
+def test_every_substance_on_a_corresponding_states_boiling_line_has_an_independent_boiling_point():
+    # Without a published vapour-pressure line the boiling line is Lee-Kesler's through the file's own
+    # normal boiling point, which nothing else then checks: a second publication's value must.
+    names = [SUBSTANCE_INFO(row[0], "name") for row in BOILING]
+    assert len(set(names)) == len(names) == len(BOILING)
+    assert {_name(k) for k in KEYS if _line(k, "boil") is None and _value(k, "normal_boiling_point")} <= set(names)
+    assert not any(isinstance(SUBSTANCE_INFO(row[0], "name"), CellError) for rows in (BOILING, CRITICAL, TRIPLE,
+                                                                                      DENSITIES) for row in rows)
+
+
 # --- melting lines from the solid data ------------------------------------------------------------
-
-def _name(key: str) -> str:
-    return _file(key)["name"]
-
 
 @pytest.mark.parametrize("key", [k for k in KEYS if k not in NO_TRIPLE_POINT])
 def test_melting_line_follows_clapeyron_where_no_line_is_published(key):
-    model = SUBSTANCE_INFO(_name(key), "melt_model")
+    model, constants = SUBSTANCE_INFO(_name(key), "melt_model"), _file(key)["constants"]
+    missing = [n for n in ("enthalpy_of_fusion", "solid_density") if n not in constants]
     if _line(key, "melt") is not None:
         assert model.startswith("published")
-    elif key in NO_FUSION_ENTHALPY:
-        assert "independent of pressure" in model
+    elif missing:
+        # the model names the data it lacks (tests/test_substances.py checks the message of MELT_PRESSURE)
+        assert "independent of pressure" in model and "no " + " and ".join(missing) in model
+        assert MELT_TEMP(_name(key), 100, "MPa") == _value(key, "triple_point_temperature")
     else:
         assert model.startswith("Clapeyron")
         assert MELT_TEMP(_name(key), 100, "MPa") > _value(key, "triple_point_temperature") + 5.0
@@ -419,7 +643,8 @@ TRC_298 = {"ethane": 52.49, "ethylene": 42.90, "propane": 73.60, "propylene": 64
 
 
 def test_every_substance_with_a_correlation_has_an_independent_check_value():
-    assert set(JANAF_298) | set(TRC_298) == set(KEYS) - NO_IDEAL_GAS_CP
+    # the files without an [ideal_gas_cp] table: no correlation was recalled with confidence
+    assert set(JANAF_298) | set(TRC_298) == {key for key in KEYS if "ideal_gas_cp" in _file(key)}
 
 
 @pytest.mark.parametrize("key, cp", sorted({**JANAF_298, **TRC_298}.items()))
