@@ -72,7 +72,7 @@ def index(array: Value, row: Value, column: Value = _ABSENT) -> Value:
 
 
 @lru_cache(maxsize=256)
-def _wildcard(pattern: str) -> re.Pattern:
+def wildcard(pattern: str) -> re.Pattern:
     """Excel's ``*`` and ``?`` wildcards (``~`` escapes) as a case-insensitive regex."""
     parts = re.split(r"(~[*?~]|[*?])", pattern)
     regex = "".join(_WILDCARD_PARTS.get(p) or re.escape(p) for p in parts)
@@ -90,7 +90,7 @@ def _find(x: Scalar, values: list, mode: int) -> float | CellError:
     if x is None:
         return CellError(NA, "the lookup value is blank")
     if mode == 0 and type(x) is str and any(ch in x for ch in "*?~"):
-        regex = _wildcard(x)
+        regex = wildcard(x)
         found = next((i for i, v in enumerate(values) if type(v) is str and regex.fullmatch(v)), None)
     elif mode == 0:
         found = next((i for i, v in enumerate(values) if type(v) is type(x) and compare(v, x) == 0), None)

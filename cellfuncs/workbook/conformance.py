@@ -265,7 +265,7 @@ def score_workbook(path: Path, source: str) -> WorkbookScore:
     finally:
         pkg.close()
     known = set(BUILTINS) | set(engine.functions)
-    units, adj, _ = engine._graph(dict(engine.spills))
+    units, adj, _ = engine.graph
     unit_of = {fi: u for u, members in enumerate(units) for fi in members}
     texts = {}
     calls: dict[int, list[str]] = {}

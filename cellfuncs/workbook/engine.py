@@ -312,11 +312,23 @@ class Recalc:
     # ---- values ----------------------------------------------------------------------
     def block(self, s: int, a: Area) -> np.ndarray:
         """The values of area ``a`` of sheet ``s`` as a 2-D object array (whole columns
-        and rows cut to the used range)."""
+        and rows cut to the used range).
+
+        Blocks are kept for the pass: every formula cell inside an area is evaluated before
+        any formula reading the area (the dependency order), so its values no longer change.
+        """
         r2, c2 = a.r2, a.c2
         if r2 == MAX_ROW or c2 == MAX_COL:
             rows, cols = self.extent[s]
             r2, c2 = min(r2, max(rows, a.r1)), min(c2, max(cols, a.c1))
+        key = (s, a.r1, a.c1, r2, c2)
+        out = self._blocks.get(key)
+        if out is None:
+            out = self._blocks[key] = self._read_block(s, a.r1, a.c1, r2, c2)
+        return out
+
+    def _read_block(self, s: int, r1: int, c1: int, r2: int, c2: int) -> np.ndarray:
+        a = Area(r1, c1, r2, c2)
         get = self.values[s].get
         out = np.empty((r2 - a.r1 + 1, c2 - a.c1 + 1), dtype=object)
         for i, r in enumerate(range(a.r1, r2 + 1)):
@@ -443,6 +455,7 @@ class Recalc:
 
     def _reset(self, assumed: dict[int, Area]) -> None:
         self.values = [dict(c) for c in self.constants]
+        self._blocks: dict[tuple[int, int, int, int, int], np.ndarray] = {}
         self.claims: list[dict[tuple[int, int], int]] = [{} for _ in self.book.sheets]
         self.result = [None] * len(self.cells)
         self.spills = {}
@@ -460,6 +473,7 @@ class Recalc:
 
     def _evaluate(self, units: list[tuple[int, ...]], adj: list[list[int]], comps: list[list[int]],
                   assumed: dict[int, Area]) -> None:
+        self.graph = (units, adj, comps)  # the order the results come from, for tools that trace them
         self._reset(assumed)
         self._context = _Context(self)
         self._column = _Column(self)
