@@ -12,7 +12,7 @@ import math
 
 import pytest
 
-from cellfuncs.formula import compute
+from cellfuncs.formula import SimpleContext, compute
 
 EXAMPLES = [
     # Math & Trig
@@ -106,3 +106,64 @@ DATES = [
 def test_dates_and_times(formula, expected):
     got = compute(formula)
     assert isinstance(got, float) and math.isclose(got, expected, rel_tol=1e-7), got
+
+LOOKUPS = [
+    ('=HLOOKUP("Bearings", {"Axles","Bearings","Bolts";4,4,9;5,7,10}, 2, TRUE)', 4.0),
+    ('=LOOKUP(4.19, {4.14,4.19,5.17,5.77,6.39}, {"red","orange","yellow","green","blue"})', "orange"),
+    ('=LOOKUP(5.75, {4.14,4.19,5.17,5.77,6.39}, {"red","orange","yellow","green","blue"})', "yellow"),
+    ('=LOOKUP("C", {"a","b","c","d";1,2,3,4})', 3.0), ('=LOOKUP("bump", {"a",1;"b",2;"c",3})', 2.0),
+    ('=XLOOKUP("China", {"Brazil";"China";"India"}, {"+55";"+86";"+91"})', "+86"),
+    ('=XLOOKUP(8, {5;10;15}, {"a";"b";"c"}, "none", -1)', "a"), ('=XLOOKUP(8, {5;10;15}, {"a";"b";"c"}, "none", 1)', "b"),
+    ('=XLOOKUP(1, {1,2,1}, {"x","y","z"}, , 0, -1)', "z"), ('=XMATCH(4, {5,4,3,2,1})', 2.0), ('=XMATCH(4.5, {5,4,3}, -1)', 2.0),
+    ("=CHOOSE(2, \"1st\", \"2nd\", \"3rd\", \"Finished\")", "2nd"), ("=ROWS({1,2,3;4,5,6})", 2.0), ("=COLUMNS({1,2,3;4,5,6})", 3.0),
+    ("=INDEX(TRANSPOSE({1,2,3;4,5,6}), 3, 2)", 6.0),
+    # Engineering: number bases
+    ("=DEC2BIN(9, 4)", "1001"), ("=DEC2BIN(-100)", "1110011100"), ("=DEC2OCT(58, 3)", "072"), ("=DEC2OCT(-100)", "7777777634"),
+    ("=DEC2HEX(100, 4)", "0064"), ("=DEC2HEX(-54)", "FFFFFFFFCA"), ("=BIN2DEC(1100100)", 100.0),
+    ('=BIN2DEC("1111111111")', -1.0), ("=BIN2OCT(1001, 3)", "011"), ('=BIN2OCT("1100100")', "144"),
+    ('=BIN2OCT("1111111111")', "7777777777"), ("=BIN2HEX(11111011, 4)", "00FB"), ('=BIN2HEX("1111111111")', "FFFFFFFFFF"),
+    ('=OCT2DEC(54)', 44.0), ('=OCT2DEC("7777777533")', -165.0), ("=OCT2BIN(3, 3)", "011"),
+    ('=OCT2BIN("7777777000")', "1000000000"), ("=OCT2HEX(100, 4)", "0040"), ('=OCT2HEX("7777777533")', "FFFFFFFF5B"),
+    ('=HEX2DEC("A5")', 165.0), ('=HEX2DEC("FFFFFFFF5B")', -165.0), ('=HEX2BIN("F", 8)', "00001111"),
+    ('=HEX2BIN("FFFFFFFE00")', "1000000000"), ('=HEX2OCT("F", 3)', "017"), ('=HEX2OCT("FFFFFFFF00")', "7777777400"),
+]
+
+
+@pytest.mark.parametrize("formula, expected", LOOKUPS)
+def test_lookups_and_bases(formula, expected):
+    assert compute(formula) == expected
+
+
+class _Cell(SimpleContext):
+    """A formula in C5 of a workbook whose cells are all blank."""
+
+    def position(self):
+        return 5, 3
+
+    def bounds(self, sheet, ref):
+        whole = {"A:A": (1, 1, 1048576, 1), "1:1": (1, 1, 1, 16384)}
+        if ref in whole:
+            return whole[ref]
+        first, _, last = ref.replace("$", "").partition(":")
+        (r1, c1), (r2, c2) = _rc(first), _rc(last or first)
+        return r1, c1, r2, c2
+
+    def reference(self, sheet, ref):
+        return None
+
+
+def _rc(text):
+    letters = text.rstrip("0123456789")
+    col = 0
+    for ch in letters:
+        col = 26 * col + ord(ch) - 64
+    return int(text[len(letters):]), col
+
+
+def test_row_and_column_of_references_and_of_the_formula_cell():
+    ctx = _Cell()
+    assert compute("=ROW(C10)", ctx) == 10.0 and compute("=COLUMN(D10)", ctx) == 4.0  # Microsoft's examples
+    assert compute("=ROW()", ctx) == 5.0 and compute("=COLUMN()", ctx) == 3.0
+    assert compute("=ROW(A2:A4)", ctx).tolist() == [[2.0], [3.0], [4.0]]
+    assert compute("=ROWS(A:A)", ctx) == 1048576.0 and compute("=COLUMNS(1:1)", ctx) == 16384.0
+    assert compute("=ROW()").code == "#VALUE!"  # engine contract: no workbook, no cell

@@ -73,6 +73,7 @@ class _Context:
         self.sheet = 0
         self.dr = 0
         self.dc = 0
+        self.row = self.col = 1  # the formula cell
         self.resolving: set = set()
 
     def function(self, name: str) -> Callable[..., Any] | None:
@@ -93,6 +94,18 @@ class _Context:
             if a is None:
                 return CellError(REF, f"{ref} moved by {self.dr} rows and {self.dc} columns is off the sheet")
         return s, a
+
+    def position(self) -> tuple[int, int]:
+        """The formula cell's row and column (for ROW() and COLUMN())."""
+        return self.row, self.col
+
+    def bounds(self, sheet: str | None, ref: str) -> tuple[int, int, int, int] | CellError:
+        """First row, first column, last row, last column of a reference (for ROW, ROWS, ...)."""
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return found
+        a = found[1]
+        return a.r1, a.c1, a.r2, a.c2
 
     def reference(self, sheet: str | None, ref: str) -> Value:
         found = self._area(sheet, ref)
@@ -518,7 +531,7 @@ class Recalc:
             self._store(fi, t.error)
             return
         ctx = self._context
-        ctx.sheet, ctx.dr, ctx.dc = fc.sheet, fc.row - t.row, fc.col - t.col
+        ctx.sheet, ctx.dr, ctx.dc, ctx.row, ctx.col = fc.sheet, fc.row - t.row, fc.col - t.col, fc.row, fc.col
         self._store(fi, evaluate(t.ast, ctx))
 
     def _group(self, members: tuple[int, ...]) -> None:
