@@ -36,6 +36,7 @@ from ..errors import CALC, NA, NAME, REF, SPILL, CellError
 from ..formula import Value, evaluate
 from .graph import components, cycle
 from .model import Book
+from .sheetxml import SheetScan
 from .refs import MAX_COL, MAX_ROW, Area, address, area, shifted
 from .templates import Template, Templates, build
 
@@ -184,6 +185,20 @@ def _legacy_fill(value: Value, shape: tuple[int, int]) -> np.ndarray:
     return out
 
 
+def _array_members(scan: SheetScan) -> set[tuple[int, int]]:
+    """Cells inside an array formula's range (its first cell excepted) that carry an empty
+    formula element: Excel writes ``<f ca="1"/>`` there when the array is volatile."""
+    out = set()
+    for (row, col), f in scan.formulas.items():
+        if f.kind == "array" and f.ref:
+            a = area(f.ref)
+            if a is not None and (a.r1, a.c1) == (row, col):
+                out |= {(r, c) for r in range(a.r1, a.r2 + 1) for c in range(a.c1, a.c2 + 1)
+                        if (r, c) != (row, col) and (r, c) in scan.formulas and scan.formulas[(r, c)].kind == "normal"
+                        and not scan.formulas[(r, c)].text}
+    return out
+
+
 class Recalc:
     """Recalculation of one workbook: :meth:`run` fills :attr:`values` (per sheet,
     (row, column) -> value), :attr:`result` (per formula cell) and :attr:`spills`."""
@@ -221,10 +236,14 @@ class Recalc:
             s = sheet.index
             masters = {f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
             arrays = []
+            members = _array_members(scan)
             for (row, col), f in scan.formulas.items():
                 if f.kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
                     if f.cached is not None:
                         self.constants[s][(row, col)] = f.cached
+                    continue
+                if (row, col) in members:  # Excel's <f ca="1"/> marker in an array's range: a cell of the array
+                    self.stored[s][(row, col)] = f.cached
                     continue
                 text, base = f.text, (row, col)
                 if f.kind == "shared" and not f.text:
