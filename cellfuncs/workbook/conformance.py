@@ -12,7 +12,8 @@ Rules of the comparison (those of the folder's README):
 - cells calling a volatile function (see ``cellfuncs/data/excel/functions.toml``), directly
   or through a defined name, and every cell depending on one, are left out, as are cells
   without a cached value;
-- numbers agree within 1e-9 relative or 1e-12 absolute, text and booleans exactly, error
+- numbers agree within 1e-9 relative or 1e-12 absolute (1e-7 relative in cells calling a
+  function Excel solves by iteration: IRR, XIRR, RATE, YIELD ...), text and booleans exactly, error
   values by code; every cell of an array formula's stored range is compared.
 
 Output (stable: tools and people compare runs by it), tab-separated lines, each led by
@@ -61,6 +62,9 @@ from .package import Package, Refused
 from .recalc import pack_functions
 
 REL_TOLERANCE = 1e-9
+# Functions Excel solves by iteration, stopping near 1e-7 relative: their cells compare at that.
+ITERATIVE = frozenset({"IRR", "XIRR", "RATE", "YIELD", "ODDFYIELD", "ODDLYIELD", "YIELDDISC", "YIELDMAT"})
+ITERATIVE_TOLERANCE = 1e-7
 ABS_TOLERANCE = 1e-12
 NO_FUNCTION = "(none)"
 _PREFIXES = ("_XLFN.", "_XLWS.", "_XLUDF.")
@@ -86,7 +90,7 @@ def category_of(name: str) -> str:
     return _function_table()[0].get(name, "Other")
 
 
-def same(cached: object, computed: object) -> bool:
+def same(cached: object, computed: object, rel: float = REL_TOLERANCE) -> bool:
     """Whether Excel's cached value and the engine's agree under the README's rules.
 
     >>> same(1.0, 1.0 + 1e-10), same(0.0, 1e-13), same("a", "A"), same(CellError("#N/A"), CellError("#N/A", "x"))
@@ -97,7 +101,7 @@ def same(cached: object, computed: object) -> bool:
     tc, tv = type(cached), type(computed)
     if tc is float and tv is float:
         diff = abs(cached - computed)
-        return diff <= ABS_TOLERANCE or diff <= REL_TOLERANCE * max(abs(cached), abs(computed))
+        return diff <= ABS_TOLERANCE or diff <= rel * max(abs(cached), abs(computed))
     if tc is CellError and tv is CellError:
         return cached.code == computed.code
     return tc is tv and cached == computed
@@ -283,7 +287,8 @@ def score_workbook(path: Path, source: str) -> WorkbookScore:
         if unit_of[fi] in left_out:
             score.volatile += sum(1 for cached, _ in _compared(engine, fi) if cached is not None)
             continue
-        rows = [(c, v, same(c, v)) for c, v in _compared(engine, fi) if c is not None]
+        rel = ITERATIVE_TOLERANCE if ITERATIVE.intersection(calls[fi]) else REL_TOLERANCE
+        rows = [(c, v, same(c, v, rel)) for c, v in _compared(engine, fi) if c is not None]
         results[fi] = rows
         if any(not ok for _, _, ok in rows):
             differs_units.add(unit_of[fi])
