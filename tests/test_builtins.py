@@ -191,3 +191,31 @@ NUMBERS = [
 def test_numbers_and_finance(formula, expected):
     got = compute(formula)
     assert isinstance(got, float) and math.isclose(got, expected, rel_tol=1e-6), got
+
+DISTRIBUTIONS = [
+    ("=NORM.DIST(42, 40, 1.5, TRUE)", 0.9087888), ("=NORM.DIST(42, 40, 1.5, FALSE)", 0.10934005),
+    ("=NORM.INV(0.908789, 40, 1.5)", 42.000002), ("=NORM.S.DIST(1.333333, TRUE)", 0.908788726), ("=NORM.S.INV(0.908789)", 1.3333347),
+    ("=NORMSDIST(1.333333)", 0.908788726), ("=NORMSINV(0.908789)", 1.3333347), ("=NORMDIST(42, 40, 1.5, TRUE)", 0.9087888),
+    ("=NORMINV(0.908789, 40, 1.5)", 42.000002), ("=LOGNORM.DIST(4, 3.5, 1.2, TRUE)", 0.0390836),
+    ("=LOGNORM.INV(0.039084, 3.5, 1.2)", 4.0000252), ("=LOGNORMDIST(4, 3.5, 1.2)", 0.0390836), ("=LOGINV(0.039084, 3.5, 1.2)", 4.0000252),
+    ("=EXPON.DIST(0.2, 10, TRUE)", 0.86466472), ("=EXPON.DIST(0.2, 10, FALSE)", 1.35335283), ("=EXPONDIST(0.2, 10, TRUE)", 0.86466472),
+    ("=GAMMA.DIST(10.00001131, 9, 2, FALSE)", 0.032639), ("=GAMMA.DIST(10.00001131, 9, 2, TRUE)", 0.068094),
+    ("=GAMMADIST(10.00001131, 9, 2, TRUE)", 0.068094), ("=GAMMA.INV(0.068094, 9, 2)", 10.0000112), ("=GAMMAINV(0.068094, 9, 2)", 10.0000112),
+    ("=BETA.DIST(2, 8, 10, TRUE, 1, 3)", 0.6854706), ("=BETA.DIST(2, 8, 10, FALSE, 1, 3)", 1.4837646),
+    ("=BETADIST(2, 8, 10, 1, 3)", 0.6854706), ("=BETA.INV(0.685470581, 8, 10, 1, 3)", 2.0), ("=BETAINV(0.685470581, 8, 10, 1, 3)", 2.0),
+    ("=BINOM.DIST(6, 10, 0.5, FALSE)", 0.2050781), ("=BINOMDIST(6, 10, 0.5, FALSE)", 0.2050781), ("=BINOM.INV(6, 0.5, 0.75)", 4.0),
+    ("=CRITBINOM(6, 0.5, 0.75)", 4.0), ("=BINOM.DIST.RANGE(60, 0.75, 48)", 0.08397496), ("=BINOM.DIST.RANGE(60, 0.75, 45, 50)", 0.5236298),  # the sum of BINOM.DIST(45..50, 60, 0.75, FALSE)
+   
+    ("=NEGBINOM.DIST(10, 5, 0.25, TRUE)", 0.3135141), ("=NEGBINOM.DIST(10, 5, 0.25, FALSE)", 0.0550487), ("=NEGBINOMDIST(10, 5, 0.25)", 0.0550487),
+    ("=POISSON.DIST(2, 5, TRUE)", 0.124652), ("=POISSON.DIST(2, 5, FALSE)", 0.084224), ("=POISSON(2, 5, TRUE)", 0.124652),
+    ("=ERF(0.745)", 0.70792892), ("=ERF(1, 2)", 0.15262147), ("=ERF.PRECISE(1.5)", 0.96610515), ("=ERFC(1)", 0.15729921),
+    ("=ERFC.PRECISE(1)", 0.15729921), ("=GAMMA(2.5)", 1.329340388), ("=GAMMALN(4)", 1.791759469), ("=GAMMALN.PRECISE(4)", 1.791759469),
+    ("=FISHER(0.75)", 0.9729551), ("=FISHERINV(0.972955)", 0.74999994), ("=GAUSS(2)", 0.47724987), ("=PHI(0.75)", 0.301137432),
+    ("=CONFIDENCE.NORM(0.05, 2.5, 50)", 0.692951912), ("=CONFIDENCE(0.05, 2.5, 50)", 0.692951912), ("=CONFIDENCE.T(0.05, 1, 50)", 0.284196855),
+]
+
+
+@pytest.mark.parametrize("formula, expected", DISTRIBUTIONS)
+def test_distributions(formula, expected):
+    got = compute(formula)
+    assert isinstance(got, float) and math.isclose(got, expected, rel_tol=2e-5), got
