@@ -219,3 +219,27 @@ DISTRIBUTIONS = [
 def test_distributions(formula, expected):
     got = compute(formula)
     assert isinstance(got, float) and math.isclose(got, expected, rel_tol=2e-5), got
+
+# Microsoft's database example: trees with height, age, yield and profit
+_TREES = ('{"Tree","Height","Age","Yield","Profit";"Apple",18,20,14,105;"Pear",12,12,10,96;"Cherry",13,14,9,105;'
+          '"Apple",14,15,10,75;"Pear",9,8,8,76.8;"Apple",8,9,6,45}')
+_APPLE_10_16 = '{"Tree","Height","Height";"=Apple",">10","<16"}'
+DATABASE = [
+    (f'=DCOUNT({_TREES}, "Age", {_APPLE_10_16})', 1.0), (f'=DCOUNTA({_TREES}, "Profit", {_APPLE_10_16})', 1.0),
+    (f'=DSUM({_TREES}, "Profit", {{"Tree";"=Apple"}})', 225.0), (f'=DMAX({_TREES}, "Profit", {{"Tree";"=Apple";"=Pear"}})', 105.0),
+    (f'=DMIN({_TREES}, "Profit", {{"Tree","Height";"=Apple",">10"}})', 75.0),
+    (f'=DAVERAGE({_TREES}, "Yield", {{"Tree","Height";"=Apple",">10"}})', 12.0), (f"=DAVERAGE({_TREES}, 3, {_TREES})", 13.0),
+    (f'=DGET({_TREES}, "Yield", {_APPLE_10_16})', 10.0), (f'=DPRODUCT({_TREES}, "Yield", {_APPLE_10_16})', 10.0),
+    (f'=DSTDEV({_TREES}, "Yield", {{"Tree";"=Apple";"=Pear"}})', 2.966479395), (f'=DSTDEVP({_TREES}, "Yield", {{"Tree";"=Apple";"=Pear"}})', 2.653299832),
+    (f'=DVAR({_TREES}, "Yield", {{"Tree";"=Apple";"=Pear"}})', 8.8), (f'=DVARP({_TREES}, "Yield", {{"Tree";"=Apple";"=Pear"}})', 7.04),
+]
+
+
+@pytest.mark.parametrize("formula, expected", DATABASE)
+def test_database_functions(formula, expected):
+    got = compute(formula)
+    assert isinstance(got, float) and math.isclose(got, expected, rel_tol=1e-9), got
+
+
+def test_dget_of_several_records_is_num_error():
+    assert compute(f'=DGET({_TREES}, "Yield", {{"Tree";"=Apple";"=Pear"}})').code == "#NUM!"
