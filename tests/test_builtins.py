@@ -243,3 +243,30 @@ def test_database_functions(formula, expected):
 
 def test_dget_of_several_records_is_num_error():
     assert compute(f'=DGET({_TREES}, "Yield", {{"Tree";"=Apple";"=Pear"}})').code == "#NUM!"
+
+COMPLEX_NUMBERS = [
+    ("=COMPLEX(3, 4)", "3+4i"), ('=COMPLEX(3, 4, "j")', "3+4j"), ("=COMPLEX(0, 1)", "i"), ("=COMPLEX(1, 0)", "1"),
+    ('=IMREAL("6-9i")', 6.0), ('=IMAGINARY("3+4i")', 4.0), ('=IMAGINARY("0-j")', -1.0), ('=IMABS("5+12i")', 13.0),
+    ('=IMARGUMENT("3+4i")', 0.92729522), ('=IMCONJUGATE("3+4i")', "3-4i"), ('=IMSUM("3+4i", "5-3i")', "8+i"),
+    ('=IMSUB("13+4i", "5+3i")', "8+i"), ('=IMPRODUCT("3+4i", "5-3i")', "27+11i"), ('=IMPRODUCT("1+2i", 30)', "30+60i"),
+    ('=IMDIV("-238+240i", "10+24i")', "5+12i"), ('=IMSQRT("1+i")', "1.09868411346781+0.455089860562227i"),
+    ('=IMEXP("1+i")', "1.46869393991589+2.28735528717884i"), ('=IMLN("3+4i")', "1.6094379124341+0.927295218001612i"),
+    ('=IMLOG10("3+4i")', "0.698970004336019+0.402719196273373i"), ('=IMLOG2("3+4i")', "2.32192809488736+1.33780421245098i"),
+    ('=IMSIN("4+3i")', "-7.61923172032141-6.548120040911i"), ('=IMCOS("1+i")', "0.833730025131149-0.988897705762865i"),
+    ('=IMTAN("4+3i")', "0.00490825806749606+1.00070953606723i"), ('=IMSINH("4+3i")', "-27.0168132580039+3.85373803791938i"),
+    ('=IMCOSH("4+3i")', "-27.0349456030742+3.85115333481178i"), ('=IMSEC("4+3i")', "-0.0652940278579471-0.0752249603027732i"),
+    ('=IMSECH("4+3i")', "-0.0362534969158689-0.00516434460775318i"), ('=IMCSC("4+3i")', "-0.0754898329158637+0.0648774713706355i"),
+    ('=IMCSCH("4+3i")', "-0.036275889628626-0.0051744731840194i"), ('=IMCOT("4+3i")', "0.0049011823943045-0.999266927805902i"),
+]
+
+
+@pytest.mark.parametrize("formula, expected", COMPLEX_NUMBERS)
+def test_complex_numbers(formula, expected):
+    got = compute(formula)
+    if isinstance(expected, float):
+        assert isinstance(got, float) and math.isclose(got, expected, rel_tol=1e-7), got
+    else:  # the documentation's 15 digits; the last one may differ with the order of operations
+        from cellfuncs.formula.fn_complex import parse_complex
+
+        (z, s), (w, t) = parse_complex(got), parse_complex(expected)
+        assert s == t and abs(z - w) <= 1e-13 * abs(w), got
