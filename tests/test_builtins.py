@@ -270,3 +270,12 @@ def test_complex_numbers(formula, expected):
 
         (z, s), (w, t) = parse_complex(got), parse_complex(expected)
         assert s == t and abs(z - w) <= 1e-13 * abs(w), got
+
+
+def test_matrices_and_sequences():
+    assert compute("=MMULT({1,3;7,2}, {2,0;0,2})").tolist() == [[2.0, 6.0], [14.0, 4.0]]  # Microsoft's MMULT example
+    assert compute("=MDETERM({1,3,8,5;1,3,6,1;1,1,1,0;7,3,10,2})") == 88.0  # Microsoft's MDETERM example
+    assert compute("=MINVERSE({4,-1;2,0})").tolist() == [[0.0, 0.5], [-1.0, 2.0]]  # Microsoft's MINVERSE example
+    assert compute("=MUNIT(3)").tolist() == [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]]
+    assert compute("=SEQUENCE(2, 3, 3, 2)").tolist() == [[3.0, 5.0, 7.0], [9.0, 11.0, 13.0]]
+    assert compute("=MINVERSE({1,2;2,4})").code == "#NUM!" and compute("=MMULT({1,2}, {1,2})").code == "#VALUE!"
