@@ -183,10 +183,11 @@ def irr(context: Context, values: Node, guess: Node | None = None) -> float | Ce
     0.086631
     """
     flows = _flows(context, (values,))
-    g = [0.1] if guess is None else _flows(context, (guess,))
+    g = [] if guess is None else _flows(context, (guess,))
     for x in (flows, g):
         if type(x) is CellError:
             return x
+    g = g or [0.1]  # left out or blank: Excel's default guess
     if not (any(v > 0 for v in flows) and any(v < 0 for v in flows)):
         return CellError(NUM, "IRR needs a positive and a negative flow")
     return _newton(lambda r: _npv(r, flows, 0), g[0], "IRR")

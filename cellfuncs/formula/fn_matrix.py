@@ -43,7 +43,8 @@ def mmult(a: Value, b: Value) -> Value:
             return m
     if x.shape[1] != y.shape[0]:
         return CellError(VALUE, f"MMULT of {shape_text(x.shape)} and {shape_text(y.shape)} matrices")
-    return as_value(x @ y)
+    with np.errstate(all="ignore"):  # an overflow becomes #NUM! elements
+        return as_value(x @ y)
 
 
 def _square(v: Value, name: str) -> np.ndarray | CellError:
