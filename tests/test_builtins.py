@@ -311,3 +311,17 @@ STATISTICS = [
 def test_statistics(formula, expected):
     got = compute(formula)
     assert isinstance(got, float) and math.isclose(got, expected, rel_tol=2e-5), got
+
+TEXT_FORMATS = [  # Microsoft's TEXT and number-format examples (from memory of those pages)
+    ('=TEXT(1234.567, "$#,##0.00")', "$1,234.57"), ('=TEXT(45293, "MM/DD/YY")', "01/02/24"),
+    ('=TEXT(45293, "dddd")', "Tuesday"), ('=TEXT(0.285, "0.0%")', "28.5%"), ('=TEXT(0.75, "H:MM AM/PM")', "6:00 PM"),
+    ('=TEXT(1234567898, "[<=9999999]###-####;(###) ###-####")', "(123) 456-7898"), ('=TEXT(1234, "0000000")', "0001234"),
+    ('=TEXT(-5, "0;(0)")', "(5)"), ('=TEXT(0, "0;-0;""zero""")', "zero"), ('=TEXT(12200000, "0.0,,")', "12.2"),
+    ('=TEXT(1.5, "[h]:mm")', "36:00"), ('=TEXT(45293.5, "yyyy-mm-dd hh:mm:ss")', "2024-01-02 12:00:00"),
+    ('=TEXT(1/3, "General")', "0.333333333"), ('=TEXT(5, "")', ""), ('=TEXT(8.9, "#.#")', "8.9"), ('=TEXT(5, "#.##")', "5."),
+]
+
+
+@pytest.mark.parametrize("formula, expected", TEXT_FORMATS)
+def test_text_formats(formula, expected):
+    assert compute(formula) == expected

@@ -554,7 +554,8 @@ def test_text(formula, text):
 
 
 def test_text_errors_and_arrays():
-    assert calc('=TEXT(1, "yyyy")').code == VALUE  # engine contract: unsupported format
+    assert calc('=TEXT(1.5, "# ?/?")').code == VALUE  # engine contract: fractions are not supported yet
+    assert calc('=TEXT(1, "yyyy")') == "1900"  # Excel behaviour (common practice): day 1 is 1900-01-01
     assert calc('=TEXT(1/0, "0")').code == DIV0
     assert calc('=TEXT(1E307, "0%")').code == NUM
     assert values(calc('=TEXT({1,2.5}, "0.0")')) == [["1.0", "2.5"]]

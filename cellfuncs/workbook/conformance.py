@@ -226,7 +226,8 @@ def _cause(engine: Recalc, fi: int, cached: object, computed: object, functions:
     if t.ast is None:
         return f"formula not understood: {_normalised(t.error.reason)}"
     if missing:
-        return f"missing built-in {missing[0]}"
+        name = missing[0]
+        return f"missing built-in {name}" if category_of(name) != "Other" else f"unknown function {name}"
     if upstream:
         return "reads a cell that differs"
     shown = ", ".join(functions) if functions else "operators"
