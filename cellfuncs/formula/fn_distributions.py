@@ -101,29 +101,42 @@ def beta_inv(p: float, a: float, b: float, lo: float = 0.0, hi: float = 1.0) -> 
     return lo + (hi - lo) * float(_sp().betaincinv(a, b, p))
 
 
+def _log_comb(n: int, k: int) -> float:
+    return math.lgamma(n + 1) - math.lgamma(k + 1) - math.lgamma(n - k + 1)
+
+
 def _binom_pmf(k: int, n: int, p: float) -> float:
-    return math.comb(n, k) * p**k * (1.0 - p) ** (n - k)
+    if p in (0.0, 1.0):
+        return float(k == (n if p == 1.0 else 0))
+    return math.exp(_log_comb(n, k) + k * math.log(p) + (n - k) * math.log1p(-p))
+
+
+def _binom_cdf(k: int, n: int, p: float) -> float:
+    if k >= n:
+        return 1.0
+    return float(_sp().bdtr(k, n, p)) if k >= 0 else 0.0
 
 
 def binom_dist(k: float, n: float, p: float, cumulative: float) -> float | CellError:
     k, n = int(k), int(n)
     if not 0 <= k <= n or not 0.0 <= p <= 1.0:
         return _bad("BINOM.DIST")
-    if cumulative:
-        return math.fsum(_binom_pmf(i, n, p) for i in range(k + 1))
-    return _binom_pmf(k, n, p)
+    return _binom_cdf(k, n, p) if cumulative else _binom_pmf(k, n, p)
 
 
 def binom_inv(n: float, p: float, alpha: float) -> float | CellError:
+    """The smallest k whose cumulative probability reaches ``alpha`` (bisection)."""
     n = int(n)
     if n < 0 or not 0.0 <= p <= 1.0 or not 0.0 < alpha < 1.0:
         return _bad("BINOM.INV")
-    total = 0.0
-    for k in range(n + 1):
-        total += _binom_pmf(k, n, p)
-        if total >= alpha * (1.0 - 1e-15):
-            return float(k)
-    return float(n)
+    lo, hi = 0, n
+    while lo < hi:
+        mid = (lo + hi) // 2
+        if _binom_cdf(mid, n, p) >= alpha * (1.0 - 1e-15):
+            hi = mid
+        else:
+            lo = mid + 1
+    return float(lo)
 
 
 def binom_dist_range(n: float, p: float, s: float, s2: float | None = None) -> float | CellError:
@@ -131,15 +144,20 @@ def binom_dist_range(n: float, p: float, s: float, s2: float | None = None) -> f
     s2 = s if s2 is None else int(s2)
     if not (0 <= s <= n and s <= s2 <= n and 0.0 <= p <= 1.0):
         return _bad("BINOM.DIST.RANGE")
-    return math.fsum(_binom_pmf(k, n, p) for k in range(s, s2 + 1))
+    if s2 - s < 1000:
+        return math.fsum(_binom_pmf(k, n, p) for k in range(s, s2 + 1))
+    return _binom_cdf(s2, n, p) - _binom_cdf(s - 1, n, p)
 
 
 def negbinom_dist(f: float, s: float, p: float, cumulative: float = 0.0) -> float | CellError:
     f, s = int(f), int(s)
-    if f < 0 or s < 1 or not 0.0 < p < 1.0 + 1e-300 or p > 1.0:
+    if f < 0 or s < 1 or not 0.0 < p <= 1.0:
         return _bad("NEGBINOM.DIST")
-    pmf = lambda k: math.comb(k + s - 1, s - 1) * p**s * (1.0 - p) ** k  # noqa: E731
-    return math.fsum(pmf(k) for k in range(f + 1)) if cumulative else pmf(f)
+    if cumulative:
+        return float(_sp().nbdtr(f, s, p))
+    if p == 1.0:
+        return float(f == 0)
+    return math.exp(_log_comb(f + s - 1, s - 1) + s * math.log(p) + f * math.log1p(-p))
 
 
 def poisson_dist(x: float, mean: float, cumulative: float) -> float | CellError:

@@ -278,11 +278,8 @@ def ddb(cost: float, salvage: float, life: float, period: float, factor: float =
     """
     if cost < 0.0 or salvage < 0.0 or life <= 0.0 or period <= 0.0 or factor <= 0.0 or period > life:
         return CellError(NUM, "DDB needs positive arguments and period <= life")
-    value, dep = cost, 0.0
-    for _ in range(math.ceil(period)):
-        dep = min(value * factor / life, max(value - salvage, 0.0))
-        value -= dep
-    return dep
+    before = cost * (1.0 - min(factor / life, 1.0)) ** (period - 1.0)  # the book value at the period's start
+    return min(before * min(factor / life, 1.0), max(before - salvage, 0.0))
 
 
 @builtin("DB", 4, 5)
@@ -298,6 +295,8 @@ def db(cost: float, salvage: float, life: float, period: float, month: float = 1
         return CellError(NUM, "DB needs positive arguments and 1 to 12 months")
     if period > life + 1.0 or (period > life and month == 12.0):
         return CellError(NUM, "DB's period is beyond the life")
+    if period > 100_000:
+        return CellError(NUM, "DB beyond 100000 periods is not supported")
     if cost == 0.0:
         return 0.0
     r = round(1.0 - (salvage / cost) ** (1.0 / life), 3)

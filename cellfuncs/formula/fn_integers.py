@@ -130,7 +130,7 @@ def combin(n: float, k: float) -> float | CellError:
     n, k = int(n), int(k)
     if n < 0 or k < 0 or k > n:
         return CellError(NUM, "COMBIN needs 0 <= k <= n")
-    return float(math.comb(n, k))
+    return _exact_or_large(lambda: math.comb(n, k), math.lgamma(n + 1) - math.lgamma(k + 1) - math.lgamma(n - k + 1))
 
 
 @builtin("COMBINA", 2)
@@ -144,7 +144,9 @@ def combina(n: float, k: float) -> float | CellError:
     n, k = int(n), int(k)
     if n < 0 or k < 0 or (n == 0 and k > 0):
         return CellError(NUM, "COMBINA needs n >= 0 and k >= 0")
-    return float(math.comb(n + k - 1, k)) if n else 1.0
+    if n == 0:
+        return 1.0
+    return _exact_or_large(lambda: math.comb(n + k - 1, k), math.lgamma(n + k) - math.lgamma(k + 1) - math.lgamma(n))
 
 
 @builtin("PERMUT", 2)
@@ -158,7 +160,16 @@ def permut(n: float, k: float) -> float | CellError:
     n, k = int(n), int(k)
     if n < 0 or k < 0 or k > n:
         return CellError(NUM, "PERMUT needs 0 <= k <= n")
-    return float(math.perm(n, k))
+    return _exact_or_large(lambda: math.perm(n, k), math.lgamma(n + 1) - math.lgamma(n - k + 1))
+
+
+def _exact_or_large(exact, log_value: float) -> float | CellError:
+    """An exact integer count when it is small enough to compute quickly, else from its logarithm."""
+    if log_value > 709.0:
+        return CellError(NUM, "the count is too large")
+    if log_value < 80.0:
+        return float(exact())
+    return math.exp(log_value)
 
 
 def _bits(name: str, fn) -> None:

@@ -97,6 +97,8 @@ def munit(n: Value) -> Value:
         return k
     if k < 1:
         return CellError(VALUE, "MUNIT takes a size of at least 1")
+    if k > 4096:
+        return CellError(NUM, "MUNIT larger than 4096 x 4096 is not supported")
     return as_value(np.eye(int(k)))
 
 
