@@ -42,3 +42,11 @@ def test_readme_main_command_recalculates_a_design_workbook_cleanly():
     done = subprocess.run([sys.executable, "-m", "cellfuncs", *run[1:]], capture_output=True, text=True, cwd=ROOT)
     assert done.returncode == 0, done.stdout + done.stderr
     assert re.search(r"^recalc: 1 files, \d+ cells, 0 errors, 0 differences, ", done.stderr, flags=re.M), done.stderr
+
+
+def test_readme_lists_exactly_the_registered_built_ins():
+    from cellfuncs.formula.catalog import builtin_list
+
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    listed = re.search(r"<!-- builtins: generated -->\n(.*?)<!-- /builtins -->", text, flags=re.S)
+    assert listed and listed.group(1) == builtin_list(), "regenerate it: python -m cellfuncs.formula.catalog"

@@ -36,6 +36,7 @@ from ..errors import CALC, NA, NAME, REF, SPILL, CellError
 from ..formula import Value, evaluate
 from .graph import components, cycle
 from .model import Book
+from .sheetxml import SheetScan
 from .refs import MAX_COL, MAX_ROW, Area, address, area, shifted
 from .templates import Template, Templates, build
 
@@ -73,6 +74,7 @@ class _Context:
         self.sheet = 0
         self.dr = 0
         self.dc = 0
+        self.row = self.col = 1  # the formula cell
         self.resolving: set = set()
 
     def function(self, name: str) -> Callable[..., Any] | None:
@@ -93,6 +95,18 @@ class _Context:
             if a is None:
                 return CellError(REF, f"{ref} moved by {self.dr} rows and {self.dc} columns is off the sheet")
         return s, a
+
+    def position(self) -> tuple[int, int]:
+        """The formula cell's row and column (for ROW() and COLUMN())."""
+        return self.row, self.col
+
+    def bounds(self, sheet: str | None, ref: str) -> tuple[int, int, int, int] | CellError:
+        """First row, first column, last row, last column of a reference (for ROW, ROWS, ...)."""
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return found
+        a = found[1]
+        return a.r1, a.c1, a.r2, a.c2
 
     def reference(self, sheet: str | None, ref: str) -> Value:
         found = self._area(sheet, ref)
@@ -171,6 +185,20 @@ def _legacy_fill(value: Value, shape: tuple[int, int]) -> np.ndarray:
     return out
 
 
+def _array_members(scan: SheetScan) -> set[tuple[int, int]]:
+    """Cells inside an array formula's range (its first cell excepted) that carry an empty
+    formula element: Excel writes ``<f ca="1"/>`` there when the array is volatile."""
+    out = set()
+    for (row, col), f in scan.formulas.items():
+        if f.kind == "array" and f.ref:
+            a = area(f.ref)
+            if a is not None and (a.r1, a.c1) == (row, col):
+                out |= {(r, c) for r in range(a.r1, a.r2 + 1) for c in range(a.c1, a.c2 + 1)
+                        if (r, c) != (row, col) and (r, c) in scan.formulas and scan.formulas[(r, c)].kind == "normal"
+                        and not scan.formulas[(r, c)].text}
+    return out
+
+
 class Recalc:
     """Recalculation of one workbook: :meth:`run` fills :attr:`values` (per sheet,
     (row, column) -> value), :attr:`result` (per formula cell) and :attr:`spills`."""
@@ -208,10 +236,14 @@ class Recalc:
             s = sheet.index
             masters = {f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
             arrays = []
+            members = _array_members(scan)
             for (row, col), f in scan.formulas.items():
                 if f.kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
                     if f.cached is not None:
                         self.constants[s][(row, col)] = f.cached
+                    continue
+                if (row, col) in members:  # Excel's <f ca="1"/> marker in an array's range: a cell of the array
+                    self.stored[s][(row, col)] = f.cached
                     continue
                 text, base = f.text, (row, col)
                 if f.kind == "shared" and not f.text:
@@ -312,11 +344,23 @@ class Recalc:
     # ---- values ----------------------------------------------------------------------
     def block(self, s: int, a: Area) -> np.ndarray:
         """The values of area ``a`` of sheet ``s`` as a 2-D object array (whole columns
-        and rows cut to the used range)."""
+        and rows cut to the used range).
+
+        Blocks are kept for the pass: every formula cell inside an area is evaluated before
+        any formula reading the area (the dependency order), so its values no longer change.
+        """
         r2, c2 = a.r2, a.c2
         if r2 == MAX_ROW or c2 == MAX_COL:
             rows, cols = self.extent[s]
             r2, c2 = min(r2, max(rows, a.r1)), min(c2, max(cols, a.c1))
+        key = (s, a.r1, a.c1, r2, c2)
+        out = self._blocks.get(key)
+        if out is None:
+            out = self._blocks[key] = self._read_block(s, a.r1, a.c1, r2, c2)
+        return out
+
+    def _read_block(self, s: int, r1: int, c1: int, r2: int, c2: int) -> np.ndarray:
+        a = Area(r1, c1, r2, c2)
         get = self.values[s].get
         out = np.empty((r2 - a.r1 + 1, c2 - a.c1 + 1), dtype=object)
         for i, r in enumerate(range(a.r1, r2 + 1)):
@@ -443,6 +487,7 @@ class Recalc:
 
     def _reset(self, assumed: dict[int, Area]) -> None:
         self.values = [dict(c) for c in self.constants]
+        self._blocks: dict[tuple[int, int, int, int, int], np.ndarray] = {}
         self.claims: list[dict[tuple[int, int], int]] = [{} for _ in self.book.sheets]
         self.result = [None] * len(self.cells)
         self.spills = {}
@@ -460,6 +505,7 @@ class Recalc:
 
     def _evaluate(self, units: list[tuple[int, ...]], adj: list[list[int]], comps: list[list[int]],
                   assumed: dict[int, Area]) -> None:
+        self.graph = (units, adj, comps)  # the order the results come from, for tools that trace them
         self._reset(assumed)
         self._context = _Context(self)
         self._column = _Column(self)
@@ -504,7 +550,7 @@ class Recalc:
             self._store(fi, t.error)
             return
         ctx = self._context
-        ctx.sheet, ctx.dr, ctx.dc = fc.sheet, fc.row - t.row, fc.col - t.col
+        ctx.sheet, ctx.dr, ctx.dc, ctx.row, ctx.col = fc.sheet, fc.row - t.row, fc.col - t.col, fc.row, fc.col
         self._store(fi, evaluate(t.ast, ctx))
 
     def _group(self, members: tuple[int, ...]) -> None:
