@@ -2,6 +2,9 @@
 
     python3 benchmarks/run.py            # everything
     python3 benchmarks/run.py --quick    # fewer repeats
+    python3 benchmarks/run.py --equations [--before DIR]
+        # only the equation-of-state substances' calls, beside those of the code in DIR
+        # (an unpacked earlier revision, e.g. `git archive REV | tar -x -C DIR`)
 
 Targets (from the project's issues) are printed beside each figure; they are
 goals for this machine class, not test assertions, because timings on shared
@@ -11,6 +14,9 @@ machines are noisy.
 from __future__ import annotations
 
 import argparse
+import json
+import math
+import os
 import statistics
 import subprocess
 import sys
@@ -34,6 +40,79 @@ def _plain_saturation_pressure(T: np.ndarray) -> np.ndarray:
     B = n[2] * v * v + n[3] * v + n[4]
     C = n[5] * v * v + n[6] * v + n[7]
     return (2 * C / (-B + np.sqrt(B * B - 4 * A * C))) ** 4 * 1e6
+
+
+def _plain_python_eq30(T: float) -> float:
+    """IAPWS-IF97 eq. 30 in plain Python floats: the unit the scalar-call goals are counted in."""
+    n = (0.11670521452767e4, -0.72421316703206e6, -0.17073846940092e2, 0.12020824702470e5,
+         -0.32325550322333e7, 0.14915108613530e2, -0.48232657361591e4, 0.40511340542057e6,
+         -0.23855557567849, 0.65017534844798e3)
+    v = T + n[8] / (T - n[9])
+    A = v * v + n[0] * v + n[1]
+    B = n[2] * v * v + n[3] * v + n[4]
+    C = n[5] * v * v + n[6] * v + n[7]
+    return (2 * C / (-B + math.sqrt(B * B - 4 * A * C))) ** 4 * 1e6
+
+
+EQUATION_CALLS = {
+    # name: (call, goal as a multiple of the plain-Python eq. 30 call, from the speed issue)
+    "BOIL_TEMP CO2": ('BOIL_TEMP("CO2", 50, "bar", "degC")', None),
+    "STABLE_PHASE CO2": ('STABLE_PHASE("CO2", 40, 100, "degC", "bar")', 80),
+    "MOLAR_VOLUME CO2": ('MOLAR_VOLUME("CO2", 40, 100, "", "degC", "bar", "L/mol")', None),
+    "MASS_DENSITY CO2": ('MASS_DENSITY("CO2", 40, 100, "", "degC", "bar")', None),
+    "BOIL_TEMP propane": ('BOIL_TEMP("propane", 5, "bar", "degC")', 40),
+    "STABLE_PHASE propane": ('STABLE_PHASE("propane", 25, 5, "degC", "bar")', None),
+    "MOLAR_VOLUME propane": ('MOLAR_VOLUME("propane", 25, 5, "", "degC", "bar", "L/mol")', 200),
+    "MASS_DENSITY propane": ('MASS_DENSITY("propane", 25, 15, "liquid", "degC", "bar")', None),
+}
+
+
+def equation_figures(repeat: int) -> dict[str, float]:
+    """Seconds per call (medians) of the equation substances' scalar calls, of the plain-Python
+    eq. 30 call and of MOLAR_VOLUME over a 100,000-element array, measured in this process."""
+    import cellfuncs
+
+    figures = {"eq. 30": _median_seconds(lambda: _plain_python_eq30(453.15), 20000, repeat)}
+    namespace = {name.split()[0]: getattr(cellfuncs, name.split()[0]) for name in EQUATION_CALLS}
+    for name, (call, _) in EQUATION_CALLS.items():
+        fn = eval(f"lambda: {call}", namespace)  # the benchmark's own fixed texts
+        fn()  # first use builds the substance and its saturation table
+        figures[name] = _median_seconds(fn, 100, repeat)
+    T = np.linspace(230.0, 360.0, 100_000)
+    for name, substance, p in (("MOLAR_VOLUME propane x 100,000", "propane", 5e5),
+                               ("MOLAR_VOLUME CO2 x 100,000", "CO2", 1e7)):
+        figures[name] = _median_seconds(lambda: cellfuncs.MOLAR_VOLUME(substance, T, p), 1, max(repeat // 2, 1))
+    return figures
+
+
+def equations(repeat: int, before: str | None) -> None:
+    """The equation substances' figures, as medians and as multiples of the eq. 30 call of the same
+    run; with ``before``, the same figures of the code in that folder, measured in a second process
+    right after (each figure's multiple is taken against its own process's eq. 30 call)."""
+    now = equation_figures(repeat)
+    old = None
+    if before:
+        env = dict(os.environ, PYTHONPATH=os.path.abspath(before))
+        code = (f"import sys, json; sys.path.insert(0, {os.path.dirname(os.path.abspath(__file__))!r}); "
+                f"import run; print(json.dumps(run.equation_figures({repeat})))")
+        old = json.loads(subprocess.run([sys.executable, "-c", code], env=env, check=True, capture_output=True,
+                                        text=True, cwd=os.path.abspath(before)).stdout.splitlines()[-1])
+    print("Equation-of-state substances: medians, and multiples of a plain-Python IF97 eq. 30 call "
+          f"({now['eq. 30'] * 1e6:.2f} us in this run)")
+    for name, seconds in now.items():
+        if name == "eq. 30":
+            continue
+        if name not in EQUATION_CALLS:  # an array: per state, not as a multiple
+            line = f"  {name:32s} {seconds * 1e3:10.1f} ms {seconds / 1e5 * 1e9:6.0f} ns per state"
+            print(line + (f"   before {old[name] * 1e3:10.1f} ms" if old is not None else ""))
+            continue
+        goal = EQUATION_CALLS[name][1]
+        line = f"  {name:32s} {seconds * 1e6:10.1f} us {seconds / now['eq. 30']:8.0f} x"
+        if old is not None:
+            line += f"   before {old[name] * 1e6:10.1f} us {old[name] / old['eq. 30']:8.0f} x"
+        if goal:
+            line += f"   goal <= {goal} x: {'ok' if seconds / now['eq. 30'] <= goal else 'OVER'}"
+        print(line)
 
 
 def vectorised(repeat: int) -> None:
@@ -161,8 +240,13 @@ def cold_start(repeat: int) -> None:
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--quick", action="store_true", help="fewer repeats")
+    parser.add_argument("--equations", action="store_true", help="only the equation-of-state substances' calls")
+    parser.add_argument("--before", metavar="DIR", help="with --equations: also measure the code in DIR")
     args = parser.parse_args()
     repeat = 3 if args.quick else 7
+    if args.equations:
+        equations(repeat, args.before)
+        return
     vectorised(repeat)
     print()
     vectorised_cubic(repeat)
@@ -170,6 +254,8 @@ def main() -> None:
     scalar(repeat)
     print()
     co2_equation_against_cubic(repeat)
+    print()
+    equations(repeat, None)
     print()
     cold_start(repeat)
     print()
