@@ -40,6 +40,7 @@ from cellfuncs.sheet.functions import (
     SUBSTANCE_INFO,
     SUBSTANCES,
     SUPERHEAT,
+    THERMAL_EXPANSIVITY,
     TRIPLE_POINT,
 )
 from cellfuncs.data import load
@@ -879,3 +880,11 @@ def test_every_message_the_model_gives_is_from_its_table():
     met = {key for key, t in templates.items() if any(t.match(reason) for reason in reasons)}
     # all but the region-3 root failures, which states inside region 3 do not reach
     assert set(templates) - met == {"no_region3_root_liquid", "no_region3_root_vapour"}
+
+
+def test_a_long_array_of_volumes_is_its_scalars_to_the_last_bit():
+    # the 280-600 K isobar at 20 MPa (all IF97 region 1) in several of the series' blocks
+    T = np.linspace(280.0, 600.0, 2 * if97._BLOCK + 37)
+    v, alpha = MOLAR_VOLUME(W, T, 20e6), THERMAL_EXPANSIVITY(W, T, 20e6)
+    for k in (0, if97._BLOCK - 1, if97._BLOCK, T.size - 1):
+        assert v[k] == MOLAR_VOLUME(W, T[k], 20e6) and alpha[k] == THERMAL_EXPANSIVITY(W, T[k], 20e6)

@@ -171,8 +171,18 @@ def _lowest_branches() -> tuple[np.ndarray, np.ndarray]:
 _LOWEST_EDGES, _LOWEST_ICE = _lowest_branches()
 
 
-def _molar(p: Props) -> Props:
-    return Props(p.v * M, p.h * M, p.s * M, p.g * M, p.cp * M, p.alpha, p.kappa)
+_PER_KG = ("v", "h", "s", "g", "cp")  # the fields a molar mass turns into molar ones
+
+
+def _where(a: np.ndarray, mask: np.ndarray) -> np.ndarray:
+    """The elements of ``a`` where ``mask`` holds: ``a`` itself, not a copy, when it holds everywhere."""
+    return a if mask.all() else a[mask]
+
+
+def _molar(props: Props, fields) -> dict[str, np.ndarray]:
+    """The fields the call wants, molar."""
+    return {name: value * M if name in _PER_KG else value
+            for name, value in props._asdict().items() if fields.wants(name)}
 
 
 class Water(Substance):
@@ -259,7 +269,9 @@ class Water(Substance):
         # the liquid is stable below the boiling line; above the critical pressure below Tc
         t_boil = np.where(high, TC, -np.inf)
         sat = high & (p <= PC)
-        if sat.any():
+        if sat.all():
+            t_boil = if97_saturation.saturation_temperature(p)
+        elif sat.any():
             t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
         state = classify(T, p, t_solid=t_solid, solid=ice, t_boil=t_boil, sat=sat, high=high, pt=PT, tc=TC, pc=PC,
                          n_solids=len(SOLIDS))
@@ -304,7 +316,7 @@ class Water(Substance):
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         low = ok & (t <= REGION1_T_MAX)
         if low.any():
-            self._put_props(fields, sel, low, if97.region1(t[low], q[low]))
+            self._put_props(fields, sel, low, if97.region1(_where(t, low), _where(q, low), fields.want))
         near = ok & (t > REGION1_T_MAX)
         if near.any():
             self._put_region3(fields, sel, near, t, q, "liquid", sub)
@@ -325,9 +337,10 @@ class Water(Substance):
         meta_props = None
         if meta.any():
             tm, qm = t[meta], q[meta]
-            meta_props = if97.region2_metastable(tm, qm)
+            # the enthalpy decides how wet the state is, whatever the call wants
+            meta_props = if97.region2_metastable(tm, qm, None if fields.want is None else {*fields.want, "h"})
             t_sat = if97_saturation.saturation_temperature(qm)
-            h_liq, h_vap = if97.region1(t_sat, qm).h, if97.region2(t_sat, qm).h
+            h_liq, h_vap = if97.region1(t_sat, qm, ("h",)).h, if97.region2(t_sat, qm, ("h",)).h
             wet = np.zeros(t.shape, bool)
             wet[meta] = (meta_props.h - h_liq) / (h_vap - h_liq) < 1.0 - META_VAPOUR_MOISTURE
             sub.flag(wet, OUT_OF_RANGE, MESSAGES["supersaturated_too_wet"], t, q)
@@ -340,7 +353,7 @@ class Water(Substance):
         above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~above_b23
         if two.any():
-            self._put_props(fields, sel, two, if97.region2(t[two], q[two]))
+            self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
         three = ok & above_b23
         if three.any():
             self._put_region3(fields, sel, three, t, q, "vapour", sub)
@@ -356,9 +369,9 @@ class Water(Substance):
         two = ok & ~three & (t <= REGION2_T_MAX)
         five = ok & (t > REGION2_T_MAX)
         if two.any():
-            self._put_props(fields, sel, two, if97.region2(t[two], q[two]))
+            self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
         if five.any():
-            self._put_props(fields, sel, five, if97.region5(t[five], q[five]))
+            self._put_props(fields, sel, five, if97.region5(_where(t, five), _where(q, five), fields.want))
         if three.any():
             self._put_region3(fields, sel, three, t, q, "liquid", sub)
         self._report(r, sel, sub)
@@ -381,7 +394,7 @@ class Water(Substance):
         self._report(r, sel, sub)
 
     def _put_props(self, fields, sel, part, props: Props) -> None:
-        self._put(fields, sel, part, _molar(props)._asdict())
+        self._put(fields, sel, part, _molar(props, fields))
 
     def _put_region3(self, fields, sel, part, t, q, branch: str, sub: Result) -> None:
         rho = if97_region3.density(t[part], q[part], branch)
