@@ -73,7 +73,7 @@ class _PowerSeries:
 
     Each derivative is again a sum of monomials x^a y^b; its own (nonzero) terms are gathered once
     here. A call computes only the derivatives it names, block by block: the distinct powers of x
-    and of y once per block, then each named derivative's monomials by one product and their
+    and of y once per block, the named derivatives' monomials by one product, and each derivative's
     pairwise sum (``_fold``). Every element goes through the same arithmetic
     in the same order whatever the array around it, so a scalar and the same value inside an array
     agree to the last bit, and a derivative does not depend on which others are asked for. Terms with
@@ -93,14 +93,18 @@ class _PowerSeries:
         self._plans: dict[tuple[str, ...], tuple] = {}
 
     def _plan(self, names: tuple[str, ...]) -> tuple:
-        """For the derivatives ``names``: the distinct powers of x and y, and for each derivative which
-        of them its monomials take, with their coefficients."""
+        """For the derivatives ``names``: the distinct powers of x and y, and which of them each
+        monomial takes, with its coefficient; one row of monomials per derivative, each as wide as
+        the series' longest derivative, padded with zero terms (x^0 y^0 times 0: exactly 0 wherever
+        x and y are). One width for every request keeps a derivative's sum the same whichever others
+        are asked for with it."""
         if names not in self._plans:
-            x_powers = np.unique(np.concatenate([self._terms[d][0] for d in names]))
-            y_powers = np.unique(np.concatenate([self._terms[d][1] for d in names]))
-            parts = [(np.searchsorted(x_powers, ex), np.searchsorted(y_powers, ey), c[:, None])
-                     for ex, ey, c in (self._terms[d] for d in names)]
-            self._plans[names] = (x_powers[:, None], y_powers[:, None], parts)
+            width = max(terms[2].size for terms in self._terms.values())
+            ex, ey, coefs = (np.concatenate([np.pad(self._terms[d][k], (0, width - self._terms[d][k].size))
+                                             for d in names]) for k in range(3))
+            x_powers, ix = np.unique(ex, return_inverse=True)
+            y_powers, iy = np.unique(ey, return_inverse=True)
+            self._plans[names] = (x_powers[:, None], y_powers[:, None], ix, iy, coefs[:, None], width)
         return self._plans[names]
 
     def __call__(self, x: np.ndarray, y: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
@@ -112,34 +116,32 @@ class _PowerSeries:
             x, y = np.broadcast_arrays(x, y)
         shape = x.shape
         x, y = x.reshape(-1), y.reshape(-1)
-        x_powers, y_powers, parts = self._plan(names)
+        x_powers, y_powers, ix, iy, coefs, width = self._plan(names)
         out = np.empty((len(names), x.size))
         for start in range(0, x.size, _BLOCK):
             block = slice(start, start + _BLOCK)
-            # one row per power or monomial, one column per element
-            xp, yp = np.power(x[block], x_powers), np.power(y[block], y_powers)
-            for row, (ix, iy, c) in zip(out, parts):
-                terms = xp.take(ix, axis=0)
-                terms *= yp.take(iy, axis=0)
-                terms *= c
-                row[block] = _fold(terms)
+            # one row per monomial, one column per element
+            terms = np.power(x[block], x_powers).take(ix, axis=0)
+            terms *= np.power(y[block], y_powers).take(iy, axis=0)
+            terms *= coefs
+            out[:, block] = _fold(terms.reshape(len(names), width, -1))
         return {name: row.reshape(shape) for name, row in zip(names, out)}
 
 
 def _fold(terms: np.ndarray) -> np.ndarray:
-    """The sum of the rows of ``terms`` by halves: the first half's rows plus the second's, until one
-    row is left (an odd row is carried to the next round).
+    """Sums over the middle axis of ``terms`` by halves: the first half's rows plus the second's,
+    until one row is left (an odd row is carried to the next round).
 
     Only element-wise additions in a pattern fixed by the number of rows (not a BLAS product or a
     reduction, whose order numpy may choose by shape), so every element adds its terms in the same
     order whatever the array around it and a scalar and the same value inside an array agree to the
     last bit; vectorised across the elements, and pairwise, which rounds less than one by one.
     """
-    while terms.shape[0] > 1:
-        half = terms.shape[0] // 2
-        folded = terms[:half] + terms[half:2 * half]
-        terms = folded if terms.shape[0] % 2 == 0 else np.concatenate([folded, terms[2 * half:]])
-    return terms[0]
+    while terms.shape[1] > 1:
+        half = terms.shape[1] // 2
+        folded = terms[:, :half] + terms[:, half:2 * half]
+        terms = folded if terms.shape[1] % 2 == 0 else np.concatenate([folded, terms[:, 2 * half:]], axis=1)
+    return terms[:, 0]
 
 
 def _gibbs_props(T: np.ndarray, p: np.ndarray, pi: np.ndarray, tau: np.ndarray, d: dict[str, np.ndarray],
