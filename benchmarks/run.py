@@ -128,6 +128,33 @@ def vectorised(repeat: int) -> None:
     print(f"  ratio       {ours / plain:8.2f} x   (same numbers: {same})")
 
 
+
+_VOLUME_PEAK = """
+import resource, numpy as np, cellfuncs
+cellfuncs.MOLAR_VOLUME("water", np.linspace(280.0, 600.0, 1_000_000), 20e6)
+print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024)
+"""
+
+
+def vectorised_water_volume(repeat: int) -> None:
+    """IF97 region 1 volumes over a big array, against BOIL_PRESSURE on the same array; peak memory
+    of a fresh process making the same call (ru_maxrss, Linux: kB)."""
+    import cellfuncs
+
+    T = np.linspace(280.0, 600.0, 1_000_000)
+    volume, boil = [], []
+    for _ in range(repeat):  # alternated, so both see the same machine load
+        volume.append(_median_seconds(lambda: cellfuncs.MOLAR_VOLUME("water", T, 20e6), 1, 1))
+        boil.append(_median_seconds(lambda: cellfuncs.BOIL_PRESSURE("water", T), 1, 1))
+    v, b = statistics.median(volume), statistics.median(boil)
+    peak = float(subprocess.run([sys.executable, "-c", _VOLUME_PEAK], check=True, capture_output=True,
+                                text=True).stdout)
+    print("MOLAR_VOLUME water, 1,000,000 temperatures 280-600 K at 20 MPa (target: <= 8x BOIL_PRESSURE, < 600 MB)")
+    print(f"  MOLAR_VOLUME  {v * 1e3:8.1f} ms")
+    print(f"  BOIL_PRESSURE {b * 1e3:8.1f} ms")
+    print(f"  ratio         {v / b:8.2f} x   {'ok' if v / b <= 8 else 'OVER'}")
+    print(f"  peak memory   {peak:8.0f} MB  {'ok' if peak < 600 else 'OVER'}")
+
 SCALAR_CALLS = {
     # name: (call, target in microseconds)
     "BOIL_TEMP": ('BOIL_TEMP("water", 10, "barg", "degC")', 20),
@@ -248,6 +275,8 @@ def main() -> None:
         equations(repeat, args.before)
         return
     vectorised(repeat)
+    print()
+    vectorised_water_volume(repeat)
     print()
     vectorised_cubic(repeat)
     print()

@@ -10,6 +10,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
+from cellfuncs.substances.props import Props
 from cellfuncs.substances.water import if97, if97_saturation
 from cellfuncs.substances.water.if97 import region1, region2, region2_metastable, region5
 from cellfuncs.substances.water.if97_saturation import (
@@ -134,6 +135,25 @@ def test_scalar_and_array_agree(region, t_range, p_range):
     for i in range(8):
         for j in range(5):
             np.testing.assert_allclose(np.array(grid)[:, i, j], np.array(region(T[i], p[j])), rtol=1e-14, atol=0)
+
+
+@pytest.mark.parametrize("region, t_range, p_range", GIBBS_RANGES + [(region2_metastable, (300.0, 600.0), (1e3, 1e7))])
+def test_each_element_of_a_long_array_is_its_scalar_to_the_last_bit(region, t_range, p_range):
+    # the series run in blocks: elements in the first, a middle and the ragged last block, at the
+    # blocks' edges, are the scalar call's numbers exactly, and a field asked for alone is the
+    # same as among all seven (the others come back NaN)
+    n = 2 * if97._BLOCK + 37
+    T = rng.uniform(*t_range, n)
+    p = np.exp(rng.uniform(*np.log(p_range), n))
+    whole = region(T, p)
+    for k in [0, 1, if97._BLOCK - 1, if97._BLOCK, 2 * if97._BLOCK, n - 1, *rng.integers(0, n, 10)]:
+        single = region(T[k], p[k])
+        for name, a, b in zip(single._fields, whole, single):
+            assert a[k] == b, (name, k)
+    for name in Props._fields:
+        alone = region(T, p, (name,))
+        np.testing.assert_array_equal(getattr(alone, name), getattr(whole, name))
+        assert all(np.isnan(getattr(alone, other)).all() for other in Props._fields if other != name)
 
 
 @pytest.mark.parametrize(

@@ -9,7 +9,10 @@ measure are written beside the bounds.
 
 from __future__ import annotations
 
+import ast
 import inspect
+import re
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -37,9 +40,12 @@ from cellfuncs.sheet.functions import (
     SUBSTANCE_INFO,
     SUBSTANCES,
     SUPERHEAT,
+    THERMAL_EXPANSIVITY,
     TRIPLE_POINT,
 )
+from cellfuncs.data import load
 from cellfuncs.substances.water import if97, if97_saturation
+from cellfuncs.substances.water import model as water_model
 
 W = "water"
 R = 8.314462618  # J/(mol K), molar gas constant, CODATA 2018 (exact since the 2019 SI)
@@ -751,3 +757,134 @@ def test_supercooled_liquid_matches_measured_densities(celsius, measured):
     rho = MASS_DENSITY(W, celsius, 0.1, "liquid", "degC", "MPa")
     assert rho == pytest.approx(measured, rel=2e-4)
     assert STABLE_PHASE(W, celsius, 0.1, "degC", "MPa") == "ice Ih"
+
+
+# --- every limit and every number in a message comes from the data files -------------------------
+# A value typed a second time into the code can drift from the data file it came from. These tests
+# take the values the water data files state (cellfuncs/data/water/*.toml: constants, the lines'
+# anchoring triple points and ranges) as the only source of the numbers that the messages and
+# SUBSTANCE_INFO print and the code compares with.
+
+_WATER_DATA = ("water", "if97", "if97_region3", "ice_ih", "ice_lines")
+_QUANTITY = re.compile(r"(?<![\w.+-])(\d+(?:\.\d*)?(?:e[+-]?\d+)?) ?(K|Pa|MPa|GPa|%)(?!\w)")
+_SCALE = {"K": 1.0, "Pa": 1.0, "MPa": 1e6, "GPa": 1e9, "%": 0.01}
+# numbers that are arithmetic or SI prefixes, not facts of the formulations, wherever they appear
+_NOT_FACTS = {0.0, 0.5, 1.0, 2.0, 1e3, 1e6, 1e9}
+
+
+def _data_values() -> np.ndarray:
+    values = []
+    for name in _WATER_DATA:
+        content = load(f"water/{name}")
+        values += [entry["value"] for entry in content.get("constants", {}).values()]
+        for tab in content.get("tables", {}).values():
+            for key in ("T_n", "p_n", "T_range", "p_range", "pi_shift", "tau_shift"):
+                values += np.ravel(tab.get(key, [])).tolist()
+    return np.array(values, dtype=float)
+
+
+def _stated_by_data(printed: str, unit: str, values: np.ndarray) -> bool:
+    """Whether a data value, in ``unit`` and rounded to the printed significant digits, reads ``printed``."""
+    digits = len(re.sub(r"^[0.]+", "", printed.split("e")[0].replace(".", "")) or "0")
+    return any(float(f"{v / _SCALE[unit]:.{digits}g}") == float(printed) for v in values)
+
+
+def _message_texts() -> list[str]:
+    info = [item.value for item in water_model.Water().info().values() if isinstance(item.value, str)]
+    return list(water_model.MESSAGES.values()) + info
+
+
+def test_every_number_in_a_message_is_a_data_value():
+    values = _data_values()
+    found = [(text, m.group(0)) for text in _message_texts() for m in _QUANTITY.finditer(text)]
+    assert len(found) > 60  # the ranges and limits the messages name
+    wrong = [(text, q) for text, q in found if not _stated_by_data(*_QUANTITY.fullmatch(q).groups(), values)]
+    assert not wrong
+
+
+def test_the_number_check_catches_a_retyped_value():
+    values = _data_values()
+    assert _stated_by_data("623.15", "K", values) and _stated_by_data("22.064", "MPa", values)
+    assert _stated_by_data("20.6178", "GPa", values) and _stated_by_data("5", "%", values)
+    assert not _stated_by_data("623.16", "K", values)  # a digit wrong
+    assert not _stated_by_data("210", "Pa", values)  # the right digits in the wrong unit
+
+
+def test_the_limits_are_the_data_values():
+    # each limit the model compares with, against the data file and key the formulation names
+    expected = {
+        "REGION1_T_MAX": ("if97", "t_13"), "B23_T_MAX": ("if97", "t_b23_max"), "REGION2_T_MAX": ("if97", "t_25"),
+        "REGION5_T_MAX": ("if97", "t_max"), "P_MAX_FLUID": ("if97", "p_max"),
+        "P_MAX_REGION5": ("if97", "region5_p_max"), "ICE_IH_T_MAX": ("ice_ih", "max_temperature"),
+        "ICE_IH_P_MAX": ("ice_ih", "max_pressure"), "P_MAX_LIQUID": ("ice_ih", "max_pressure"),
+        "REGION2_T_MIN": ("water", "region2_extension_t_min"),
+        "META_VAPOUR_P_MAX": ("water", "metastable_vapour_p_max"),
+        "META_VAPOUR_MOISTURE": ("water", "metastable_vapour_moisture"),
+        "SUPERHEAT_MARGIN": ("water", "superheated_liquid_margin"),
+        "SUPERCOOL_MARGIN": ("water", "supercooled_liquid_margin"),
+        "TT": ("water", "triple_point_temperature"), "PT": ("water", "triple_point_pressure"),
+        "TC": ("water", "critical_temperature"), "PC": ("water", "critical_pressure"),
+    }
+    for name, (data, key) in expected.items():
+        assert getattr(water_model, name) == load(f"water/{data}")["constants"][key]["value"], name
+
+
+def _water_sources():
+    folder = Path(water_model.__file__).parent
+    return sorted(folder.glob("*.py"))
+
+
+def _docstrings(tree: ast.AST) -> set[int]:
+    nodes = [tree] + [n for n in ast.walk(tree) if isinstance(n, (ast.FunctionDef, ast.ClassDef))]
+    return {id(n.body[0].value) for n in nodes if n.body and isinstance(n.body[0], ast.Expr)
+            and isinstance(n.body[0].value, ast.Constant)}
+
+
+def test_no_water_module_retypes_a_data_value():
+    # a number of the data files written again as a literal, or a quantity written into a string
+    # outside a docstring, is a second copy of a fact (docstrings describe, the code computes)
+    facts = set(_data_values().tolist()) - _NOT_FACTS
+    copies = []
+    for path in _water_sources():
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        docs = _docstrings(tree)
+        for node in ast.walk(tree):
+            if not isinstance(node, ast.Constant) or id(node) in docs:
+                continue
+            if type(node.value) in (int, float) and float(node.value) in facts:
+                copies.append((path.name, node.lineno, node.value))
+            if isinstance(node.value, str) and _QUANTITY.search(node.value):
+                copies.append((path.name, node.lineno, node.value))
+    assert len(_water_sources()) >= 6 and not copies
+
+
+def test_every_message_the_model_gives_is_from_its_table():
+    # out-of-range states over every phase and line: each problem's text is a MESSAGES template
+    # filled with the element's values, so the table the tests above check is the whole story
+    templates = {key: re.compile(re.escape(t).replace(r"\{\}", r"(?:[-+.e\d]+|-?inf|nan)") + "$")
+                 for key, t in water_model.MESSAGES.items()}
+    w = water_model.Water()
+    T = np.r_[np.geomspace(20.0, 3000.0, 60), 250.0, 260.0, 640.0, 700.0, 1100.0, 2300.0]
+    p = np.r_[np.geomspace(1e-45, 5e10, 60), 150e6, 205e6, 220e6, 400e6, 60e6, 120e6, 20e6]
+    T2, p2 = (a.ravel() for a in np.meshgrid(T, p))
+    hot = T2 > TC  # the fluid phase only where it exists (the shared model answers the rest)
+    with np.errstate(invalid="ignore"):  # the lines' equations are evaluated past their ends, then flagged
+        results = [w.props(T2, p2, phase)[1] for phase in (0, 1, 2, 10, 11, 12, 13, 14)]
+        results += [w.props(T2[hot], p2[hot], 3)[1], w.stable_phase(T2, p2), w.boil_pressure(T),
+                    w.boil_temperature(p), w.melt_pressure(T)[0], w.melt_temperature(p)[0], w.sublime_pressure(T),
+                    w.sublime_temperature(p)]
+        results += [w.melt_pressure(T, 10 + k)[0] for k in range(len(water_model.SOLIDS))]
+    reasons = {pr.reason for r in results if r.problems is not None for pr in r.problems.ravel() if pr is not None}
+    unknown = [reason for reason in reasons if not any(t.match(reason) for t in templates.values())]
+    assert not unknown
+    met = {key for key, t in templates.items() if any(t.match(reason) for reason in reasons)}
+    # all but the region-3 root failures, which states inside region 3 do not reach
+    assert set(templates) - met == {"no_region3_root_liquid", "no_region3_root_vapour"}
+
+
+def test_a_long_array_of_volumes_is_its_scalars_to_the_last_bit():
+    # the 280-600 K isobar at 20 MPa (all IF97 region 1) in several of the series' blocks
+    T = np.linspace(280.0, 600.0, 2 * if97._BLOCK + 37)
+    v, alpha = MOLAR_VOLUME(W, T, 20e6), THERMAL_EXPANSIVITY(W, T, 20e6)
+    for k in (0, if97._BLOCK - 1, if97._BLOCK, T.size - 1):
+        assert v[k] == MOLAR_VOLUME(W, T[k], 20e6) and alpha[k] == THERMAL_EXPANSIVITY(W, T[k], 20e6)

@@ -33,14 +33,16 @@ _N1 = float(_TABLE["n1"])
 _I = _TABLE["I"].astype(int)
 _J = _TABLE["J"].astype(int)
 _N = _TABLE["n"]
-RHO_STAR = constant(_DATA, "rho_star").value  # kg/m3
-T_STAR = constant(_DATA, "T_star").value  # K
-R = constant(_DATA, "R").value  # J/(kg K)
+# eq. (28) reduces by the critical point and uses the gas constant of eq. (1)
+RHO_STAR = constant("water/water", "critical_density").value  # kg/m3
+T_STAR = constant("water/water", "critical_temperature").value  # K
+R = constant("water/if97", "gas_constant").value  # J/(kg K)
 
-# Validity range of region 3 (documentation for the water model; not enforced here).
-T_MIN = constant(_DATA, "T_min").value  # K
-T_MAX = constant(_DATA, "T_max").value  # K
-P_MAX = constant(_DATA, "p_max").value  # Pa
+# Validity range of region 3 (IAPWS R7-97(2012), section 4; the water model enforces it, not this module):
+# from the region 1 boundary to the top of the B23 line, up to the highest pressure of regions 1 to 3.
+T_MIN = constant("water/if97", "t_13").value  # K
+T_MAX = constant("water/if97", "t_b23_max").value  # K
+P_MAX = constant("water/if97", "p_max").value  # Pa
 
 # Density span scanned by density(). Region 3 reaches from 113.6 kg/m3 (vapour at 623.15 K on
 # the B23 line) to 762.4 kg/m3 (623.15 K, 100 MPa); the span adds margin on both sides and stays

@@ -49,35 +49,105 @@ PT = constant(_DATA, "triple_point_pressure").value
 # BOIL_PRESSURE at 647.096 K gives a hair above 22.064 MPa.
 MELT_JOIN_TOL = 1e-6  # the R14-08 ice Ih and III lines meet at 251.165 K only to 1.5e-7 in T
 
-REGION1_T_MAX = 623.15  # K, IF97 regions 1/3 and 2/3 split below the B23 line's start
-REGION2_T_MIN = 200.0  # K, lowest temperature of the region 2 extension along the sublimation line
-REGION3_T_MAX = 863.15  # K, top of the B23 line
-REGION2_T_MAX = 1073.15  # K
-REGION5_T_MAX = 2273.15  # K
-P_MAX_FLUID = 100e6  # Pa, regions 1, 2 and 3
-P_MAX_LIQUID = 210e6  # Pa, region 1 extended along the ice Ih melting line
-P_MAX_REGION5 = 50e6  # Pa
-ICE_IH_P_MAX = 210e6  # Pa, IAPWS R10-06 range
+# Limits, each read once from the data file of the formulation it bounds
+REGION1_T_MAX = if97.REGION1_T_MAX  # regions 1/3 and 2/3 split here, where the B23 line starts
+B23_T_MAX = if97_saturation.B23_T_MAX  # top of the B23 line, the highest temperature of region 3
+REGION2_T_MAX = if97.REGION2_T_MAX
+REGION5_T_MAX = if97.REGION5_T_MAX  # the highest temperature of the water formulations
+P_MAX_FLUID = if97.P_MAX  # regions 1, 2 and 3
+P_MAX_REGION5 = if97.REGION5_P_MAX
+ICE_IH_T_MAX = ice_ih.T_MAX
+ICE_IH_P_MAX = ice_ih.P_MAX
+# region 1 is extended along the ice Ih melting line as far up as the ice it melts from
+P_MAX_LIQUID = ICE_IH_P_MAX
+REGION2_T_MIN = constant(_DATA, "region2_extension_t_min").value  # along the sublimation line
 META_VAPOUR_P_MAX = constant(_DATA, "metastable_vapour_p_max").value
 META_VAPOUR_MOISTURE = constant(_DATA, "metastable_vapour_moisture").value
 SUPERHEAT_MARGIN = constant(_DATA, "superheated_liquid_margin").value
 SUPERCOOL_MARGIN = constant(_DATA, "supercooled_liquid_margin").value
 
 SOLIDS = tuple(f"ice {name}" for name in ice_lines.ICES)  # ice Ih, ice III, ice V, ice VI, ice VII
-_IH_P_TOP = ice_lines.line_range("Ih")[1][1]  # 208.566 MPa, the ice Ih-III-liquid triple point
 _MELT_P_TOP = ice_lines.line_range("VII")[1][1]
-_SUB_T_MIN, _SUB_T_MAX = ice_lines.line_range("sublimation")[0]
-_MELT_T_MIN = ice_lines.line_range("Ih")[0][0]  # 251.165 K
-_MELT_T_MAX = ice_lines.line_range("VII")[0][1]  # 715 K
-# the published end, below which the inverse gives NaN (the equation gives 2.6e-7 less at 50 K)
+_SUB_T_MIN = ice_lines.line_range("sublimation")[0][0]
+_MELT_T_MIN = ice_lines.line_range("Ih")[0][0]  # the ice Ih-III-liquid triple point
+_MELT_T_MAX = ice_lines.line_range("VII")[0][1]
+# the published end, below which the inverse gives NaN (the equation gives 2.6e-7 less at its lowest T)
 _SUB_P_MIN = ice_lines.line_range("sublimation")[1][0]
-# below 632.4 MPa (ice V-VI-liquid) no melting line is warmer than 273.31 K
+# below the ice V-VI-liquid triple point no melting line is warmer than that point
 _MELT_T_NEAR = ice_lines.line_range("V")[0][1]
 _MELT_P_NEAR = ice_lines.line_range("V")[1][1]
 
-# messages of the range checks made on every call, formatted once
-_ABOVE_ICE_VII = "{} Pa is above the top of the ice VII melting line (" + fmt(_MELT_P_TOP) + " Pa)"
-_BELOW_SUBLIMATION = "{} Pa is below the sublimation line's range (" + fmt(_SUB_P_MIN) + " Pa at 50 K)"
+
+def _k(T: float) -> str:
+    return fmt(T) + " K"
+
+
+def _pa(p: float) -> str:
+    return fmt(p) + " Pa"
+
+
+def _mpa(p: float) -> str:
+    return fmt(p / 1e6) + " MPa"
+
+
+def _gpa(p: float) -> str:
+    return fmt(p / 1e9) + " GPa"
+
+
+# Every message the model gives, formatted once from the limits above; "{}" takes the element's values.
+MESSAGES = {
+    "below_triple_t": "{} K is below the triple-point temperature of water (" + _k(TT) + ")",
+    "above_triple_t": "{} K is above the triple-point temperature of water (" + _k(TT) + ")",
+    "below_triple_p": "{} Pa is below the triple-point pressure of water (" + _pa(PT) + ")",
+    "above_triple_p": "{} Pa is above the triple-point pressure of water (" + _pa(PT) + ")",
+    "above_critical_t": "{} K is above the critical temperature of water (" + _k(TC) + "): there is no "
+                        "liquid-vapour line above it",
+    "above_critical_p": "{} Pa is above the critical pressure of water (" + _mpa(PC) + "): there is no "
+                        "liquid-vapour line above it",
+    "outside_melting": "{} K is outside the melting lines of water (" + _k(_MELT_T_MIN) + " to " + _k(_MELT_T_MAX)
+                       + ")",
+    **{f"outside_melting_{ice}": "{} K is outside the ice " + ice + " melting line (" + _k(t_lo) + " to " + _k(t_hi)
+       + ")" for ice in ice_lines.ICES for (t_lo, t_hi) in [ice_lines.line_range(ice)[0]]},
+    "above_ice_vii": "{} Pa is above the top of the ice VII melting line (" + _pa(_MELT_P_TOP) + ")",
+    "below_sublimation_t": "{} K is below the sublimation line's range (" + _k(_SUB_T_MIN) + ")",
+    "below_sublimation_p": "{} Pa is below the sublimation line's range (" + _pa(_SUB_P_MIN) + " at "
+                           + _k(_SUB_T_MIN) + ")",
+    "above_formulations_t": "{} K is above the highest temperature of the water formulations ("
+                            + _k(REGION5_T_MAX) + ")",
+    "liquid_above_p": "liquid water at {} Pa is above the formulation's range (" + _mpa(P_MAX_LIQUID) + ")",
+    "hot_liquid_above_p": "liquid water above " + _k(REGION1_T_MAX) + " is covered to " + _mpa(P_MAX_FLUID)
+                          + " only; got {} Pa",
+    "superheated_liquid": "liquid water at {} K and {} Pa is superheated by more than " + _k(SUPERHEAT_MARGIN)
+                          + ", the limit of the metastable liquid (IF97 region 1, saturation at {} K)",
+    "supercooled_below_triple_p": "liquid water at {} K and {} Pa is below the triple-point pressure ("
+                                  + _pa(PT) + ") as well as supercooled: outside the formulations",
+    "supercooled_liquid": "liquid water at {} K and {} Pa is supercooled by more than " + _k(SUPERCOOL_MARGIN)
+                          + " below its melting temperature or below " + _k(_MELT_T_MIN) + ", the limit of the "
+                          "metastable liquid (IF97 region 1 extended)",
+    "cold_vapour": "water vapour below " + _k(REGION2_T_MIN) + " is outside the formulation (IF97 region 2 "
+                   "extended to " + _k(REGION2_T_MIN) + "); got {} K",
+    "vapour_over_ice": "water vapour at {} K and {} Pa is above its sublimation pressure: vapour supersaturated "
+                       "over ice is outside the formulations",
+    "supersaturated_above_p": "water vapour at {} K and {} Pa is above its vapour pressure: supersaturated vapour "
+                              "is covered to " + _pa(META_VAPOUR_P_MAX) + " only (IF97's metastable-vapour "
+                              "equation)",
+    "supersaturated_too_wet": "water vapour at {} K and {} Pa is supersaturated beyond the "
+                              + fmt(100 * META_VAPOUR_MOISTURE) + " % equilibrium moisture line, where IF97's "
+                              "metastable-vapour equation ends",
+    "fluid_hot": "{} K is above the water formulations' range (" + _k(REGION5_T_MAX) + ")",
+    "fluid_region5_above_p": "above " + _k(REGION2_T_MAX) + " water is covered to " + _mpa(P_MAX_REGION5)
+                             + " only (IF97 region 5); got {} Pa",
+    "fluid_above_p": "{} Pa is above the water formulations' range for fluid (" + _mpa(P_MAX_FLUID) + ")",
+    "ice_hot": "ice Ih above " + _k(ICE_IH_T_MAX) + " is outside IAPWS R10-06; got {} K",
+    "ice_above_p": "ice Ih above " + _mpa(ICE_IH_P_MAX) + " is outside IAPWS R10-06; got {} Pa",
+    "ice_melted": "ice Ih at {} K and {} Pa is above its melting temperature",
+    **{f"no_region3_root_{branch}": "no " + branch + "-like density root of IF97 region 3 at {} K and {} Pa"
+       for branch in ("liquid", "vapour")},
+    **{f"no_volume_{solid}": "no volume formulation for " + solid + " (only ice Ih has one, IAPWS R10-06)"
+       for solid in SOLIDS[1:]},
+    **{f"stable_without_volume_{solid}": "the stable phase is " + solid + ", which has no volume formulation "
+       "(only ice Ih has one, IAPWS R10-06)" for solid in SOLIDS[1:]},
+}
 
 _LABELS, _STATE_PHASE = state_table(SOLIDS)
 
@@ -101,8 +171,18 @@ def _lowest_branches() -> tuple[np.ndarray, np.ndarray]:
 _LOWEST_EDGES, _LOWEST_ICE = _lowest_branches()
 
 
-def _molar(p: Props) -> Props:
-    return Props(p.v * M, p.h * M, p.s * M, p.g * M, p.cp * M, p.alpha, p.kappa)
+_PER_KG = ("v", "h", "s", "g", "cp")  # the fields a molar mass turns into molar ones
+
+
+def _where(a: np.ndarray, mask: np.ndarray) -> np.ndarray:
+    """The elements of ``a`` where ``mask`` holds: ``a`` itself, not a copy, when it holds everywhere."""
+    return a if mask.all() else a[mask]
+
+
+def _molar(props: Props, fields) -> dict[str, np.ndarray]:
+    """The fields the call wants, molar."""
+    return {name: value * M if name in _PER_KG else value
+            for name, value in props._asdict().items() if fields.wants(name)}
 
 
 class Water(Substance):
@@ -115,19 +195,15 @@ class Water(Substance):
     # --- boundaries -------------------------------------------------------------------
     def boil_pressure(self, T: np.ndarray) -> Result:
         r = Result.like(T)
-        r.flag(T < TT * (1 - LINE_TOL), OUT_OF_RANGE, "{} K is below the triple-point temperature of water (273.16 K)",
-               T, see="sublime")
-        r.flag(T > TC * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the critical temperature of water (647.096 K): "
-               "there is no liquid-vapour line above it", T)
+        r.flag(T < TT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_t"], T, see="sublime")
+        r.flag(T > TC * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_critical_t"], T)
         r.fill(if97_saturation.saturation_pressure(T))
         return r
 
     def boil_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
-        r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)",
-               p, see="sublime")
-        r.flag(p > PC * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the critical pressure of water (22.064 MPa): "
-               "there is no liquid-vapour line above it", p)
+        r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_p"], p, see="sublime")
+        r.flag(p > PC * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_critical_p"], p)
         r.fill(if97_saturation.saturation_temperature(p))
         return r
 
@@ -136,23 +212,21 @@ class Water(Substance):
         if solid is None:
             # the lowest melting pressure at T: the first line (in order of pressure) that reaches T
             codes = SOLID + _LOWEST_ICE[np.searchsorted(_LOWEST_EDGES, T)]
-            r.flag(codes < SOLID, OUT_OF_RANGE, "{} K is outside the melting lines of water (251.165 K to 715 K)", T)
+            r.flag(codes < SOLID, OUT_OF_RANGE, MESSAGES["outside_melting"], T)
         else:
             ice = ice_lines.ICES[solid - SOLID]
             (t_lo, t_hi), _ = ice_lines.line_range(ice)
             codes = np.full(np.shape(T), solid)
             r.flag((T < t_lo * (1 - LINE_TOL)) | (T > t_hi * (1 + LINE_TOL)), OUT_OF_RANGE,
-                   "{} K is outside the ice " + ice + f" melting line ({fmt(t_lo)} K to {fmt(t_hi)} K)", T)
+                   MESSAGES[f"outside_melting_{ice}"], T)
         for code in np.unique(codes[np.broadcast_to(r.ok, np.shape(T))]):
             r.fill(ice_lines.melting_pressure(T, ice_lines.ICES[code - SOLID]), where=codes == code)
         return r, codes
 
     def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
         r = Result.like(p)
-        r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the triple-point pressure of water (611.657 Pa)",
-               p, see="sublime")
-        r.flag(p > _MELT_P_TOP * (1 + LINE_TOL), OUT_OF_RANGE,
-               _ABOVE_ICE_VII, p)
+        r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_p"], p, see="sublime")
+        r.flag(p > _MELT_P_TOP * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_ice_vii"], p)
         inside = np.clip(p, PT, _MELT_P_TOP)  # the inverse gives NaN past the ends
         T, index = ice_lines.melting_temperature_any(np.where(np.broadcast_to(r.ok, np.shape(p)), inside, np.nan))
         r.fill(T)
@@ -160,17 +234,15 @@ class Water(Substance):
 
     def sublime_pressure(self, T: np.ndarray) -> Result:
         r = Result.like(T)
-        r.flag(T > TT * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the triple-point temperature of water (273.16 K)",
-               T, see="boil")
-        r.flag(T < _SUB_T_MIN * (1 - LINE_TOL), OUT_OF_RANGE, "{} K is below the sublimation line's range (50 K)", T)
+        r.flag(T > TT * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_triple_t"], T, see="boil")
+        r.flag(T < _SUB_T_MIN * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_sublimation_t"], T)
         r.fill(ice_lines.sublimation_pressure(T))
         return r
 
     def sublime_temperature(self, p: np.ndarray) -> Result:
         r = Result.like(p)
-        r.flag(p > PT * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of water (611.657 Pa)",
-               p, see="boil")
-        r.flag(p < _SUB_P_MIN, OUT_OF_RANGE, _BELOW_SUBLIMATION, p)
+        r.flag(p > PT * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_triple_p"], p, see="boil")
+        r.flag(p < _SUB_P_MIN, OUT_OF_RANGE, MESSAGES["below_sublimation_p"], p)
         r.fill(ice_lines.sublimation_temperature(np.minimum(p, PT)))  # the inverse gives NaN past the end
         return r
 
@@ -179,12 +251,9 @@ class Water(Substance):
         """State codes (indices into _LABELS) from the boundary equations."""
         T, p = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float))
         r = Result(np.full(T.shape, -1.0))
-        r.flag(T > REGION5_T_MAX, OUT_OF_RANGE,
-               "{} K is above the highest temperature of the water formulations (2273.15 K)", T)
-        r.flag(p > _MELT_P_TOP, OUT_OF_RANGE,
-               _ABOVE_ICE_VII, p)
-        r.flag((p < _SUB_P_MIN) & (T < TT), OUT_OF_RANGE,
-               _BELOW_SUBLIMATION, p)
+        r.flag(T > REGION5_T_MAX, OUT_OF_RANGE, MESSAGES["above_formulations_t"], T)
+        r.flag(p > _MELT_P_TOP, OUT_OF_RANGE, MESSAGES["above_ice_vii"], p)
+        r.flag((p < _SUB_P_MIN) & (T < TT), OUT_OF_RANGE, MESSAGES["below_sublimation_p"], p)
         high = p >= PT
         # the solid is stable below one line: melting above the triple-point pressure (a
         # single-valued T(p) there), sublimation below it
@@ -199,7 +268,9 @@ class Water(Substance):
         # the liquid is stable below the boiling line; above the critical pressure below Tc
         t_boil = np.where(high, TC, -np.inf)
         sat = high & (p <= PC)
-        if sat.any():
+        if sat.all():
+            t_boil = if97_saturation.saturation_temperature(p)
+        elif sat.any():
             t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
         state = classify(T, p, t_solid=t_solid, solid=ice, t_boil=t_boil, sat=sat, high=high, pt=PT, tc=TC, pc=PC,
                          n_solids=len(SOLIDS))
@@ -215,20 +286,17 @@ class Water(Substance):
     def _unmodelled(self, r: Result, phase: np.ndarray, blank: np.ndarray) -> None:
         if (phase > SOLID).any():
             r.flag((phase > SOLID) & ~blank, NOT_AVAILABLE,
-                   lambda k: f"no volume formulation for {SOLIDS[k - SOLID]} (only ice Ih has one, IAPWS R10-06)",
-                   phase)
+                   lambda k: MESSAGES[f"no_volume_{SOLIDS[k - SOLID]}"], phase)
             r.flag((phase > SOLID) & blank, NOT_AVAILABLE,
-                   lambda k: f"the stable phase is {SOLIDS[k - SOLID]}, which has no volume formulation "
-                   "(only ice Ih has one, IAPWS R10-06)", phase)
+                   lambda k: MESSAGES[f"stable_without_volume_{SOLIDS[k - SOLID]}"], phase)
 
     def _liquid(self, t, q, sel, r: Result, fields) -> None:
-        """Region 1 (region 3 above 623.15 K); named as a phase, also metastable: superheated up to
+        """Region 1 (region 3 above REGION1_T_MAX); named as a phase, also metastable: superheated up to
         SUPERHEAT_MARGIN above the saturation temperature, supercooled down to SUPERCOOL_MARGIN below
         the melting temperature."""
         sub = Result(np.full(t.shape, np.nan))
-        sub.flag(q > P_MAX_LIQUID, OUT_OF_RANGE, "liquid water at {} Pa is above the formulation's range (210 MPa)", q)
-        sub.flag((t > REGION1_T_MAX) & (q > P_MAX_FLUID), OUT_OF_RANGE,
-                 "liquid water above 623.15 K is covered to 100 MPa only; got {} Pa", q)
+        sub.flag(q > P_MAX_LIQUID, OUT_OF_RANGE, MESSAGES["liquid_above_p"], q)
+        sub.flag((t > REGION1_T_MAX) & (q > P_MAX_FLUID), OUT_OF_RANGE, MESSAGES["hot_liquid_above_p"], q)
         warm = t >= TT
         p_sat = if97_saturation.saturation_pressure(np.clip(t, TT, TC))
         superheated = warm & (q < p_sat * (1 - LINE_TOL))
@@ -236,24 +304,18 @@ class Water(Substance):
             t_sat = np.full(t.shape, np.inf)
             t_sat[superheated] = if97_saturation.saturation_temperature(np.maximum(q[superheated], PT))
             sub.flag(superheated & ((t > t_sat + SUPERHEAT_MARGIN) | (t > REGION1_T_MAX)), OUT_OF_RANGE,
-                     lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is superheated by more than "
-                     f"{fmt(SUPERHEAT_MARGIN)} K, the limit of the metastable liquid (IF97 region 1, saturation at "
-                     f"{fmt(if97_saturation.saturation_temperature(max(qq, PT)))} K)", t, q)
+                     MESSAGES["superheated_liquid"], t, q, t_sat)
         cold = t < TT
-        sub.flag(cold & (q < PT), OUT_OF_RANGE, lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is "
-                 f"below the triple-point pressure ({fmt(PT)} Pa) as well as supercooled: outside the formulations",
-                 t, q)
+        sub.flag(cold & (q < PT), OUT_OF_RANGE, MESSAGES["supercooled_below_triple_p"], t, q)
         if cold.any():
             t_melt = np.full(t.shape, -np.inf)
             t_melt[cold], _ = ice_lines.melting_temperature_any(np.maximum(q[cold], PT))
             sub.flag(cold & ((t < t_melt - SUPERCOOL_MARGIN) | (t < _MELT_T_MIN * (1 - MELT_JOIN_TOL))), OUT_OF_RANGE,
-                     lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is supercooled by more than "
-                     f"{fmt(SUPERCOOL_MARGIN)} K below its melting temperature or below {fmt(_MELT_T_MIN)} K, the limit "
-                     "of the metastable liquid (IF97 region 1 extended)", t, q)
+                     MESSAGES["supercooled_liquid"], t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         low = ok & (t <= REGION1_T_MAX)
         if low.any():
-            self._put_props(fields, sel, low, if97.region1(t[low], q[low]))
+            self._put_props(fields, sel, low, if97.region1(_where(t, low), _where(q, low), fields.want))
         near = ok & (t > REGION1_T_MAX)
         if near.any():
             self._put_region3(fields, sel, near, t, q, "liquid", sub)
@@ -263,40 +325,34 @@ class Water(Substance):
         """Region 2 (region 3 above B23); named as a phase, also supersaturated above the vapour
         pressure, by IF97's metastable-vapour equation, to the 5 % equilibrium moisture line."""
         sub = Result(np.full(t.shape, np.nan))
-        sub.flag(t < REGION2_T_MIN, OUT_OF_RANGE,
-                 "water vapour below 200 K is outside the formulation (IF97 region 2 extended to 200 K); got {} K", t)
+        sub.flag(t < REGION2_T_MIN, OUT_OF_RANGE, MESSAGES["cold_vapour"], t)
         cold = t < TT
         p_line = np.where(cold, ice_lines.sublimation_pressure(np.clip(t, REGION2_T_MIN, TT)),
                           if97_saturation.saturation_pressure(np.clip(t, TT, TC)))
         above = q > p_line * (1 + LINE_TOL)
-        sub.flag(above & cold, OUT_OF_RANGE, lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is above its "
-                 "sublimation pressure: vapour supersaturated over ice is outside the formulations", t, q)
-        sub.flag(above & ~cold & (q > META_VAPOUR_P_MAX), OUT_OF_RANGE,
-                 lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is above its vapour pressure: "
-                 f"supersaturated vapour is covered to {fmt(META_VAPOUR_P_MAX)} Pa only (IF97's metastable-vapour "
-                 "equation)", t, q)
+        sub.flag(above & cold, OUT_OF_RANGE, MESSAGES["vapour_over_ice"], t, q)
+        sub.flag(above & ~cold & (q > META_VAPOUR_P_MAX), OUT_OF_RANGE, MESSAGES["supersaturated_above_p"], t, q)
         meta = above & ~cold & (q <= META_VAPOUR_P_MAX)
         meta_props = None
         if meta.any():
             tm, qm = t[meta], q[meta]
-            meta_props = if97.region2_metastable(tm, qm)
+            # the enthalpy decides how wet the state is, whatever the call wants
+            meta_props = if97.region2_metastable(tm, qm, None if fields.want is None else {*fields.want, "h"})
             t_sat = if97_saturation.saturation_temperature(qm)
-            h_liq, h_vap = if97.region1(t_sat, qm).h, if97.region2(t_sat, qm).h
+            h_liq, h_vap = if97.region1(t_sat, qm, ("h",)).h, if97.region2(t_sat, qm, ("h",)).h
             wet = np.zeros(t.shape, bool)
             wet[meta] = (meta_props.h - h_liq) / (h_vap - h_liq) < 1.0 - META_VAPOUR_MOISTURE
-            sub.flag(wet, OUT_OF_RANGE, lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is "
-                     f"supersaturated beyond the {fmt(100 * META_VAPOUR_MOISTURE)} % equilibrium moisture line, where "
-                     "IF97's metastable-vapour equation ends", t, q)
+            sub.flag(wet, OUT_OF_RANGE, MESSAGES["supersaturated_too_wet"], t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         if meta_props is not None:
             keep = ok[meta]
             if keep.any():
                 self._put_props(fields, sel, ok & meta, Props(*(np.asarray(f)[keep] for f in meta_props)))
             ok = ok & ~meta
-        above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, REGION3_T_MAX)))
+        above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~above_b23
         if two.any():
-            self._put_props(fields, sel, two, if97.region2(t[two], q[two]))
+            self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
         three = ok & above_b23
         if three.any():
             self._put_region3(fields, sel, three, t, q, "vapour", sub)
@@ -304,26 +360,25 @@ class Water(Substance):
 
     def _fluid(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
-        sub.flag(t > REGION5_T_MAX, OUT_OF_RANGE, "{} K is above the water formulations' range (2273.15 K)", t)
-        sub.flag((t > REGION2_T_MAX) & (q > P_MAX_REGION5), OUT_OF_RANGE,
-                 "above 1073.15 K water is covered to 50 MPa only (IF97 region 5); got {} Pa", q)
-        sub.flag(q > P_MAX_FLUID, OUT_OF_RANGE, "{} Pa is above the water formulations' range for fluid (100 MPa)", q)
+        sub.flag(t > REGION5_T_MAX, OUT_OF_RANGE, MESSAGES["fluid_hot"], t)
+        sub.flag((t > REGION2_T_MAX) & (q > P_MAX_REGION5), OUT_OF_RANGE, MESSAGES["fluid_region5_above_p"], q)
+        sub.flag(q > P_MAX_FLUID, OUT_OF_RANGE, MESSAGES["fluid_above_p"], q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
-        three = ok & (t <= REGION3_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, REGION3_T_MAX)))
+        three = ok & (t <= B23_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~three & (t <= REGION2_T_MAX)
         five = ok & (t > REGION2_T_MAX)
         if two.any():
-            self._put_props(fields, sel, two, if97.region2(t[two], q[two]))
+            self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
         if five.any():
-            self._put_props(fields, sel, five, if97.region5(t[five], q[five]))
+            self._put_props(fields, sel, five, if97.region5(_where(t, five), _where(q, five), fields.want))
         if three.any():
             self._put_region3(fields, sel, three, t, q, "liquid", sub)
         self._report(r, sel, sub)
 
     def _ice(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
-        sub.flag(t > TT * (1 + LINE_TOL), OUT_OF_RANGE, "ice Ih above 273.16 K is outside IAPWS R10-06; got {} K", t)
-        sub.flag(q > ICE_IH_P_MAX, OUT_OF_RANGE, "ice Ih above 210 MPa is outside IAPWS R10-06; got {} Pa", q)
+        sub.flag(t > ICE_IH_T_MAX * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["ice_hot"], t)
+        sub.flag(q > ICE_IH_P_MAX, OUT_OF_RANGE, MESSAGES["ice_above_p"], q)
         melt = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         melt &= q > PT
         if melt.any():
@@ -331,20 +386,20 @@ class Water(Substance):
             p_melt[melt] = ice_lines.melting_pressure(np.clip(t[melt], _MELT_T_MIN, TT), "Ih")
             # the ice Ih line leans back: above it in pressure the ice has melted
             sub.flag(melt & (t >= _MELT_T_MIN) & (q > p_melt * (1 + LINE_TOL)), OUT_OF_RANGE,
-                     lambda tt, qq: f"ice Ih at {fmt(tt)} K and {fmt(qq)} Pa is above its melting temperature", t, q)
+                     MESSAGES["ice_melted"], t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         if ok.any():
             self._put_props(fields, sel, ok, ice_ih.properties(t[ok], q[ok]))
         self._report(r, sel, sub)
 
     def _put_props(self, fields, sel, part, props: Props) -> None:
-        self._put(fields, sel, part, _molar(props)._asdict())
+        self._put(fields, sel, part, _molar(props, fields))
 
     def _put_region3(self, fields, sel, part, t, q, branch: str, sub: Result) -> None:
         rho = if97_region3.density(t[part], q[part], branch)
         missing = np.zeros(t.shape, bool)
         missing[part] = np.isnan(rho)
-        sub.flag(missing, OUT_OF_RANGE, "no " + branch + "-like density root of IF97 region 3 at {} K and {} Pa", t, q)
+        sub.flag(missing, OUT_OF_RANGE, MESSAGES[f"no_region3_root_{branch}"], t, q)
         good = part.copy()
         good[part] = ~np.isnan(rho)
         if good.any():
@@ -362,25 +417,29 @@ class Water(Substance):
 
 
 _MODELS = {
-    "boil": ("IAPWS-IF97 region 4 saturation equation", "273.16 K to 647.096 K", "IAPWS R7-97(2012), eqs. 30-31"),
+    "boil": ("IAPWS-IF97 region 4 saturation equation", _k(TT) + " to " + _k(TC), "IAPWS R7-97(2012), eqs. 30-31"),
     "melt": ("IAPWS R14-08 melting-pressure equations of ice Ih, III, V, VI, VII",
-             "251.165 K to 715 K, 611.657 Pa to 20.618 GPa", "IAPWS R14-08(2011), eqs. 1-5"),
-    "sublime": ("IAPWS R14-08 sublimation-pressure equation of ice Ih", "50 K to 273.16 K", "IAPWS R14-08(2011), eq. 6"),
-    "liquid": ("IAPWS-IF97 region 1 (region 3 above 623.15 K)",
-               "melting line to 647.096 K, vapour pressure to 100 MPa (region 1 extended to 210 MPa); named "
-               f"as a phase also metastable: superheated to {SUPERHEAT_MARGIN:g} K above saturation, supercooled "
-               f"to {SUPERCOOL_MARGIN:g} K below the melting line (region 1 extended, not below the triple-point "
-               "pressure)",
+             _k(_MELT_T_MIN) + " to " + _k(_MELT_T_MAX) + ", " + _pa(PT) + " to " + _gpa(_MELT_P_TOP),
+             "IAPWS R14-08(2011), eqs. 1-5"),
+    "sublime": ("IAPWS R14-08 sublimation-pressure equation of ice Ih", _k(_SUB_T_MIN) + " to " + _k(TT),
+                "IAPWS R14-08(2011), eq. 6"),
+    "liquid": ("IAPWS-IF97 region 1 (region 3 above " + _k(REGION1_T_MAX) + ")",
+               "melting line to " + _k(TC) + ", vapour pressure to " + _mpa(P_MAX_FLUID) + " (region 1 extended to "
+               + _mpa(P_MAX_LIQUID) + "); named as a phase also metastable: superheated to " + _k(SUPERHEAT_MARGIN)
+               + " above saturation, supercooled to " + _k(SUPERCOOL_MARGIN) + " below the melting line (region 1 "
+               "extended, not below the triple-point pressure)",
                "IAPWS R7-97(2012), sections 5 and 7"),
     "vapor": ("IAPWS-IF97 region 2 (region 3 between the B23 line and saturation); supersaturated vapour: "
               "IF97's metastable-vapour equation",
-              "200 K to 647.096 K up to the vapour or sublimation pressure (region 2 extended below 273.15 K); "
-              f"supersaturated above 273.16 K to the {100 * META_VAPOUR_MOISTURE:g} % equilibrium moisture line "
-              f"and {META_VAPOUR_P_MAX / 1e6:g} MPa",
+              _k(REGION2_T_MIN) + " to " + _k(TC) + " up to the vapour or sublimation pressure (region 2 extended "
+              "below " + _k(if97.T_MIN) + "); supersaturated above " + _k(TT) + " to the "
+              + fmt(100 * META_VAPOUR_MOISTURE) + " % equilibrium moisture line and " + _mpa(META_VAPOUR_P_MAX),
               "IAPWS R7-97(2012), sections 6 and 7 (metastable vapour: section 6.2)"),
-    "fluid": ("IAPWS-IF97 regions 2, 3 and 5", "647.096 K to 1073.15 K up to 100 MPa; to 2273.15 K up to 50 MPa",
+    "fluid": ("IAPWS-IF97 regions 2, 3 and 5", _k(TC) + " to " + _k(REGION2_T_MAX) + " up to " + _mpa(P_MAX_FLUID)
+              + "; to " + _k(REGION5_T_MAX) + " up to " + _mpa(P_MAX_REGION5),
               "IAPWS R7-97(2012), sections 6, 7 and 9"),
-    "solid": ("IAPWS R10-06 Gibbs function of ice Ih", "up to 273.16 K and 210 MPa, not above the melting line",
+    "solid": ("IAPWS R10-06 Gibbs function of ice Ih",
+              "up to " + _k(ICE_IH_T_MAX) + " and " + _mpa(ICE_IH_P_MAX) + ", not above the melting line",
               "IAPWS R10-06(2009)"),
     "chem_potential": ("molar Gibbs energy, IAPWS-95 reference state: u = 0 and s = 0 for the saturated "
                        "liquid at the triple point", "", "IAPWS R6-95(2018); IAPWS R7-97(2012); IAPWS R10-06(2009)"),
