@@ -156,7 +156,8 @@ def _profile_argument(profile: str | None) -> str:
     return str(path)
 
 
-def _office_script(office: Office, arguments: list[str], timeout: float = 300) -> subprocess.CompletedProcess:
+def run_office(office: Office, arguments: list[str], timeout: float = 300) -> subprocess.CompletedProcess:
+    """Run office.py with LibreOffice's Python (the pack's own environment variables left out)."""
     environment = {k: v for k, v in os.environ.items() if k not in ("PYTHONHOME", "PYTHONPATH", "VIRTUAL_ENV")}
     environment["CELLFUNCS_SOFFICE"] = office.soffice
     return subprocess.run([office.python, str(HERE / "office.py"), *arguments], capture_output=True, text=True,
@@ -175,7 +176,7 @@ def install(profile: str | None = None, soffice: str | None = None) -> str:
     where = _profile_argument(profile)
     with tempfile.TemporaryDirectory(prefix="cellfuncs-oxt-") as folder:
         oxt = build(Path(folder))
-        done = _office_script(office, ["install", where, str(oxt)])
+        done = run_office(office, ["install", where, str(oxt)])
     if done.returncode != 0:
         raise _failed(done, "installing the extension")
     return (f"cellfuncs {__version__} installed in LibreOffice {office.version} "
@@ -188,7 +189,7 @@ def install(profile: str | None = None, soffice: str | None = None) -> str:
 def uninstall(profile: str | None = None, soffice: str | None = None) -> str:
     office = find_office(soffice)
     where = _profile_argument(profile)
-    done = _office_script(office, ["remove", where, EXTENSION_ID])
+    done = run_office(office, ["remove", where, EXTENSION_ID])
     if done.returncode != 0:
         raise _failed(done, "removing the extension")
     return f"cellfuncs extension: {done.stdout.strip().splitlines()[-1]} ({where if profile else 'your profile'})"

@@ -72,6 +72,6 @@ def idl_text() -> str:
 
 
 def plain_call() -> re.Pattern[str]:
-    """A call of any pack function by its plain name (not already prefixed), case-insensitive."""
-    names = "|".join(sorted(FUNCTIONS, key=len, reverse=True))
+    """A call of any of the add-in's functions by its plain name (not already prefixed), case-insensitive."""
+    names = "|".join(sorted([*FUNCTIONS, REASON_FUNCTION], key=len, reverse=True))
     return re.compile(rf"(?<![\w.])({names})\s*\(", re.IGNORECASE)

@@ -2,6 +2,7 @@
 
     python3 office.py install  PROFILE EXTENSION.oxt
     python3 office.py remove   PROFILE IDENTIFIER
+    python3 office.py list     PROFILE
     python3 office.py recalc   PROFILE OUT.json WORKBOOK...
 
 PROFILE is a user-installation folder, or "-" for the user's own profile. The office is
@@ -110,6 +111,11 @@ def remove(office, identifier):
         print("not installed")
 
 
+def listing(office):
+    for e in office.extensions().getDeployedExtensions("user", None, _Environment()):
+        print(e.getIdentifier().Value)
+
+
 def _formula_cells(sheet):
     cursor = sheet.createCursor()
     cursor.gotoEndOfUsedArea(False)
@@ -163,6 +169,8 @@ def main(argv):
             install(office, rest[0])
         elif command == "remove":
             remove(office, rest[0])
+        elif command == "list":
+            listing(office)
         elif command == "recalc":
             recalc(office, rest[0], rest[1:])
         else:
