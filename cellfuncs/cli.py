@@ -1,4 +1,5 @@
-"""The ``cellfuncs`` command: evaluate formulas, list the functions, recalculate workbooks, set up Excel.
+"""The ``cellfuncs`` command: evaluate formulas, list the functions, recalculate workbooks, set up Excel
+and LibreOffice.
 
 Exit status: 0 clean; 1 an error value in a result; 2 a usage problem or a
 formula that does not parse (``eval`` still evaluates the others); 3 an internal failure.
@@ -68,6 +69,18 @@ def _parser() -> argparse.ArgumentParser:
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     setup.add_argument("--print-only", action="store_true", help="print the steps, change nothing")
+    office = commands.add_parser(
+        "libreoffice",
+        help="install or remove the LibreOffice Calc extension that makes the functions live there",
+        description="Build the Calc add-in extension from the pack's functions and install it into LibreOffice "
+        "(the user's profile, or --profile DIR), or remove it. LibreOffice's own Python runs the pack from this "
+        "environment.",
+        epilog=CAUTION,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    office.add_argument("action", choices=("install", "uninstall"))
+    office.add_argument("--profile", metavar="DIR", help="a LibreOffice user-profile folder (default: your own)")
+    office.add_argument("--soffice", metavar="PATH", help="the soffice program (default: the one on PATH)")
     return parser
 
 
@@ -191,6 +204,16 @@ def main(argv: Sequence[str] | None = None) -> int:
             from .excel_setup import run as excel_setup
 
             return excel_setup(args.print_only)
+        if args.command == "libreoffice":
+            from .hosts.libreoffice import extension
+
+            try:
+                run = extension.install if args.action == "install" else extension.uninstall
+                print(run(args.profile, args.soffice))
+                return 0
+            except extension.Setup as exc:
+                print(f"cellfuncs libreoffice: {exc}", file=sys.stderr)
+                return 2
         return _functions()
     except BrokenPipeError:  # the reader stopped early (| head): nothing more to say
         sys.stderr.close()
