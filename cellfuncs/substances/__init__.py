@@ -55,7 +55,8 @@ def lookup(name: str) -> Substance:
     key = " ".join(str(name).split()).lower()
     found = _catalogue()[0].get(key)
     if not found:
-        raise ModelError(BAD_ARGUMENT, f"unknown substance '{name}'; SUBSTANCES() lists the known names")
+        shown = str(name) if len(str(name)) <= 60 else str(name)[:60] + "..."  # a cell may hold any length
+        raise ModelError(BAD_ARGUMENT, f"unknown substance '{shown}'; SUBSTANCES() lists the known names")
     if len(found) > 1:
         which = ", ".join(sorted(s.name for s in found))
         raise ModelError(BAD_ARGUMENT, f"'{name}' fits several substances ({which}); give the name")
@@ -64,7 +65,8 @@ def lookup(name: str) -> Substance:
 
 def define(fields: Mapping[str, Any]) -> Substance:
     """A user-defined substance from field -> value or (value, unit); see general/definition.py."""
+    from .general.consistency import check
     from .general.definition import Definition
     from .general.model import GeneralSubstance
 
-    return GeneralSubstance(Definition.from_fields(fields))
+    return check(GeneralSubstance(Definition.from_fields(fields)))
