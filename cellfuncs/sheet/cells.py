@@ -324,6 +324,8 @@ def cell_value(value: Any) -> Any:
     if kind is str or kind is CellError:
         return value
     if kind is np.ndarray:
+        if value.dtype.kind in "iu":
+            value = value.astype(float)
         if value.dtype.kind == "f":
             finite = np.isfinite(value)
             if finite.all():

@@ -65,8 +65,8 @@ def lookup(name: str) -> Substance:
 
 def define(fields: Mapping[str, Any]) -> Substance:
     """A user-defined substance from field -> value or (value, unit); see general/definition.py."""
-    from .general.consistency import check
+    from .general.consistency import check, check_published
     from .general.definition import Definition
     from .general.model import GeneralSubstance
 
-    return check(GeneralSubstance(Definition.from_fields(fields)))
+    return check(GeneralSubstance(check_published(Definition.from_fields(fields))))

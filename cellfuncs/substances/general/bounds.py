@@ -67,6 +67,10 @@ MIN_TRIPLE_RATIO = 0.1
 # estimate; the others within 1.7): a larger factor is a unit slip (kPa, bar typed as Pa)
 TRIPLE_PRESSURE_FACTOR = 30.0
 
+# the solid's density over the liquid's at the triple point: water's ice 0.92 (it floats), the built-in
+# substances from 1.09 (hydrogen) to 1.37 (sulfur hexafluoride); further off is a slip in one of them
+SOLID_TO_LIQUID = (0.8, 1.6)
+
 # line coefficients (lines.py's forms), in K and Pa, or in the line's own p_unit and t_unit (Antoine)
 LINE_NUMBERS: dict[str, tuple[float, float]] = {
     "Tc": _T, "Tt": _T, "T0": _T, "T_min": _T, "T_max": _T,

@@ -12,7 +12,7 @@ line that passes is one the tables can invert.
 >>> from .model import GeneralSubstance
 >>> fields = {"name": "demo oil X", "molar_mass": 100.0, "critical_temperature": 600.0,
 ...           "critical_pressure": (3, "MPa"), "acentric_factor": 0.3}
->>> check(GeneralSubstance(definition.Definition.from_fields(fields))).name
+>>> check(GeneralSubstance(check_published(definition.Definition.from_fields(fields)))).name
 'demo oil X'
 """
 
@@ -28,9 +28,31 @@ from . import bounds
 from .bounds import FIELDS
 
 if TYPE_CHECKING:
+    from .definition import Definition
     from .model import GeneralSubstance
 
 _POINTS = 4097  # as many as the model's inverse tables (numerics.MonotoneInverse)
+
+
+_FLOOR = FIELDS["triple_point_pressure"].low  # no vapour pressure of a liquid is lower
+
+
+def check_published(d: "Definition") -> "Definition":
+    """``d`` when its published boiling line is usable where the model uses it, between the triple (or the
+    line's lowest) and the critical temperature: the model matches its continuation to the line's ends, so
+    this comes before the model is built."""
+    boil = d.lines.get("boil")
+    if boil is None:
+        return d
+    tc, tt = d.values["critical_temperature"], d.values.get("triple_point_temperature", 0.0)
+    lo, hi = max(boil["T_min"], tt), min(boil["T_max"], tc)
+    if lo >= hi:
+        _refuse(f"the published boiling line's range (boil.T_min to boil.T_max) does not overlap the liquid's, "
+                f"up to the critical temperature {fmt(tc)} K" + (f" from the triple point {fmt(tt)} K" if tt else ""))
+    with np.errstate(all="ignore"):
+        _monotone("the published boiling line", "boil.*", np.linspace(lo, hi, _POINTS),
+                  lambda T: line_pressure(boil, T), rising=True, floor=_FLOOR)
+    return d
 
 
 def check(sub: "GeneralSubstance") -> "GeneralSubstance":
@@ -38,14 +60,7 @@ def check(sub: "GeneralSubstance") -> "GeneralSubstance":
     with np.errstate(all="ignore"):
         _acentric(sub)
         boil = sub.definition.lines.get("boil")
-        floor = FIELDS["triple_point_pressure"].low  # no vapour pressure of a liquid is lower
-        if boil is not None:  # the published part alone first: its continuation is matched to its ends
-            lo, hi = sub._boil_range
-            if lo >= hi:
-                _refuse(f"the published boiling line's range (boil.T_min to boil.T_max) does not overlap the "
-                        f"liquid's, {fmt(sub.t_low)} K to {fmt(sub.tc)} K")
-            _monotone("the published boiling line", "boil.*", np.linspace(lo, hi, _POINTS),
-                      lambda T: line_pressure(boil, T), rising=True, floor=floor)
+        floor = _FLOOR
         u = np.linspace(1.0 / sub.tc, 1.0 / sub.t_low, _POINTS)  # the boiling table's nodes, in 1/T
         fields = "boil.*, " if boil is not None else ""
         _monotone("the boiling line over its whole extension (published part and its Lee-Kesler continuation "
@@ -53,6 +68,7 @@ def check(sub: "GeneralSubstance") -> "GeneralSubstance":
                   "normal_boiling_point, triple_point_pressure", (1.0 / u)[::-1],
                   lambda T: sub.boil_pressure(T).values, rising=True, floor=floor)
         _triple_pressure(sub)
+        _solid_density(sub)
         if sub._melt_range is not None and np.isfinite(sub._melt_slope if sub._melt_slope is not None else 0.0):
             _monotone("the melting line", "melt.* or enthalpy_of_fusion and solid_density",
                       np.linspace(*sub._melt_range, _POINTS), lambda T: sub.melt_pressure(T)[0].values, rising=None)
@@ -92,6 +108,19 @@ def _monotone(what: str, fields: str, T: np.ndarray, pressure, rising: bool | No
         i = int(np.argmax(wrong))
         _refuse(f"{what} is not monotone: it {'falls' if rising else 'rises'} from {fmt(p[i])} Pa at {fmt(T[i])} K to "
                 f"{fmt(p[i + 1])} Pa at {fmt(T[i + 1])} K; check {fields}")
+
+
+def _solid_density(sub: "GeneralSubstance") -> None:
+    """The solid's density near the liquid's at the triple point (the melting line's slope rests on both)."""
+    if not (sub.has_triple and np.isfinite(sub.v_solid)):
+        return
+    tt, pt = sub.triple
+    ratio = float(sub.liquid.volume(tt, pt, pt)) / sub.v_solid
+    low, high = bounds.SOLID_TO_LIQUID
+    if not low <= ratio <= high:
+        _refuse(f"field 'solid_density' is {fmt(ratio)} times the liquid's density at the triple point, outside "
+                f"{fmt(low)} to {fmt(high)} (real solids are a little denser than their liquid, ice a little less): "
+                "check solid_density and liquid_density")
 
 
 def _triple_pressure(sub: "GeneralSubstance") -> None:
