@@ -222,3 +222,19 @@ def test_the_excel_decoration_wraps_the_cell_path():
     assert excel("water", [[1.0, 2.0]], "atm", "degC")[0][0] == pytest.approx(99.974, abs=1e-3)
     assert excel("water", [[[1.0]]]).startswith("#VALUE! pressure has 3 dimensions")
     assert excel("water", [[1.0]], "furlong").startswith("#VALUE! p_unit")
+
+
+def test_nestings_beyond_numpy_dimensions_are_value_errors():
+    deep = 1e5
+    for _ in range(3000):  # deeper than Python's stack
+        deep = [deep]
+    assert is_error(BOIL_TEMP("water", deep), VALUE, "nests lists more than 32 deep")
+    assert is_error(BOIL_TEMP(deep, 1e5), VALUE, "nests lists more than 32 deep")
+    assert FUNCTIONS["BOIL_TEMP"].cell("water", deep).startswith("#VALUE! an argument nests lists")
+    assert is_error(BOIL_TEMP("water", np.full((1,) * 40, 1e5)), VALUE, "40 dimensions")
+    assert is_error(BOIL_TEMP("water", 1e5, np.full((1,) * 40, "Pa")), VALUE, "40 dimensions")
+    nested = (72.11,)
+    for _ in range(100000):
+        nested = (nested,)
+    assert is_error(BOIL_TEMP(with_(molar_mass=nested), 1e5), VALUE, "molar_mass", "must be a number")
+    assert np.shape(BOIL_TEMP("water", np.full((1,) * 32, 1e5))) == (1,) * 32  # numpy's own limit is kept

@@ -25,7 +25,7 @@ from hypothesis import strategies as st
 from cellfuncs.errors import CODES, CellError
 from cellfuncs.formula import SimpleContext, compute
 from cellfuncs.sheet import FUNCTIONS
-from cellfuncs.sheet.cells import as_array
+from cellfuncs.sheet.cells import CallError, as_array
 from cellfuncs.sheet.functions import SUBSTANCE_INFO
 from cellfuncs.substances.general.bounds import FIELDS
 from cellfuncs.substances.general.definition import LINES
@@ -68,6 +68,16 @@ def numpy_arrays(draw) -> np.ndarray:
 
 VALUES = st.recursive(st.one_of(SCALARS, numpy_arrays()),
                       lambda inner: st.lists(inner, max_size=3) | st.tuples(inner, inner), max_leaves=8)
+
+
+def _nested(depth: int, leaf=300.0) -> list:
+    for _ in range(depth):
+        leaf = [leaf]
+    return leaf
+
+
+# nestings deeper than numpy broadcasts (32 dimensions) or than Python's stack, and arrays of up to 64 dimensions
+DEEP = st.one_of(st.integers(30, 3000).map(_nested), st.integers(30, 64).map(lambda n: np.full((1,) * n, 300.0)))
 
 
 def is_cell_value(value) -> bool:
@@ -161,8 +171,14 @@ def _field_values(key: str):
     return st.lists(_field_value(key), max_size=3)
 
 
-_FRACTIONS = st.lists(st.floats(0.0, 1.0), min_size=24, max_size=24)  # drawn at once: fewer, faster draws
-_CHOICES = st.integers(0, 2**16 - 1)
+# the numbers of a definition drawn as one block of bytes (fractions of 0 to 1 in 16 bits, and 16 bits of
+# choices): one draw is far cheaper than thirty, and hypothesis still varies and shrinks each of them
+_BLOCK = st.binary(min_size=64, max_size=64)
+
+
+def _fractions_and_bits(block: bytes) -> tuple:
+    numbers = [int.from_bytes(block[i:i + 2], "big") for i in range(0, len(block), 2)]
+    return iter([n / 65535 for n in numbers[1:]]), numbers[0]
 
 
 def _spread(fraction: float, low: float, high: float, log: bool = False) -> float:
@@ -174,8 +190,7 @@ def _spread(fraction: float, low: float, high: float, log: bool = False) -> floa
 @st.composite
 def in_bounds_definitions(draw) -> dict:
     """A definition made from scratch inside the bounds, with lines that may or may not fit together."""
-    f = iter(draw(_FRACTIONS))
-    bits = draw(_CHOICES)
+    f, bits = _fractions_and_bits(draw(_BLOCK))
     has = lambda bit: bool(bits >> bit & 1)  # noqa: E731
     tc = _spread(next(f), 1.0, 2000.0, log=True)
     pc = _spread(next(f), 1e5, 1e8, log=True)
@@ -208,7 +223,6 @@ def in_bounds_definitions(draw) -> dict:
                        "boil.C": _spread(next(f), -100, 300), "boil.p_unit": ("Pa", "mmHg", "bar")[bits % 3],
                        "boil.t_unit": ("K", "degC")[bits % 2], "boil.T_min": low,
                        "boil.T_max": low + _spread(next(f), 0.01, 1.0) * (tc - low)})
-    f = iter(draw(_FRACTIONS))
     if tt and has(11):
         fields.update({"melt.form": "simon_glatzel", "melt.T0": tt, "melt.p0": _spread(next(f), 0.0, 1e6),
                        "melt.a": _spread(next(f), 1e6, 1e10, log=True), "melt.c": _spread(next(f), 1.0, 5.0),
@@ -239,12 +253,11 @@ def definitions(draw):
     form = draw(st.sampled_from(("mapping", "rows", "array")))
     if form == "mapping":
         return fields, scale
+    width = draw(st.integers(2, 4))  # field, value, unit, source
     rows = []
     for key, raw in fields.items():
         value, unit = raw if isinstance(raw, tuple) and len(raw) == 2 else (raw, None)
-        rows.append([key, str(value) if isinstance(value, list) else value, unit, "source"][:draw(st.integers(2, 4))])
-    width = max((len(r) for r in rows), default=2)
-    rows = [r + [None] * (width - len(r)) for r in rows]
+        rows.append([key, str(value) if isinstance(value, list) else value, unit, "source"][:width])
     return (_object_array([v for r in rows for v in r], (len(rows), width)) if form == "array" and rows else rows), scale
 
 
@@ -262,7 +275,7 @@ def substances(draw):
     if choice == "name":
         return draw(st.sampled_from(("water", *REAL, "WATER", "R-744"))), (647.096, 22.064e6)
     if choice == "hostile":
-        return draw(VALUES), (300.0, 1e5)
+        return draw(VALUES | DEEP), (300.0, 1e5)
     return draw(definitions())
 
 
@@ -305,7 +318,7 @@ def _argument(parameter: str):
         aimed = st.sampled_from((None, "molar_mass", "boil_model", "melt_range", "boil.n", "note_source"))
     arrays = st.lists(aimed, min_size=1, max_size=4).map(lambda items: _object_array(items, (len(items),)))
     grids = st.lists(aimed, min_size=4, max_size=4).map(lambda items: _object_array(items, (2, 2)))
-    return st.one_of(aimed, aimed, aimed, arrays, grids, VALUES)
+    return st.one_of(*[aimed] * 6, arrays, grids, VALUES, DEEP)  # hostile values mostly in the tests above
 
 
 def _finite_cell(value) -> bool:
@@ -338,7 +351,10 @@ def _engine_argument(value):
         pairs = [(k, v if isinstance(v, tuple) and len(v) == 2 else (v, None)) for k, v in value.items()]
         value = [[k, str(v) if isinstance(v, (list, tuple)) else v, u] for k, (v, u) in pairs]
     if isinstance(value, (list, np.ndarray)) or isinstance(value, tuple) and not isinstance(value, CellError):
-        array = as_array(list(value) if isinstance(value, tuple) else value)
+        try:
+            array = as_array(list(value) if isinstance(value, tuple) else value)
+        except CallError:  # nested beyond numpy's dimensions
+            return _SKIP
         if array.ndim > 2 or array.size == 0:
             return _SKIP  # the engine never holds these
         array = array.reshape((1, -1) if array.ndim < 2 else array.shape).astype(object)

@@ -9,6 +9,7 @@ the rest of an array.
 from __future__ import annotations
 
 import math
+import reprlib
 from functools import lru_cache
 from typing import Any, Mapping, NamedTuple
 
@@ -54,6 +55,11 @@ def model_call(fn, *args):
         raise CallError(_CODES[exc.problem.kind], exc.problem.reason) from None
 
 
+def shown(value: Any) -> str:
+    """A value as a message quotes it: cut short, whatever its length or nesting."""
+    return reprlib.repr(value)
+
+
 def _named(error: CellError, name: str) -> CellError:
     """An error value that came in as an argument: its code kept, its reason naming the argument."""
     return CellError(error.code, f"{name}: {error.reason or error.code}")
@@ -65,9 +71,8 @@ def substance(value: Any) -> Substance:
         raise CallError(*_named(value, "substance"))
     if isinstance(value, Mapping):
         return _defined(_hashable(tuple((k, _pair(k, v)) for k, v in value.items())))
-    if isinstance(value, (list, tuple)):
+    if isinstance(value, (list, tuple, np.ndarray)):
         value = as_array(value)
-    if isinstance(value, np.ndarray):
         if value.ndim == 2 and value.shape[1] >= 2 and value.shape[0] >= 2:
             rows = tuple((row[0], (_frozen(row[1]), row[2] if len(row) > 2 else None)) for row in value.tolist()
                          if row[0] is not None and str(row[0]).strip())
@@ -109,7 +114,7 @@ def _frozen(value: Any) -> Any:
 def _hashable(rows: tuple) -> tuple:
     try:
         hash(rows)
-    except TypeError:
+    except (TypeError, RecursionError):  # a list, a dict, or tuples nested past Python's stack
         raise CallError(VALUE, "substance definition: every field and value must be a number, a text or a "
                                "list of numbers") from None
     return rows
@@ -127,7 +132,8 @@ def _defined(rows: tuple) -> Substance:
 
 def text(value: Any, name: str, default: str | None = None) -> str | None:
     """A single text argument (unit, boundary, solid); blank gives ``default``."""
-    if isinstance(value, np.ndarray):
+    if isinstance(value, (list, tuple, np.ndarray)) and not isinstance(value, CellError):
+        value = as_array(value)
         if value.size != 1:
             raise CallError(VALUE, f"{name} must be a single text, not a range")
         value = value.flat[0]
@@ -136,7 +142,7 @@ def text(value: Any, name: str, default: str | None = None) -> str | None:
     if value is None or (isinstance(value, str) and not value.strip()):
         return default
     if not isinstance(value, str):
-        raise CallError(VALUE, f"{name} must be text; got {value!r}")
+        raise CallError(VALUE, f"{name} must be text; got {shown(value)}")
     return value.strip()
 
 
@@ -165,11 +171,19 @@ def _element(value: Any) -> np.ndarray:
     return array
 
 
-def as_array(value: Any) -> np.ndarray:
+MAX_DIMENSIONS = 32  # numpy broadcasts at most 32 dimensions
+
+
+def as_array(value: Any, depth: int = 0) -> np.ndarray:
+    """An argument as a numpy array: nested lists become an object array (a ragged list: one element each)."""
     if isinstance(value, np.ndarray):
+        if value.ndim > MAX_DIMENSIONS:
+            raise CallError(VALUE, f"an argument has {value.ndim} dimensions; at most {MAX_DIMENSIONS} are taken")
         return value
     if isinstance(value, (list, tuple)) and not isinstance(value, CellError):
-        parts = [as_array(item) for item in value]
+        if depth >= MAX_DIMENSIONS:  # checked while descending: a deeper nesting would exhaust the stack
+            raise CallError(VALUE, f"an argument nests lists more than {MAX_DIMENSIONS} deep")
+        parts = [as_array(item, depth + 1) for item in value]
         shapes = {part.shape for part in parts}
         if len(shapes) > 1:  # ragged nesting: each item is one (bad) element
             parts, shapes = [_element(item) for item in value], {()}
@@ -209,7 +223,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
             elif item is None or (isinstance(item, str) and not item.strip()):
                 bad[index] = CellError(VALUE, f"{name} is blank")
             else:
-                bad[index] = CellError(VALUE, f"{name} must be a number; got {item!r}")
+                bad[index] = CellError(VALUE, f"{name} must be a number; got {shown(item)}")
     si = unit_.to_si(numbers)
     with np.errstate(invalid="ignore"):
         nonfinite = ~np.isfinite(numbers) & (np.equal(bad, None) if bad is not None else True)
@@ -230,7 +244,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
 
 
 def integer_count(value: Any, name: str, low: int, high: int) -> int:
-    if isinstance(value, np.ndarray) and value.size == 1:
+    if isinstance(value, np.ndarray) and as_array(value).size == 1:
         value = value.flat[0]
     if isinstance(value, CellError):
         raise CallError(*_named(value, name))
@@ -254,7 +268,7 @@ def phases(value: Any, name: str, sub: Substance) -> Arg:
             if isinstance(item, CellError):
                 raise CallError(*_named(item, name))
             if item is not None and not isinstance(item, str):
-                raise CallError(VALUE, f"{name} must be a phase word; got {item!r}")
+                raise CallError(VALUE, f"{name} must be a phase word; got {shown(item)}")
             codes[index] = model_call(sub.phase_code, item)
         except CallError as exc:
             if bad is None:

@@ -110,7 +110,10 @@ def cell_call(call: Callable[..., Any]) -> Callable[..., Any]:
 
     @functools.wraps(call)
     def cell(*args: Any) -> Any:
-        arrays = [as_array(a) if isinstance(a, (list, tuple)) and not isinstance(a, CellError) else a for a in args]
+        try:
+            arrays = [as_array(a) if isinstance(a, (list, tuple)) and not isinstance(a, CellError) else a for a in args]
+        except CallError as exc:
+            return str(exc.error)
         for position, a in enumerate(arrays):
             if isinstance(a, np.ndarray) and a.ndim > 2:
                 name = names[position] if position < len(names) else f"argument {position + 1}"

@@ -15,6 +15,8 @@ so SUBSTANCE_INFO of a built-in substance can be pasted back as a definition.
 from __future__ import annotations
 
 import math
+import numbers
+import reprlib
 import tomllib
 from dataclasses import dataclass, field
 from functools import lru_cache
@@ -63,8 +65,10 @@ class Definition:
         """
         d = cls(name="")
         for raw_key, raw in fields.items():
+            if not isinstance(raw_key, str):
+                raise ModelError(BAD_ARGUMENT, f"unknown field {_shown(raw_key)} in the substance definition")
             # field names are case-insensitive; a line's coefficient names (after the dot) are not
-            head, dot, tail = str(raw_key).strip().partition(".")
+            head, dot, tail = raw_key.strip().partition(".")
             key = head.lower().replace(" ", "_") + dot + tail
             value, unit = _value_and_unit(key, raw)
             if key in TEXTS:
@@ -99,7 +103,7 @@ class Definition:
 
 def _shown(value: Any, limit: int = 40) -> str:
     """A value as a message quotes it, cut short: a definition cell may hold a text of any length."""
-    text = f"'{value}'" if isinstance(value, str) else repr(value)
+    text = f"'{value}'" if isinstance(value, str) else reprlib.repr(value)  # any nesting
     return text if len(text) <= limit else text[:limit] + "..."
 
 
@@ -112,9 +116,11 @@ def _value_and_unit(key: str, raw: Any) -> tuple[Any, Any]:
     raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a value or a (value, unit) pair; got {len(raw)} items")
 
 
-def _text(key: str, value: Any, limit_key: str | None = None) -> str:
+def _text(key: str, value: Any) -> str:
+    if value is not None and not isinstance(value, (str, numbers.Real)):
+        raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a text; got {_shown(value)}")
     text = "" if value is None else str(value).strip()
-    limit = bounds.TEXTS[limit_key or key.split(".")[-1]]
+    limit = bounds.TEXTS[key.split(".")[-1]]
     if len(text) > limit:
         raise ModelError(BAD_ARGUMENT, f"field '{key}' is {len(text)} characters long; at most {limit} are taken")
     return text
@@ -131,15 +137,19 @@ def _set_text(d: Definition, key: str, value: Any) -> None:
 
 def _finite(key: str, value: Any) -> float:
     """The number a field holds (a number, or a text of one); raises ModelError naming the field."""
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
+    wrong = ModelError(BAD_ARGUMENT, f"field '{key}' must be a number; got {_shown(value)}")
+    if isinstance(value, str):
         try:
-            value = float(value.strip() if isinstance(value, str) else str(value))
-        except (ValueError, OverflowError):
-            raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a number; got {_shown(value)}") from None
-    try:
-        number = float(value)
-    except OverflowError:  # an integer beyond a double's range
-        number = float("inf")
+            number = float(value.strip())
+        except ValueError:
+            raise wrong from None
+    elif isinstance(value, numbers.Real) and not isinstance(value, bool):  # numpy numbers too, not its bool_
+        try:
+            number = float(value)
+        except OverflowError:  # an integer beyond a double's range
+            number = math.inf
+    else:
+        raise wrong
     if not math.isfinite(number):
         raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a finite number")
     return number
