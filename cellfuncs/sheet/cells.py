@@ -349,12 +349,22 @@ def cell_value(value: Any) -> Any:
                 out[index] = _not_finite(value[index])
             return out
         if value.dtype.kind in "OU":
-            out = value.astype(object)
-            for index, item in np.ndenumerate(out):
-                if type(item) is not str and type(item) is not CellError:
-                    out[index] = _scalar_value(item)
+            out = value if value.dtype == object else value.astype(object)
+            kinds = _TYPE_OF(out)  # the elements' types, in one pass: texts and errors pass as they are
+            floats = kinds == float
+            odd = ~(floats | (kinds == str) | (kinds == CellError))
+            bad = np.zeros(out.shape, bool)
+            if floats.any():
+                bad[floats] = ~np.isfinite(out[floats].astype(float))
+            if bad.any() or odd.any():
+                out = out.copy() if out is value else out
+                for index in indices(bad | odd):
+                    out[index] = _scalar_value(out[index])
             return out
     return _scalar_value(value)
+
+
+_TYPE_OF = np.frompyfunc(type, 1, 1)
 
 
 def _scalar_value(value: Any) -> Any:
