@@ -57,9 +57,12 @@ def _object_array(items: list, shape: tuple[int, ...]) -> np.ndarray:
     return array.reshape(shape)
 
 
+_SHAPES = st.sampled_from([(), (0,), (1,), (3,), (1, 1), (2, 2), (1, 3), (3, 1), (2, 1, 2)])
+
+
 @st.composite
 def numpy_arrays(draw) -> np.ndarray:
-    shape = draw(st.sampled_from([(), (0,), (1,), (3,), (1, 1), (2, 2), (1, 3), (3, 1), (2, 1, 2)]))
+    shape = draw(_SHAPES)
     size = int(np.prod(shape))
     if draw(st.booleans()):
         return np.array(draw(st.lists(FLOATS, min_size=size, max_size=size)), dtype=float).reshape(shape)
@@ -237,10 +240,10 @@ def in_bounds_definitions(draw) -> dict:
 @st.composite
 def definitions(draw):
     """(a user-defined substance argument, its critical temperature and pressure for aiming the states)."""
-    fields = dict(draw(st.one_of(in_bounds_definitions(), st.sampled_from(REAL).map(DEFINITIONS.get))))
+    fields = dict(draw(_BASES))
     for _ in range(draw(st.integers(0, 3))):
-        key = draw(st.sampled_from(FIELD_NAMES))
-        action = draw(st.sampled_from(("drop", "value", "pair", "tuple")))
+        key = draw(_KEYS)
+        action = draw(_ACTIONS)
         if action == "drop":
             fields.pop(key, None)
         elif action == "value":
@@ -250,7 +253,7 @@ def definitions(draw):
         else:
             fields[key] = tuple(draw(_field_values(key)))
     scale = _scale(fields)
-    form = draw(st.sampled_from(("mapping", "rows", "array")))
+    form = draw(_FORMS)
     if form == "mapping":
         return fields, scale
     width = draw(st.integers(2, 4))  # field, value, unit, source
@@ -261,6 +264,16 @@ def definitions(draw):
     return (_object_array([v for r in rows for v in r], (len(rows), width)) if form == "array" and rows else rows), scale
 
 
+# strategies built once: hypothesis validates each new strategy object, which costs more than the draw
+_BASES = st.one_of(in_bounds_definitions(), st.sampled_from(REAL).map(DEFINITIONS.get))
+_KEYS = st.sampled_from(FIELD_NAMES)
+_ACTIONS = st.sampled_from(("drop", "value", "pair", "tuple"))
+_FORMS = st.sampled_from(("mapping", "rows", "array"))
+_SUBSTANCE_KINDS = st.sampled_from(("name", "definition", "definition", "hostile"))
+_NAMES = st.sampled_from(("water", *REAL, "WATER", "R-744"))
+_HOSTILE_SUBSTANCES = VALUES | DEEP
+
+
 def _scale(fields: dict) -> tuple[float, float]:
     def number(key, default):
         raw = fields.get(key, default)
@@ -269,14 +282,17 @@ def _scale(fields: dict) -> tuple[float, float]:
     return number("critical_temperature", 300.0), number("critical_pressure", 5e6)
 
 
+_DEFINITIONS = definitions()
+
+
 @st.composite
 def substances(draw):
-    choice = draw(st.sampled_from(("name", "definition", "definition", "hostile")))
+    choice = draw(_SUBSTANCE_KINDS)
     if choice == "name":
-        return draw(st.sampled_from(("water", *REAL, "WATER", "R-744"))), (647.096, 22.064e6)
+        return draw(_NAMES), (647.096, 22.064e6)
     if choice == "hostile":
-        return draw(VALUES | DEEP), (300.0, 1e5)
-    return draw(definitions())
+        return draw(_HOSTILE_SUBSTANCES), (300.0, 1e5)
+    return draw(_DEFINITIONS)
 
 
 class Scaled(NamedTuple):
@@ -376,6 +392,7 @@ def _engine_argument(value):
 
 
 _SKIP = object()
+_ARITIES = st.sampled_from(("all", "all", "all", "fewer", "more"))
 
 
 @pytest.mark.parametrize("name", sorted(FUNCTIONS))
@@ -388,7 +405,7 @@ def test_every_path_answers_with_finite_cell_values(name, data):
     substance, scale = data.draw(substances(), label="substance")
     args = [substance] + [_resolve(data.draw(_argument(p), label=p), scale) for p in parameters[1:]] if parameters \
         else []
-    arity = data.draw(st.sampled_from(("all", "all", "all", "fewer", "more")), label="arity")
+    arity = data.draw(_ARITIES, label="arity")
     if arity == "fewer":
         args = args[: data.draw(st.integers(0, max(len(args) - 1, 0)))]
     elif arity == "more":

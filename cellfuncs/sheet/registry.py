@@ -133,7 +133,7 @@ def cell_call(call: Callable[..., Any]) -> Callable[..., Any]:
     return cell
 
 
-def _for_excel(call: Callable[..., Any]) -> Callable[..., Any]:  # pragma: no cover - Excel only
+def _for_excel(call: Callable[..., Any]) -> Callable[..., Any]:
     """xlwings' decorators over the cell path: a category, the docstring and one line per argument."""
     import xlwings as xw
 
