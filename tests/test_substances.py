@@ -606,8 +606,8 @@ def test_the_python_api_takes_the_definition_as_a_dict():
     assert np.array_equal(mine.boil_temperature(p).values, built_in.boil_temperature(p).values, equal_nan=True)
     assert np.array_equal(mine.sublime_temperature(p / 10).values, built_in.sublime_temperature(p / 10).values,
                           equal_nan=True)
-    # the sheet takes the same mapping, lists of coefficients included
-    mapping = {"name": "my gas", "molar_mass": 0.0440098, "critical_temperature": 304.1282,
+    # the sheet takes the same mapping, lists of coefficients included (a molar mass without a unit is g/mol)
+    mapping = {"name": "my gas", "molar_mass": 44.0098, "critical_temperature": 304.1282,
                "critical_pressure": 7.3773e6, "acentric_factor": 0.225, "triple_point_temperature": 216.592,
                "boil.form": "ancillary", "boil.Tc": 304.1282, "boil.pc": 7.3773e6,
                "boil.n": [-7.0602087, 1.9391218, -1.6463597, -3.2995634], "boil.t": [1.0, 1.5, 2.0, 4.0],

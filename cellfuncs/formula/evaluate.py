@@ -16,7 +16,7 @@ from typing import Any, Callable, Mapping, Protocol
 
 import numpy as np
 
-from ..errors import DIV0, NAME, NUM, REF, VALUE, CellError
+from ..errors import DIV0, NAME, NUM, REF, VALUE, CellError, internal_error, strict
 from .arrays import Value, as_value, object_array
 from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary
 from .operators import BINARY, UNARY
@@ -124,8 +124,10 @@ def _call(node: Call, context: Context) -> Value:
         args = [evaluate(a, context) for a in node.args]
         try:
             result = fn(*args)
-        except Exception as exc:  # a cell shows the failure instead of stopping the recalculation
-            return CellError(VALUE, f"{node.name}: {exc}")
+        except Exception as exc:  # a bug: the cell shows it instead of stopping the recalculation
+            if strict():
+                raise
+            return internal_error(exc, node.name)
         return as_value(result)
     count = len(node.args)
     if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):

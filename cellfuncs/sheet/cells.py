@@ -9,6 +9,7 @@ the rest of an array.
 from __future__ import annotations
 
 import math
+import reprlib
 from functools import lru_cache
 from typing import Any, Mapping, NamedTuple
 
@@ -54,6 +55,11 @@ def model_call(fn, *args):
         raise CallError(_CODES[exc.problem.kind], exc.problem.reason) from None
 
 
+def shown(value: Any) -> str:
+    """A value as a message quotes it: cut short, whatever its length or nesting."""
+    return reprlib.repr(value)
+
+
 def _named(error: CellError, name: str) -> CellError:
     """An error value that came in as an argument: its code kept, its reason naming the argument."""
     return CellError(error.code, f"{name}: {error.reason or error.code}")
@@ -64,15 +70,13 @@ def substance(value: Any) -> Substance:
     if isinstance(value, CellError):
         raise CallError(*_named(value, "substance"))
     if isinstance(value, Mapping):
-        return _defined(tuple((k, (_frozen(v[0]), v[1]) if isinstance(v, tuple) else (_frozen(v), None))
-                              for k, v in value.items()))
-    if isinstance(value, (list, tuple)):
-        value = _as_array(value)
-    if isinstance(value, np.ndarray):
+        return _defined(_hashable(tuple((k, _pair(k, v)) for k, v in value.items())))
+    if isinstance(value, (list, tuple, np.ndarray)):
+        value = as_array(value)
         if value.ndim == 2 and value.shape[1] >= 2 and value.shape[0] >= 2:
-            rows = tuple((row[0], (row[1], row[2] if len(row) > 2 else None)) for row in value.tolist()
+            rows = tuple((row[0], (_frozen(row[1]), row[2] if len(row) > 2 else None)) for row in value.tolist()
                          if row[0] is not None and str(row[0]).strip())
-            return _defined(rows)
+            return _defined(_hashable(rows))
         if value.size != 1:
             raise CallError(VALUE, "substance must be a name, or a definition range of (field, value[, unit]) rows")
         value = value.flat[0]
@@ -81,23 +85,55 @@ def substance(value: Any) -> Substance:
     return model_call(lookup, value)
 
 
+def _pair(key: Any, value: Any) -> tuple[Any, Any]:
+    """A mapping's value as (value, unit): given as a pair, a one-item tuple (no unit) or a bare value."""
+    if isinstance(value, tuple) and not isinstance(value, CellError):
+        if len(value) not in (1, 2):
+            raise CallError(VALUE, f"substance definition: field '{str(key)[:40]}' must be a value or a (value, unit) "
+                                   f"pair; got {len(value)} items")
+        return _frozen(value[0]), value[1] if len(value) == 2 else None
+    return _frozen(value), None
+
+
 def _frozen(value: Any) -> Any:
-    """A line's list of coefficients as a tuple: the definition cache needs hashable rows."""
-    return tuple(np.ravel(value).tolist()) if isinstance(value, (list, np.ndarray)) else value
+    """A line's list of coefficients as a flat tuple: the definition cache needs hashable rows."""
+    if not isinstance(value, (list, np.ndarray)):
+        return value
+    flat, pending = [], [value]
+    while pending:  # nested lists without recursion: a definition cell may hold any nesting
+        item = pending.pop()
+        if isinstance(item, np.ndarray):
+            item = item.tolist() if item.ndim else item.item()
+        if isinstance(item, list):
+            pending.extend(reversed(item))
+        else:
+            flat.append(item)
+    return tuple(flat)
+
+
+def _hashable(rows: tuple) -> tuple:
+    try:
+        hash(rows)
+    except (TypeError, RecursionError):  # a list, a dict, or tuples nested past Python's stack
+        raise CallError(VALUE, "substance definition: every field and value must be a number, a text or a "
+                               "list of numbers") from None
+    return rows
 
 
 @lru_cache(maxsize=64)
 def _defined(rows: tuple) -> Substance:
     # a sheet passes the same definition range on every call: build its model once
-    for _, (value, unit) in rows:
-        if isinstance(value, CellError):
-            raise CallError(value.code, f"substance definition: {value.reason or value.code}")
+    for _, pair in rows:
+        for value in pair:
+            if isinstance(value, CellError):
+                raise CallError(value.code, f"substance definition: {value.reason or value.code}")
     return model_call(define, dict(rows))
 
 
 def text(value: Any, name: str, default: str | None = None) -> str | None:
     """A single text argument (unit, boundary, solid); blank gives ``default``."""
-    if isinstance(value, np.ndarray):
+    if isinstance(value, (list, tuple, np.ndarray)) and not isinstance(value, CellError):
+        value = as_array(value)
         if value.size != 1:
             raise CallError(VALUE, f"{name} must be a single text, not a range")
         value = value.flat[0]
@@ -106,7 +142,7 @@ def text(value: Any, name: str, default: str | None = None) -> str | None:
     if value is None or (isinstance(value, str) and not value.strip()):
         return default
     if not isinstance(value, str):
-        raise CallError(VALUE, f"{name} must be text; got {value!r}")
+        raise CallError(VALUE, f"{name} must be text; got {shown(value)}")
     return value.strip()
 
 
@@ -135,11 +171,19 @@ def _element(value: Any) -> np.ndarray:
     return array
 
 
-def _as_array(value: Any) -> np.ndarray:
+MAX_DIMENSIONS = 32  # numpy broadcasts at most 32 dimensions
+
+
+def as_array(value: Any, depth: int = 0) -> np.ndarray:
+    """An argument as a numpy array: nested lists become an object array (a ragged list: one element each)."""
     if isinstance(value, np.ndarray):
+        if value.ndim > MAX_DIMENSIONS:
+            raise CallError(VALUE, f"an argument has {value.ndim} dimensions; at most {MAX_DIMENSIONS} are taken")
         return value
     if isinstance(value, (list, tuple)) and not isinstance(value, CellError):
-        parts = [_as_array(item) for item in value]
+        if depth >= MAX_DIMENSIONS:  # checked while descending: a deeper nesting would exhaust the stack
+            raise CallError(VALUE, f"an argument nests lists more than {MAX_DIMENSIONS} deep")
+        parts = [as_array(item, depth + 1) for item in value]
         shapes = {part.shape for part in parts}
         if len(shapes) > 1:  # ragged nesting: each item is one (bad) element
             parts, shapes = [_element(item) for item in value], {()}
@@ -162,7 +206,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
         value = _float(value)
         if math.isfinite(value) and (not absolute or unit_.to_si(value) > 0):
             return Arg(np.array(unit_.to_si(value)), None)
-    array = _as_array(value)
+    array = as_array(value)
     if array.dtype.kind in "fiu":
         numbers = array.astype(float)
         bad = None
@@ -179,7 +223,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
             elif item is None or (isinstance(item, str) and not item.strip()):
                 bad[index] = CellError(VALUE, f"{name} is blank")
             else:
-                bad[index] = CellError(VALUE, f"{name} must be a number; got {item!r}")
+                bad[index] = CellError(VALUE, f"{name} must be a number; got {shown(item)}")
     si = unit_.to_si(numbers)
     with np.errstate(invalid="ignore"):
         nonfinite = ~np.isfinite(numbers) & (np.equal(bad, None) if bad is not None else True)
@@ -200,7 +244,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
 
 
 def integer_count(value: Any, name: str, low: int, high: int) -> int:
-    if isinstance(value, np.ndarray) and value.size == 1:
+    if isinstance(value, np.ndarray) and as_array(value).size == 1:
         value = value.flat[0]
     if isinstance(value, CellError):
         raise CallError(*_named(value, name))
@@ -216,7 +260,7 @@ def phases(value: Any, name: str, sub: Substance) -> Arg:
     """Phase words to the substance's phase codes, element by element (blank = stable phase)."""
     if isinstance(value, (str, type(None))):
         return Arg(np.array(model_call(sub.phase_code, value)), None)
-    array = _as_array(value)
+    array = as_array(value)
     codes = np.zeros(array.shape, dtype=int)
     bad = None
     for index, item in np.ndenumerate(array):
@@ -224,7 +268,7 @@ def phases(value: Any, name: str, sub: Substance) -> Arg:
             if isinstance(item, CellError):
                 raise CallError(*_named(item, name))
             if item is not None and not isinstance(item, str):
-                raise CallError(VALUE, f"{name} must be a phase word; got {item!r}")
+                raise CallError(VALUE, f"{name} must be a phase word; got {shown(item)}")
             codes[index] = model_call(sub.phase_code, item)
         except CallError as exc:
             if bad is None:
@@ -277,6 +321,65 @@ def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: s
         value = out[()]
         return value if isinstance(value, (str, CellError)) else float(value)
     return out
+
+
+def cell_value(value: Any) -> Any:
+    """A sheet function's result in the cell contract: a float, a text, a CellError, or an array of them.
+
+    A number that is not finite becomes #NUM! with the reason, so no cell ever shows nan or inf;
+    integers and numpy numbers become floats. Any other value is a bug in the pack (TypeError).
+
+    >>> cell_value(float("inf"))
+    CellError(code='#NUM!', reason='the result is too large for a number (it overflows)')
+    """
+    kind = type(value)
+    if kind is float:
+        return value if math.isfinite(value) else _not_finite(value)
+    if kind is str or kind is CellError:
+        return value
+    if kind is np.ndarray:
+        if value.dtype.kind in "iu":
+            value = value.astype(float)
+        if value.dtype.kind == "f":
+            finite = np.isfinite(value)
+            if finite.all():
+                return value
+            out = value.astype(object)
+            for index in indices(~finite):
+                out[index] = _not_finite(value[index])
+            return out
+        if value.dtype.kind in "OU":
+            out = value if value.dtype == object else value.astype(object)
+            kinds = _TYPE_OF(out)  # the elements' types, in one pass: texts and errors pass as they are
+            floats = kinds == float
+            odd = ~(floats | (kinds == str) | (kinds == CellError))
+            bad = np.zeros(out.shape, bool)
+            if floats.any():
+                bad[floats] = ~np.isfinite(out[floats].astype(float))
+            if bad.any() or odd.any():
+                out = out.copy() if out is value else out
+                for index in indices(bad | odd):
+                    out[index] = _scalar_value(out[index])
+            return out
+    return _scalar_value(value)
+
+
+_TYPE_OF = np.frompyfunc(type, 1, 1)
+
+
+def _scalar_value(value: Any) -> Any:
+    if isinstance(value, (str, CellError)):
+        return value
+    if isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, (bool, np.bool_)):
+        number = _float(value)
+        return number if math.isfinite(number) else _not_finite(number)
+    raise TypeError(f"a sheet function returned a {type(value).__name__}, not a cell value")
+
+
+def _not_finite(number: float) -> CellError:
+    if number != number:
+        return CellError(NUM, "the result is not a number: the model gives none for this state")
+    return CellError(NUM, "the result is too large for a number (it overflows)")
 
 
 def _first(errors: np.ndarray | None, more: np.ndarray) -> np.ndarray:

@@ -15,8 +15,8 @@ from typing import Any, Callable, NamedTuple
 
 import numpy as np
 
-from ..errors import VALUE, CellError
-from .cells import CallError
+from ..errors import CALC, VALUE, CellError, internal_error, strict
+from .cells import CallError, as_array, cell_value
 
 CATEGORY = "cellfuncs"
 
@@ -27,6 +27,7 @@ class SheetFunction(NamedTuple):
     signature: str
     summary: str
     arguments: dict[str, str]
+    cell: Callable[..., Any]  # the cell path (xlwings): 2-D lists in and out, error values as text
 
 
 FUNCTIONS: dict[str, SheetFunction] = {}
@@ -48,46 +49,96 @@ def _argument_docs(doc: str) -> dict[str, str]:
     return docs
 
 
+def _arity_error(name: str, signature: inspect.Signature, args: tuple, kwargs: dict) -> CellError | None:
+    """The error for a call whose arguments do not fit the signature, or None when they fit."""
+    try:
+        signature.bind(*args, **kwargs)
+    except TypeError as exc:
+        params = list(signature.parameters.values())
+        required = sum(p.default is inspect.Parameter.empty for p in params)
+        wanted = str(required) if required == len(params) else f"{required} to {len(params)}"
+        names = ", ".join(p.name if p.default is inspect.Parameter.empty else f"[{p.name}]" for p in params)
+        return CellError(VALUE, f"{name} takes {wanted} argument{'s' * (wanted != '1')} ({names}); "
+                                f"got {len(args) + len(kwargs)}" + (f" ({exc})" if kwargs else ""))
+    return None
+
+
 def sheet_function(fn: Callable[..., Any]) -> Callable[..., Any]:
-    """Register ``fn`` as a sheet function; failures come back as error values, never exceptions."""
+    """Register ``fn`` as a sheet function; failures come back as error values, never exceptions.
+
+    A result is a cell value (cells.cell_value): a number that is not finite becomes #NUM!. An
+    unexpected exception is a bug: ``#VALUE! internal error: ...``, or raised in strict mode.
+    """
+    signature_ = inspect.signature(fn)
 
     @functools.wraps(fn)
     def call(*args: Any, **kwargs: Any) -> Any:
         try:
             with np.errstate(all="ignore"):
-                return fn(*args, **kwargs)
+                return cell_value(fn(*args, **kwargs))
         except CallError as exc:
             return exc.error
-        except TypeError as exc:
-            return CellError(VALUE, f"{fn.__name__}: {exc}")
+        except Exception as exc:
+            if isinstance(exc, TypeError):  # the arguments may not fit the signature: the caller's slip
+                wrong = _arity_error(fn.__name__, signature_, args, kwargs)
+                if wrong is not None:
+                    return wrong
+            if strict():
+                raise
+            return internal_error(exc, fn.__name__)
 
     doc = inspect.getdoc(fn) or ""
-    params = inspect.signature(fn).parameters.values()
+    params = signature_.parameters.values()
     signature = f"{fn.__name__}(" + ", ".join(
         p.name if p.default is inspect.Parameter.empty else f"[{p.name}]" for p in params
     ) + ")"
-    FUNCTIONS[fn.__name__] = SheetFunction(fn.__name__, call, signature, doc.split("\n")[0], _argument_docs(doc))
+    FUNCTIONS[fn.__name__] = SheetFunction(fn.__name__, call, signature, doc.split("\n")[0], _argument_docs(doc),
+                                           cell_call(call))
     if sys.platform == "win32":  # pragma: no cover - Excel only
         return _for_excel(call)
     return call
 
 
-def _for_excel(call: Callable[..., Any]) -> Callable[..., Any]:  # pragma: no cover - Excel only
-    """xlwings' decorators: ranges arrive as 2-D lists and error values go back as their text."""
-    import xlwings as xw
+def cell_call(call: Callable[..., Any]) -> Callable[..., Any]:
+    """The function as a cell path calls it (xlwings in Excel): ranges arrive as 2-D lists, and the result is
+    a number, a text or a 2-D list of them, an error value given as its text (``#NUM! reason``).
 
-    entry = FUNCTIONS[call.__name__]
+    An argument or a result of more than two dimensions is #VALUE!: a range has rows and columns only
+    (the Python API keeps numpy's n-dimensional broadcasting).
+    """
+    names = list(inspect.signature(call).parameters)
 
     @functools.wraps(call)
-    def excel(*args: Any) -> Any:
-        value = call(*(np.array(a, dtype=object) if isinstance(a, list) else a for a in args))
+    def cell(*args: Any) -> Any:
+        try:
+            arrays = [as_array(a) if isinstance(a, (list, tuple)) and not isinstance(a, CellError) else a for a in args]
+        except CallError as exc:
+            return str(exc.error)
+        for position, a in enumerate(arrays):
+            if isinstance(a, np.ndarray) and a.ndim > 2:
+                name = names[position] if position < len(names) else f"argument {position + 1}"
+                return str(CellError(VALUE, f"{name} has {a.ndim} dimensions; a range has rows and columns only"))
+        value = call(*arrays)
         if isinstance(value, np.ndarray):
+            if value.ndim > 2:
+                return str(CellError(VALUE, f"the result has {value.ndim} dimensions; a range has rows and columns "
+                                            "only"))
+            if value.size == 0:
+                return str(CellError(CALC, "the result is an empty array"))
             if value.ndim < 2:
                 value = value.reshape((1, -1) if value.ndim else (1, 1))
             return [[str(v) if isinstance(v, CellError) else v for v in row] for row in value.tolist()]
         return str(value) if isinstance(value, CellError) else value
 
-    excel = xw.func(category=CATEGORY)(excel)
+    return cell
+
+
+def _for_excel(call: Callable[..., Any]) -> Callable[..., Any]:
+    """xlwings' decorators over the cell path: a category, the docstring and one line per argument."""
+    import xlwings as xw
+
+    entry = FUNCTIONS[call.__name__]
+    excel = xw.func(category=CATEGORY)(entry.cell)
     for name, text in entry.arguments.items():
         excel = xw.arg(name, ndim=2, doc=text)(excel) if not name.endswith("unit") else xw.arg(name, doc=text)(excel)
     return excel

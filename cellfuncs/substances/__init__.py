@@ -109,7 +109,8 @@ def lookup(name: str) -> Substance:
         mixture = _mixtures().get(key)
         if mixture is not None:
             raise ModelError(BAD_ARGUMENT, f"'{name}' is a mixture ({mixture[1]}); this pack models pure substances")
-        raise ModelError(BAD_ARGUMENT, f"unknown substance '{name}'; SUBSTANCES() lists the known names")
+        shown = str(name) if len(str(name)) <= 60 else str(name)[:60] + "..."  # a cell may hold any length
+        raise ModelError(BAD_ARGUMENT, f"unknown substance '{shown}'; SUBSTANCES() lists the known names")
     if len(found) > 1:
         which = ", ".join(sorted(_index()[1][k] for k in found))
         raise ModelError(BAD_ARGUMENT, f"'{name}' fits several substances ({which}); give the name")
@@ -118,6 +119,7 @@ def lookup(name: str) -> Substance:
 
 def define(fields: Mapping[str, Any]) -> Substance:
     """A user-defined substance from field -> value or (value, unit); see general/definition.py."""
+    from .general.consistency import check, check_published
     from .general.definition import Definition
 
-    return _model(Definition.from_fields(fields))
+    return check(_model(check_published(Definition.from_fields(fields))))

@@ -14,7 +14,9 @@ so SUBSTANCE_INFO of a built-in substance can be pasted back as a definition.
 
 from __future__ import annotations
 
-import ast
+import math
+import numbers
+import reprlib
 import tomllib
 from dataclasses import dataclass, field
 from functools import lru_cache
@@ -22,27 +24,13 @@ from importlib import resources
 from typing import Any, Mapping
 
 from ... import units
-from ..result import BAD_ARGUMENT, ModelError
+from ..result import BAD_ARGUMENT, ModelError, fmt
+from . import bounds
+from .bounds import FIELDS
 
-# field -> SI unit; ".temperature" fields give the state of the value before them
-NUMBERS: dict[str, str] = {
-    "molar_mass": "kg/mol",
-    "critical_temperature": "K",
-    "critical_pressure": "Pa",
-    "critical_density": "kg/m3",
-    "acentric_factor": "",
-    "triple_point_temperature": "K",
-    "triple_point_pressure": "Pa",
-    "normal_boiling_point": "K",
-    "normal_sublimation_point": "K",
-    "enthalpy_of_fusion": "J/mol",
-    "liquid_density": "kg/m3",
-    "liquid_density.temperature": "K",
-    "solid_density": "kg/m3",
-    "solid_density.temperature": "K",
-    "liquid_heat_capacity": "J/(mol*K)",
-    "liquid_heat_capacity.temperature": "K",
-}
+# field -> SI unit (the bounds, and the unit of a bare number, are in bounds.py); ".temperature"
+# fields give the state of the value before them
+NUMBERS: dict[str, str] = {key: bound.si for key, bound in FIELDS.items()}
 TEXTS = ("name", "formula", "designation", "aliases", "note", "associating", "equation")
 REQUIRED = ("name", "molar_mass", "critical_temperature", "critical_pressure")
 LINES = ("boil", "melt", "sublime")
@@ -75,18 +63,23 @@ class Definition:
 
     @classmethod
     def from_fields(cls, fields: Mapping[str, Any], sources: Mapping[str, str] | None = None) -> "Definition":
-        """A definition from field -> value or (value, unit); raises ModelError naming a bad field."""
+        """A definition from field -> value or (value, unit); raises ModelError naming a bad field.
+
+        Every number is checked against its bounds (bounds.py) and the fields against each other.
+        """
         d = cls(name="")
         for raw_key, raw in fields.items():
+            if not isinstance(raw_key, str):
+                raise ModelError(BAD_ARGUMENT, f"unknown field {_shown(raw_key)} in the substance definition")
             # field names are case-insensitive; a line's coefficient names (after the dot) are not
-            head, dot, tail = str(raw_key).strip().partition(".")
+            head, dot, tail = raw_key.strip().partition(".")
             key = head.lower().replace(" ", "_") + dot + tail
-            value, unit = raw if isinstance(raw, tuple) else (raw, None)
+            value, unit = _value_and_unit(key, raw)
             if key in TEXTS:
                 _set_text(d, key, value)
             elif key.lower() in NUMBERS:
                 key = key.lower()
-                d.values[key] = _number(key, value, unit, NUMBERS[key])
+                d.values[key] = _number(key, value, unit)
             elif key.split(".")[0] in LINES and "." in key:
                 line, part = key.split(".", 1)
                 d.lines.setdefault(line, {})[part] = _line_value(key, part, value)
@@ -94,7 +87,7 @@ class Definition:
                 part = key.split(".", 1)[1]
                 d.ideal_gas[part] = _line_value(key, part, value)
             else:
-                raise ModelError(BAD_ARGUMENT, f"unknown field '{raw_key}' in the substance definition")
+                raise ModelError(BAD_ARGUMENT, f"unknown field {_shown(raw_key)} in the substance definition")
         d.sources = dict(sources or {})
         _validate(d)
         return d
@@ -118,69 +111,169 @@ class Definition:
         return rows
 
 
+def _shown(value: Any, limit: int = 40) -> str:
+    """A value as a message quotes it, cut short: a definition cell may hold a text of any length."""
+    text = f"'{value}'" if isinstance(value, str) else reprlib.repr(value)  # any nesting
+    return text if len(text) <= limit else text[:limit] + "..."
+
+
+def _value_and_unit(key: str, raw: Any) -> tuple[Any, Any]:
+    """A field's (value, unit): given as a pair, a one-item tuple (no unit) or a bare value."""
+    if not isinstance(raw, tuple):
+        return raw, None
+    if len(raw) in (1, 2):
+        return raw[0], raw[1] if len(raw) == 2 else None
+    raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a value or a (value, unit) pair; got {len(raw)} items")
+
+
+def _text(key: str, value: Any) -> str:
+    if value is not None and not isinstance(value, (str, numbers.Real)):
+        raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a text; got {_shown(value)}")
+    text = "" if value is None else str(value).strip()
+    limit = bounds.TEXTS[key.split(".")[-1]]
+    if len(text) > limit:
+        raise ModelError(BAD_ARGUMENT, f"field '{key}' is {len(text)} characters long; at most {limit} are taken")
+    return text
+
+
 def _set_text(d: Definition, key: str, value: Any) -> None:
     if key == "associating":
-        d.associating = value is True or str(value).strip().upper() in ("TRUE", "1", "YES")
+        d.associating = value is True or _text(key, value).upper() in ("TRUE", "1", "YES")
     elif key == "aliases":
-        d.aliases = tuple(a.strip().lower() for a in str(value or "").split(",") if a.strip())
+        d.aliases = tuple(a.strip().lower() for a in _text(key, value).split(",") if a.strip())
     else:
-        setattr(d, key, "" if value is None else str(value).strip())
+        setattr(d, key, _text(key, value))
 
 
-def _number(key: str, value: Any, unit: Any, si: str) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
+def _finite(key: str, value: Any) -> float:
+    """The number a field holds (a number, or a text of one); raises ModelError naming the field."""
+    wrong = ModelError(BAD_ARGUMENT, f"field '{key}' must be a number; got {_shown(value)}")
+    if isinstance(value, str):
         try:
-            value = float(str(value).strip())
+            number = float(value.strip())
         except ValueError:
-            raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a number; got {value!r}") from None
-    if value != value or value in (float("inf"), float("-inf")):
+            raise wrong from None
+    elif isinstance(value, numbers.Real) and not isinstance(value, bool):  # numpy numbers too, not its bool_
+        try:
+            number = float(value)
+        except OverflowError:  # an integer beyond a double's range
+            number = math.inf
+    else:
+        raise wrong
+    if not math.isfinite(number):
         raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a finite number")
-    if unit is None or str(unit).strip() in ("", "-", "1", si):
-        return float(value)
+    return number
+
+
+def _to_si(key: str, number: float, unit: str, si: str) -> float:
+    if len(unit) > bounds.TEXTS["unit"]:
+        raise ModelError(BAD_ARGUMENT, f"field '{key}': unknown unit {_shown(unit)}")
     try:
-        return float(units.conversion_to(str(unit), si).to_si(float(value)))
+        return float(units.conversion_to(unit, si).to_si(number))
     except units.UnitError as exc:
         raise ModelError(BAD_ARGUMENT, f"field '{key}': {exc}") from None
+
+
+def _number(key: str, value: Any, unit: Any) -> float:
+    """A numeric field in SI, within its bounds; a number without a unit is read in the bound's bare unit."""
+    bound = FIELDS[key]
+    number = _finite(key, value)
+    typed = "" if unit is None else str(unit).strip()
+    bare = typed in ("", "-", "1")
+    if bare:
+        typed = bound.bare
+    si = _to_si(key, number, typed, bound.si)
+    low, high = (_to_si(key, limit, bound.bare, bound.si) for limit in (bound.low, bound.high))
+    if not low <= si <= high:
+        given = f"{fmt(number)} {typed}".strip()
+        raise ModelError(BAD_ARGUMENT, f"field '{key}' = {given} is outside its bounds, {bound.shown()}"
+                         + (f" (a number without a unit is read in {bound.bare})" if bare and bound.bare else ""))
+    return si
 
 
 def _line_value(key: str, part: str, value: Any) -> Any:
     """A line's or the ideal-gas table's value: its texts stay text, lists become lists of floats."""
     if part in LINE_TEXTS:
-        return str(value).strip()
+        return _text(key, value)
     if isinstance(value, (list, tuple)) or isinstance(value, str) and value.strip().startswith("["):
+        return _number_list(key, value)
+    return _finite(key, value)
+
+
+def _number_list(key: str, value: Any) -> list[float]:
+    """A line's list of coefficients: a list, or a text such as "[1.5, -2]" (read without evaluating it)."""
+    wrong = ModelError(BAD_ARGUMENT, f"field '{key}' must be a list of numbers like [1.5, -2]")
+    if isinstance(value, str):
+        text = value.strip()
+        if len(text) > bounds.LIST_TEXT:
+            raise ModelError(BAD_ARGUMENT, f"field '{key}' is {len(text)} characters long; at most "
+                                           f"{bounds.LIST_TEXT} are taken")
+        if not text.endswith("]"):
+            raise wrong
+        inner = text[1:-1].strip()
+        items: list[Any] = [item.strip() for item in inner.split(",")] if inner else []
+    else:
+        items = list(value)
+    if len(items) > bounds.LINE_TERMS:
+        raise ModelError(BAD_ARGUMENT, f"field '{key}' has {len(items)} terms; at most {bounds.LINE_TERMS} are taken")
+    numbers = []
+    for item in items:
+        if isinstance(item, bool) or not isinstance(item, (int, float, str)):
+            raise wrong
         try:
-            items = ast.literal_eval(value.strip()) if isinstance(value, str) else value
-            return [float(v) for v in items]
-        except (ValueError, SyntaxError, TypeError):
-            raise ModelError(BAD_ARGUMENT, f"field '{key}' must be a list of numbers like [1.5, -2]") from None
-    return _number(key, value, None, "")
+            number = float(item)
+        except (ValueError, OverflowError):
+            raise wrong from None
+        if not math.isfinite(number):
+            raise wrong
+        numbers.append(number)
+    return numbers
+
+
+def _refuse(message: str) -> None:
+    raise ModelError(BAD_ARGUMENT, message)
 
 
 def _validate(d: Definition) -> None:
     for key in REQUIRED:
         if key == "name" and not d.name:
-            raise ModelError(BAD_ARGUMENT, "the substance definition needs a 'name'")
+            _refuse("the substance definition needs a 'name'")
         if key != "name" and key not in d.values:
-            raise ModelError(BAD_ARGUMENT, f"the substance definition needs '{key}'")
+            _refuse(f"the substance definition needs '{key}'")
     if d.equation:
         from ..helmholtz.equation import equation_keys
 
         if d.equation not in equation_keys():
-            raise ModelError(BAD_ARGUMENT, f"field 'equation': no equation of state '{d.equation}'; known: "
-                                           f"{', '.join(sorted(equation_keys()))}")
+            _refuse(f"field 'equation': no equation of state '{d.equation}'; known: {', '.join(sorted(equation_keys()))}")
     v = d.values
     if "acentric_factor" not in v and "normal_boiling_point" not in v:
-        raise ModelError(BAD_ARGUMENT, "the substance definition needs 'acentric_factor' or 'normal_boiling_point'")
-    for key, number in v.items():
-        if key != "acentric_factor" and number <= 0:
-            raise ModelError(BAD_ARGUMENT, f"field '{key}' must be positive; got {number:g}")
-    tc = v["critical_temperature"]
-    for key in ("triple_point_temperature", "normal_boiling_point", "normal_sublimation_point"):
+        _refuse("the substance definition needs 'acentric_factor' or 'normal_boiling_point'")
+    tc, pc = v["critical_temperature"], v["critical_pressure"]
+    for key in ("triple_point_temperature", "normal_boiling_point", "normal_sublimation_point",
+                "liquid_density.temperature", "solid_density.temperature", "liquid_heat_capacity.temperature"):
         if key in v and v[key] >= tc:
-            raise ModelError(BAD_ARGUMENT, f"field '{key}' ({v[key]:g} K) must be below the critical temperature "
-                                           f"({tc:g} K)")
-    if "triple_point_pressure" in v and v["triple_point_pressure"] >= v["critical_pressure"]:
-        raise ModelError(BAD_ARGUMENT, "field 'triple_point_pressure' must be below the critical pressure")
+            _refuse(f"field '{key}' ({fmt(v[key])} K) must be below the critical temperature ({fmt(tc)} K)")
+    tt, pt = v.get("triple_point_temperature"), v.get("triple_point_pressure")
+    if tt is not None and tt < bounds.MIN_TRIPLE_RATIO * tc:
+        _refuse(f"field 'triple_point_temperature' ({fmt(tt)} K) is below {fmt(bounds.MIN_TRIPLE_RATIO)} times the "
+                f"critical temperature ({fmt(tc)} K), lower than any real substance's")
+    if pt is not None and tt is None:
+        _refuse("field 'triple_point_pressure' needs 'triple_point_temperature'")
+    if pt is not None and pt >= pc:
+        _refuse("field 'triple_point_pressure' must be below the critical pressure")
+    atm = units.conversion("atm", units.PRESSURE).to_si(1.0)  # the pressure of the normal points
+    tb, ts = v.get("normal_boiling_point"), v.get("normal_sublimation_point")
+    if tb is not None and ts is not None:
+        _refuse("fields 'normal_boiling_point' and 'normal_sublimation_point' exclude each other: at 1 atm a "
+                "substance boils or sublimes")
+    if tb is not None and (pc <= atm or tt is not None and tb <= tt or pt is not None and pt >= atm):
+        _refuse(f"field 'normal_boiling_point' ({fmt(tb)} K) needs the liquid at 1 atm: above the triple point, with "
+                "the triple-point pressure below 1 atm and the critical pressure above it")
+    if ts is not None and (tt is not None and ts >= tt or pt is not None and pt <= atm):
+        _refuse(f"field 'normal_sublimation_point' ({fmt(ts)} K) must lie below the triple point, whose pressure "
+                "must then be above 1 atm")
+    if "liquid_density" in v and "liquid_density.temperature" not in v:
+        _refuse("field 'liquid_density' needs 'liquid_density.temperature', the temperature it was measured at")
     for line, table in d.lines.items():
         _validate_line(line, table)
     if d.ideal_gas:
@@ -195,31 +288,39 @@ def _validate_line(line: str, table: dict[str, Any]) -> None:
 
     form = table.get("form")
     if form is None:
-        raise ModelError(BAD_ARGUMENT, f"field '{line}.form' is missing for the {line} line")
+        _refuse(f"field '{line}.form' is missing for the {line} line")
     if form not in FORMS:
-        raise ModelError(BAD_ARGUMENT, f"field '{line}.form': unknown form '{form}'; known: {', '.join(FORMS)}")
+        _refuse(f"field '{line}.form': unknown form {_shown(form)}; known: {', '.join(FORMS)}")
     numbers = LINE_NUMBERS[form] + ("T_min", "T_max")
     lists = [key for pair in LINE_LISTS[form] for key in pair]
     for key in numbers + tuple(k for k in lists if k not in OPTIONAL_LISTS):
         if key not in table:
-            raise ModelError(BAD_ARGUMENT, f"field '{line}.{key}' is missing for the {line} line ({form} form)")
+            _refuse(f"field '{line}.{key}' is missing for the {line} line ({form} form)")
     for key, value in table.items():
         if key in LINE_TEXTS:
             continue
         if key not in numbers and key not in lists:
-            raise ModelError(BAD_ARGUMENT, f"unknown field '{line}.{key}' for the {line} line ({form} form)")
+            _refuse(f"unknown field {_shown(line + '.' + key)} for the {line} line ({form} form)")
         if (key in lists) != isinstance(value, list):
-            raise ModelError(BAD_ARGUMENT, f"field '{line}.{key}' must be "
-                             + ("a list of numbers like [1.5, -2]" if key in lists else "a number"))
+            _refuse(f"field '{line}.{key}' must be "
+                    + ("a list of numbers like [1.5, -2]" if key in lists else "a number"))
+        if key in numbers:
+            low, high = bounds.LINE_NUMBERS[key]
+            if not low <= value <= high:
+                _refuse(f"field '{line}.{key}' = {fmt(value)} is outside its bounds, {fmt(low)} to {fmt(high)}")
     for first, second in LINE_LISTS[form]:
         if len(table.get(first, [])) != len(table.get(second, [])):
-            raise ModelError(BAD_ARGUMENT, f"fields '{line}.{first}' and '{line}.{second}' must have as many numbers")
+            _refuse(f"fields '{line}.{first}' and '{line}.{second}' must have as many numbers")
+        low, high = bounds.LINE_EXPONENT
+        if any(abs(x) > bounds.LINE_COEFFICIENT for x in table.get(first, [])):
+            _refuse(f"field '{line}.{first}' holds a coefficient beyond +-{fmt(bounds.LINE_COEFFICIENT)}")
+        if any(not low <= x <= high for x in table.get(second, [])):
+            _refuse(f"field '{line}.{second}' holds an exponent outside {fmt(low)} to {fmt(high)}")
     if table["T_min"] >= table["T_max"]:
-        raise ModelError(BAD_ARGUMENT, f"field '{line}.T_min' must be below '{line}.T_max'")
+        _refuse(f"field '{line}.T_min' must be below '{line}.T_max'")
     for key, known in (("p_unit", _PRESSURE_UNITS), ("t_unit", _TEMPERATURE_OFFSETS)):
         if key in table and table[key] not in known:
-            raise ModelError(BAD_ARGUMENT, f"field '{line}.{key}': unknown unit '{table[key]}'; "
-                                           f"known: {', '.join(known)}")
+            _refuse(f"field '{line}.{key}': unknown unit {_shown(table[key])}; known: {', '.join(known)}")
 
 
 @lru_cache(maxsize=None)
