@@ -760,3 +760,17 @@ def test_mixture_names_say_they_are_mixtures(name, component):
     result = BOIL_TEMP(name, 1, "atm")
     assert isinstance(result, CellError) and result.code == VALUE
     assert "is a mixture" in result.reason and component in result.reason and "pure substances" in result.reason
+
+
+def test_a_definition_naming_an_equation_must_agree_with_its_critical_point():
+    # consistency, no outside value: the equation decides the fluid, so a pasted definition that
+    # names it keeps the equation's critical point and molar mass (within 0.1 %)
+    from cellfuncs.sheet.functions import BOIL_TEMP, SUBSTANCE_INFO
+
+    rows = [list(r) for r in np.asarray(SUBSTANCE_INFO("propane"), dtype=object)]
+    assert BOIL_TEMP(np.array(rows, dtype=object), 1, "atm") == pytest.approx(231.036, abs=1e-3)
+    for r in rows:
+        if r[0] == "critical_pressure":
+            r[1] = 101326.0
+    result = BOIL_TEMP(np.array(rows, dtype=object), 1, "atm")
+    assert isinstance(result, CellError) and result.code == VALUE and "critical_pressure" in result.reason

@@ -88,4 +88,4 @@ LIST_TEXT = 1000  # characters of a list typed as text, "[1.5, -2]"
 
 TEXTS: dict[str, int] = {"name": 100, "formula": 100, "designation": 100, "aliases": 500, "note": 2000,
                          "associating": 10, "reference": 2000, "form": 40, "p_unit": 10, "t_unit": 10,
-                         "unit": 40}
+                         "unit": 40, "equation": 100}

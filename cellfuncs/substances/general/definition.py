@@ -234,6 +234,23 @@ def _refuse(message: str) -> None:
     raise ModelError(BAD_ARGUMENT, message)
 
 
+# how closely a definition that names an equation of state must give the equation's critical point
+# and molar mass: the equation decides the fluid, so the definition's lines and limits must be its
+EQUATION_AGREEMENT = 1e-3
+
+
+def _check_against_equation(d: Definition) -> None:
+    from ..helmholtz.equation import equation
+
+    eq = equation(d.equation)
+    p_crit = float(eq.pressure(eq.Tc, eq.rhoc)[0])
+    for field, own in (("critical_temperature", eq.Tc), ("critical_pressure", p_crit), ("molar_mass", eq.M)):
+        given = d.values.get(field)
+        if given is not None and abs(given / own - 1.0) > EQUATION_AGREEMENT:
+            _refuse(f"field '{field}': {given:.6g} disagrees with the equation of state '{d.equation}' "
+                    f"({own:.6g} in SI units); remove the 'equation' row or give the equation's value")
+
+
 def _validate(d: Definition) -> None:
     for key in REQUIRED:
         if key == "name" and not d.name:
@@ -246,6 +263,8 @@ def _validate(d: Definition) -> None:
         if d.equation not in equation_keys():
             _refuse(f"field 'equation': no equation of state '{d.equation}'; known: {', '.join(sorted(equation_keys()))}")
     v = d.values
+    if d.equation:
+        _check_against_equation(d)
     if "acentric_factor" not in v and "normal_boiling_point" not in v:
         _refuse("the substance definition needs 'acentric_factor' or 'normal_boiling_point'")
     tc, pc = v["critical_temperature"], v["critical_pressure"]

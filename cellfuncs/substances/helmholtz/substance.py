@@ -36,7 +36,7 @@ from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, Substance
 from ..general.definition import Definition
 from ..general.model import P0, GeneralSubstance
 from ..phase_map import LINE_TOL
-from ..result import BAD_ARGUMENT, OUT_OF_RANGE, Result, fmt
+from ..result import BAD_ARGUMENT, OUT_OF_RANGE, ModelError, Result, fmt
 from . import density, saturation
 from .equation import HelmholtzEquation
 
@@ -54,9 +54,17 @@ class EquationSubstance(GeneralSubstance):
     # --- the boiling line from the equation --------------------------------------------
     @cached_property
     def saturation(self) -> saturation.Saturation:
-        """The equation's phase equilibrium, tabulated once (first use), from the published line's guesses."""
-        return saturation.Saturation(self.equation, self.t_low, self._published_p_boil,
-                                     lambda T: 1.0 / self.liquid.saturated(T))
+        """The equation's phase equilibrium, tabulated once (first use), from the published line's guesses.
+
+        A user definition whose vapour-pressure line or liquid density is far from the equation's
+        can leave Newton's method without a start; that is the definition's fault, said as such."""
+        try:
+            return saturation.Saturation(self.equation, self.t_low, self._published_p_boil,
+                                         lambda T: 1.0 / self.liquid.saturated(T))
+        except ArithmeticError:
+            raise ModelError(BAD_ARGUMENT, f"the phase equilibrium of the equation of state '{self.equation.key}' "
+                             "could not be started from this definition's vapour-pressure line and liquid density; "
+                             "give the equation's own (paste SUBSTANCE_INFO of the built-in)") from None
 
     def _published_p_boil(self, T: np.ndarray) -> np.ndarray:
         return GeneralSubstance._p_boil(self, T)
