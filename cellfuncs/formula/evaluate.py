@@ -18,6 +18,7 @@ import numpy as np
 
 from ..errors import NAME, REF, VALUE, CellError
 from .arrays import Value, as_value, object_array
+from .budget import charge
 from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary
 from .operators import BINARY, UNARY
 from .parser import parse
@@ -122,10 +123,17 @@ def _call(node: Call, context: Context) -> Value:
         if fn is None:
             return CellError(NAME, f"unknown function {node.name}")
         args = [evaluate(a, context) for a in node.args]
+        over = _charge_call(args)
+        if over is not None:
+            return over
         try:
             result = fn(*args)
         except Exception as exc:  # a cell shows the failure instead of stopping the recalculation
             return CellError(VALUE, f"{node.name}: {exc}")
+        if isinstance(result, np.ndarray) and result.ndim:
+            over = charge(result.shape)
+            if over is not None:
+                return over
         return as_value(result)
     count = len(node.args)
     if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
@@ -133,6 +141,19 @@ def _call(node: Call, context: Context) -> Value:
     if spec.lazy:
         return spec.fn(context, *node.args)
     return spec.fn(*[evaluate(a, context) for a in node.args])
+
+
+def _charge_call(args: list) -> CellError | None:
+    """The work a pack function's arguments imply: they broadcast like numpy, so a column
+    against a row is a table, charged before the function builds it."""
+    shapes = [a.shape for a in args if type(a) is np.ndarray]
+    if not shapes:
+        return None
+    try:
+        shape = np.broadcast_shapes(*shapes)
+    except ValueError:  # the function reports shapes that do not match
+        return None
+    return charge(shape)
 
 
 _EVALUATORS: dict[type, Callable[[Any, Context], Value]] = {

@@ -71,15 +71,54 @@ def index(array: Value, row: Value, column: Value = _ABSENT) -> Value:
     return _take(a, row, column, whole=True)
 
 
+class _Wildcard:
+    """Excel's ``*`` and ``?`` wildcards (``~`` escapes), case-insensitive, matched in time linear
+    in the pattern times the text: the parts between stars are found one after the other, left
+    to right, which is all a star needs (one regex of several ``.*`` can take exponential time).
+
+    >>> w = _Wildcard("a*b?d*~*")
+    >>> w.matches("AxxBcD*"), w.matches("abd*"), _Wildcard("*a*a*a*a*a*a*a*a*a*b").matches("a" * 60)
+    (True, False, False)
+    """
+
+    def __init__(self, pattern: str):
+        pieces: list[list[str]] = [[]]  # the regex units between stars
+        for part in re.split(r"(~[*?~]|[*?])", pattern):
+            if part == "*":
+                pieces.append([])
+            elif part == "?":
+                pieces[-1].append(".")
+            elif part in _WILDCARD_LITERALS:
+                pieces[-1].append(re.escape(_WILDCARD_LITERALS[part]))
+            else:
+                pieces[-1] += [re.escape(ch) for ch in part]
+        flags = re.IGNORECASE | re.DOTALL
+        self.parts = [re.compile("".join(units), flags) for units in pieces]
+        self.last = len(pieces[-1])  # each unit is one character
+
+    def matches(self, text: str) -> bool:
+        first, *middle, last = self.parts if len(self.parts) > 1 else (self.parts[0], None)
+        if last is None:
+            return first.fullmatch(text) is not None
+        m = first.match(text)
+        if m is None:
+            return False
+        pos = m.end()
+        for part in middle:
+            m = part.search(text, pos)
+            if m is None:
+                return False
+            pos = m.end()
+        start = len(text) - self.last
+        return start >= pos and last.fullmatch(text, start) is not None
+
+
+_WILDCARD_LITERALS = {"~*": "*", "~?": "?", "~~": "~"}
+
+
 @lru_cache(maxsize=256)
-def _wildcard(pattern: str) -> re.Pattern:
-    """Excel's ``*`` and ``?`` wildcards (``~`` escapes) as a case-insensitive regex."""
-    parts = re.split(r"(~[*?~]|[*?])", pattern)
-    regex = "".join(_WILDCARD_PARTS.get(p) or re.escape(p) for p in parts)
-    return re.compile(regex, re.IGNORECASE | re.DOTALL)
-
-
-_WILDCARD_PARTS = {"*": ".*", "?": ".", "~*": r"\*", "~?": r"\?", "~~": "~"}
+def _wildcard(pattern: str) -> _Wildcard:
+    return _Wildcard(pattern)
 
 
 def _find(x: Scalar, values: list, mode: int) -> float | CellError:
@@ -91,7 +130,7 @@ def _find(x: Scalar, values: list, mode: int) -> float | CellError:
         return CellError(NA, "the lookup value is blank")
     if mode == 0 and type(x) is str and any(ch in x for ch in "*?~"):
         regex = _wildcard(x)
-        found = next((i for i, v in enumerate(values) if type(v) is str and regex.fullmatch(v)), None)
+        found = next((i for i, v in enumerate(values) if type(v) is str and regex.matches(v)), None)
     elif mode == 0:
         found = next((i for i, v in enumerate(values) if type(v) is type(x) and compare(v, x) == 0), None)
     else:

@@ -1,0 +1,48 @@
+"""The work a workbook may ask of a recalculation, counted before the work is done.
+
+A file of a few kilobytes can declare an array formula over the whole sheet, multiply a
+whole column by a whole row, or chain defined names a thousand deep. These limits keep
+the work proportional to what a real workbook needs; each can be raised on the command
+line. What the file *declares* (array-formula ranges, the dependencies between formulas)
+is checked while it is read: over a limit the file is refused, naming the limit and the
+cell. What one formula *computes* (a range it reads, an array an operator or function
+builds, a spill) is checked before each array is built: over a limit, that cell holds an
+error value naming the limit and the rest of the workbook is computed.
+
+>>> Limits().budget().array
+Limit(cells=1048576, option='--max-array-cells')
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, fields
+
+from ..formula.budget import Budget, Limit
+
+
+@dataclass(frozen=True)
+class Limits:
+    """The defaults accept every workbook of the project's reference set with a wide margin
+    (the largest array-formula range there covers 16,384 cells)."""
+
+    array_cells: int = 1_048_576  # cells of one array: a range read, a broadcast, a spill (one whole column)
+    formula_work: int = 8_388_608  # cells of all the arrays one formula (or defined name) builds
+    spill_cells: int = 1_048_576  # cells covered by the array formulas and spills of one workbook
+    dependencies: int = 10_000_000  # (formula, formula or spill it reads) pairs of one workbook
+
+    def budget(self) -> Budget:
+        """The per-formula budget of the formula engine."""
+        return Budget(Limit(self.array_cells, option("array_cells")), Limit(self.formula_work, option("formula_work")))
+
+
+def option(field: str) -> str:
+    """The command-line option that sets a limit.
+
+    >>> option("spill_cells")
+    '--max-spill-cells'
+    """
+    return "--max-" + field.replace("_", "-")
+
+
+FIELDS = tuple(f.name for f in fields(Limits))
+DEFAULTS = Limits()
