@@ -1,7 +1,8 @@
 """The ``cellfuncs`` command: evaluate formulas, list the functions, recalculate workbooks, set up Excel.
 
 Exit status: 0 clean; 1 an error value in a result; 2 a usage problem or a
-formula that does not parse; 3 an internal failure.
+formula that does not parse (``recalc``: a refused file); 3 an internal failure;
+4 (``recalc``) an output that could not be written.
 """
 
 from __future__ import annotations
@@ -23,7 +24,9 @@ def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="cellfuncs",
         description="Phase equilibrium of pure substances as spreadsheet functions.",
-        epilog=CAUTION,
+        epilog="Exit status: 0 clean; 1 an error value in a result; 2 a usage problem, a formula that does not "
+               "parse or a refused workbook; 3 an internal failure; 4 an output that could not be written "
+               "(cellfuncs recalc --help says more).\n\n" + CAUTION,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"cellfuncs {__version__}")
@@ -154,7 +157,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         if args.command == "recalc":
             from .workbook.command import run
 
-            return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance)
+            from .workbook.command import limits_of
+
+            return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance, limits_of(args),
+                       args.split_hard_links)
         if args.command == "excel-setup":
             from .excel_setup import run as excel_setup
 

@@ -180,7 +180,7 @@ def load(pkg: Package) -> Book:
             part = rel.target if rel is not None and rel.kind == "worksheet" and not rel.external else None
             if part is not None and part not in pkg:
                 raise Refused(f"sheet {el.get('name')!r}: part {part} missing")
-            sheet_scan = scan(pkg.read(part), part, budget, strings) if part else None
+            sheet_scan = scan(pkg.utf8(part), part, budget, strings) if part else None
             if part:
                 parsed.add(part)
             sheets.append(Sheet(el.get("name", f"Sheet{n + 1}"), n, part, sheet_scan))

@@ -10,14 +10,17 @@ namespace prefixes cannot mislead them.
 >>> s = scan(xml, "sheet1.xml", [10])
 >>> s.values, s.formulas[(1, 2)].text, xml[s.cells[(1, 2)].start:s.cells[(1, 2)].end(xml)]
 ({(1, 1): 2.0}, 'A1*2', b'<c r="B1"><f>A1*2</f></c>')
+>>> print(scan(xml.replace(b"<v>2</v>", b"<v>NaN</v>"), "sheet1.xml", [10]).values[(1, 1)])
+#NUM! the stored number NaN is not a finite number
 """
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass, field
 
-from ..errors import CODES, CellError
+from ..errors import CODES, NUM, CellError
 from .package import Refused, parse_xml
 from .refs import MAX_COL, MAX_ROW, area, cell
 
@@ -289,20 +292,22 @@ class _Scanner:
         if not text.strip():
             return None
         try:
-            return float(text)
+            x = float(text)
         except ValueError:
             raise Refused(f"{self.out.part}: cell value {text[:20]!r} is not a number") from None
+        if not math.isfinite(x):  # NaN, INF or an exponent beyond a double: no cell holds such a number
+            return CellError(NUM, f"the stored number {text.strip()[:20]} is not a finite number")
+        return x
 
     def close(self) -> SheetScan:
         return self.out
 
 
 def scan(data: bytes, part: str, budget: list[int], strings: list[str] | None = None) -> SheetScan:
-    """Read worksheet ``part``: values, formulas and element positions.
+    """Read worksheet ``part`` (UTF-8 bytes, see :meth:`.Package.utf8`): values, formulas and
+    element positions.
 
     ``budget`` is a one-element list holding how many formula cells may still be read.
     """
-    if data[:2] in (b"\xff\xfe", b"\xfe\xff") or re.match(rb"<\?xml[^>]*encoding=[\"'](?!utf-8)", data[:100], re.I):
-        raise Refused(f"{part}: not UTF-8 encoded")
     scanner = _Scanner(data, part, strings or [], budget)
     return parse_xml(data, part, scanner)

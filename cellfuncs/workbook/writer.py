@@ -288,7 +288,7 @@ class _PackageEdit:
         self.content_add: list[tuple[str, str]] = []
 
     def current(self, name: str) -> bytes:
-        return self.replaced.get(name) or self.pkg.read(name)
+        return self.replaced.get(name) or self.pkg.utf8(name)
 
     def relate(self, source: str, kind: str, target_rel: str, drop_kinds: set[str] = frozenset()) -> None:
         """Add a relationship of ``source`` (and drop those of ``drop_kinds``)."""
@@ -315,12 +315,12 @@ class _PackageEdit:
             if n == name:
                 self.added[i] = (n, data)
                 return
-        if data != self.pkg.read(name):
+        if data != self.pkg.utf8(name):
             self.replaced[name] = data
 
     def content_types(self) -> None:
         name = "[Content_Types].xml"
-        data = self.pkg.read(name)
+        data = self.pkg.utf8(name)
         existing = {e.attrib.get("PartName", "") for e in elements(data, name) if e.local == "Override"}
         add = [b'<%%sOverride PartName="%s" ContentType="%s"/>' % (attr(p), attr(t))
                for p, t in self.content_add if p not in existing]
@@ -353,7 +353,7 @@ def _metadata(edit: _PackageEdit, book: Book) -> bytes:
         edit.relate(book.workbook_part, "sheetMetadata", _relative(book.workbook_part, part))
         edit.content_add.append(("/" + part, _METADATA_TYPE))
         return b"1"
-    data = edit.pkg.read(part)
+    data = edit.pkg.utf8(part)
     els = elements(data, part)
     root = els[0]
     p = prefix(data, root)
@@ -414,7 +414,7 @@ def _custom_properties(edit: _PackageEdit) -> None:
         edit.content_add.append(("/" + part, _CUSTOM_TYPE))
         return
     part = rel.target
-    data = edit.pkg.read(part)
+    data = edit.pkg.utf8(part)
     els = [e for e in elements(data, part) if e.depth == 2 and e.local == "property"]
     p = prefix(data, elements(data, part)[0])
     by_name = {e.attrib.get("name"): e for e in els}
@@ -440,7 +440,7 @@ def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], se
     for sheet in book.sheets:
         if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index]):
             continue
-        data = pkg.read(sheet.part)
+        data = pkg.utf8(sheet.part)
         new = _SheetPatch(data, sheet.scan, engine, sheet.index, cm).build()
         if new != data:
             edit.replaced[sheet.part] = new
@@ -452,4 +452,5 @@ def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], se
         edit.content_drop |= {"/" + c for c in chains}
     _custom_properties(edit)
     edit.content_types()
-    return edit.replaced, edit.removed, edit.added
+    replaced = {name: pkg.encoded(name, data) for name, data in edit.replaced.items()}  # UTF-16 parts stay UTF-16
+    return replaced, edit.removed, edit.added
