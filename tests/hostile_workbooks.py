@@ -1,4 +1,5 @@
-"""Hostile and broken workbooks for ``cellfuncs recalc``, built from their XML.
+"""Hostile and broken workbooks for ``cellfuncs recalc``, built from their XML, and how the
+tests run the command on them.
 
 Each builder writes one small .xlsx that stands for a way a file can ask for far more work
 than its size suggests, or break the package format, and returns its path. The packages are
@@ -8,10 +9,26 @@ attribute Excel would never write.
 
 from __future__ import annotations
 
+import os
 import struct
 import zipfile
 from pathlib import Path
 from xml.sax.saxutils import escape
+
+# How the tests run ``cellfuncs recalc`` on them: a process of its own under an address-space
+# limit; the timeout only catches a hang.
+ADDRESS_SPACE = 2**30
+WATCHDOG = 300  # seconds; a run normally takes well under two
+# Thread pools of the numerical libraries reserve address space per core; one thread each keeps
+# the limit about the engine's work on any machine.
+ENV = dict(os.environ, CI="1", OPENBLAS_NUM_THREADS="1", OMP_NUM_THREADS="1", MKL_NUM_THREADS="1")
+
+
+def limit_memory() -> None:
+    """``preexec_fn`` of the runs: the address-space limit."""
+    import resource  # POSIX only, as the limit is
+
+    resource.setrlimit(resource.RLIMIT_AS, (ADDRESS_SPACE, ADDRESS_SPACE))
 
 MAIN = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
 DOC_REL = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
@@ -105,18 +122,18 @@ def dynamic_range_bomb(folder: Path) -> Path:
 
 def broadcast_bomb(folder: Path) -> Path:
     """A whole column times a whole row: 100,000 x 16,384 elements from three stored cells."""
-    return write(folder / "broadcast.xlsx", {"C5": "=SUM(A:A+1:1)", "A100000": 1, "XFD1": 2})
+    return write(folder / "broadcast.xlsx", {"C5": "=SUM(A:A+1:1)", "A100000": 1, "XFD1": 2, "D5": "=6*7"})
 
 
 def function_broadcast_bomb(folder: Path) -> Path:
     """A pack function given a whole column and a whole row."""
     return write(folder / "function_broadcast.xlsx",
-                 {"A5": '=SUM(MASS_DENSITY("water",B:B,2:2))', "B100000": 300, "XFD2": 1e5})
+                 {"A5": '=SUM(MASS_DENSITY("water",B:B,2:2))', "B100000": 300, "XFD2": 1e5, "D5": "=6*7"})
 
 
 def range_read_bomb(folder: Path) -> Path:
     """A range that stops one short of the sheet's edges, so it is not cut to the used range."""
-    return write(folder / "range_read.xlsx", {"A1": "=SUM(B2:XFC1048575)", "B2": 1})
+    return write(folder / "range_read.xlsx", {"A1": "=SUM(B2:XFC1048575)", "B2": 1, "A2": "=6*7"})
 
 
 def text_doubling_bomb(folder: Path) -> Path:
@@ -124,7 +141,7 @@ def text_doubling_bomb(folder: Path) -> Path:
     cells: dict[str, object] = {"A1": '="xxxxxxxx"'}
     for r in range(2, 62):
         cells[f"A{r}"] = f"=A{r - 1}&A{r - 1}"
-    cells["B1"] = "=1+1"
+    cells["B1"] = "=6*7"
     return write(folder / "text_doubling.xlsx", cells)
 
 
@@ -142,8 +159,8 @@ def name_chain(folder: Path, length: int = 1000) -> Path:
     return write(folder / "name_chain.xlsx", {"A1": "=chain_1", "B1": 1}, names)
 
 
-def cell_chain(folder: Path, length: int = 5000) -> Path:
-    """A5000 = A4999 + 1, ..., A1 = 1, written bottom-up so the file order is the reverse
+def cell_chain(folder: Path, length: int = 3000) -> Path:
+    """A3000 = A2999 + 1, ..., A1 = 1, written bottom-up so the file order is the reverse
     of the evaluation order."""
     cells: dict[str, object] = {f"A{r}": f"=A{r - 1}+1" for r in range(length, 1, -1)}
     cells["A1"] = 1
@@ -152,9 +169,11 @@ def cell_chain(folder: Path, length: int = 5000) -> Path:
 
 
 def deep_nesting(folder: Path) -> Path:
-    """Functions nested as deep as the parser accepts, aggregates among them."""
+    """Deep formulas: 96 nested functions (Excel allows 64), 99 negations, and 199 nested SUMs,
+    which the parser accepts but which are deeper than the evaluator's recursion goes."""
     return write(folder / "deep_nesting.xlsx", {"A1": "=" + "SUM(IFERROR(" * 48 + "1" + ",0))" * 48,
-                                                "A2": "=" + "-(" * 99 + "1" + ")" * 99})
+                                                "A2": "=" + "-(" * 99 + "1" + ")" * 99,
+                                                "A3": "=" + "SUM(" * 199 + "1" + ")" * 199})
 
 
 def long_formula(folder: Path) -> Path:
@@ -249,5 +268,48 @@ def byte_mutants(folder: Path, base: Path, count: int, seed: int = 11) -> list[P
             mutant[rng.randrange(len(mutant))] = rng.randrange(256)
         path = folder / f"bytes_{n}.xlsx"
         path.write_bytes(bytes(mutant))
+        out.append(path)
+    return out
+
+
+def part_mutants(folder: Path, base: Path, count: int, seed: int = 12,
+                 parts_read: tuple[str, ...] = ("[Content_Types].xml", "_rels/.rels", "xl/workbook.xml",
+                                                "xl/_rels/workbook.xml.rels", "xl/worksheets/sheet1.xml",
+                                                "xl/sharedStrings.xml")) -> list[Path]:
+    """Copies of ``base`` with one of the parts recalculation reads changed and the zip
+    rewritten around it (valid checksums, so the reader gets to the XML): a few bytes
+    overwritten, a stretch deleted or repeated, or an attribute value replaced by one Excel
+    never writes. (Parts it does not read are copied byte for byte, broken or not.)"""
+    import random
+
+    rng = random.Random(seed)
+    with zipfile.ZipFile(base) as z:
+        parts = {name: z.read(name) for name in z.namelist()}
+    names = sorted(parts)
+    targets = [name for name in names if name in parts_read]
+    hostile = [b"-1", b"0", b"A0", b"XFD1048577", b"1e999", b"NaN", b"", b"&#10;", b"\xc3\xa9", b"99999999999999999999"]
+    out = []
+    for n in range(count):
+        name = rng.choice(targets)
+        data = bytearray(parts[name])
+        how = rng.randrange(4)
+        if how == 0:
+            for _ in range(rng.randint(1, 3)):
+                data[rng.randrange(len(data))] = rng.choice(b'<>/="\' x0-9A:#&;')
+        elif how == 1:
+            start = rng.randrange(len(data))
+            del data[start:start + rng.randint(1, 40)]
+        elif how == 2:
+            start = rng.randrange(len(data))
+            data[start:start] = data[start:start + rng.randint(1, 60)]
+        else:
+            quotes = [i for i, b in enumerate(data) if b == ord('"')]
+            if len(quotes) >= 2:
+                k = rng.randrange(len(quotes) // 2) * 2
+                data[quotes[k] + 1:quotes[k + 1]] = rng.choice(hostile)
+        path = folder / f"part_{n}.xlsx"
+        with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED) as z:
+            for other in names:
+                z.writestr(other, bytes(data) if other == name else parts[other])
         out.append(path)
     return out

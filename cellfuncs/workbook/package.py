@@ -81,6 +81,8 @@ def parse_xml(data: bytes, part: str, target: Any = None) -> Any:
         raise Refused(f"{part}: XML with a DTD or entity declaration (possible entity bomb)") from None
     except ParseError as exc:
         raise Refused(f"{part}: corrupt XML ({exc})") from None
+    except (LookupError, ValueError) as exc:  # an encoding name the parser does not know, and the like
+        raise Refused(f"{part}: corrupt XML ({_reason(exc)})") from None
 
 
 class Package:
@@ -117,10 +119,13 @@ class Package:
             raise Refused(f"{len(self.infos)} zip members; the limit is {MAX_MEMBERS}")
         total = 0
         seen: set[str] = set()
+        size = os.fstat(self.file.fileno()).st_size
         for info in self.infos:
             if info.filename in seen:
                 raise Refused(f"{info.filename}: two zip members of this name")
             seen.add(info.filename)
+            if info.header_offset < 0 or info.header_offset + info.compress_size > size:
+                raise Refused(f"{info.filename}: the zip directory places it beyond the end of the file")
             if info.flag_bits & 0x1:
                 raise Refused(f"{info.filename}: an encrypted zip member")
             if info.compress_type not in (zipfile.ZIP_STORED, zipfile.ZIP_DEFLATED):

@@ -25,6 +25,7 @@ from .package import Refused, parse_xml
 from .refs import MAX_COL, MAX_ROW, area, cell
 
 NAMESPACES = ("http://schemas.openxmlformats.org/spreadsheetml/2006/main", "http://purl.oclc.org/ooxml/spreadsheetml/main")
+CELL_TYPES = ("b", "d", "e", "inlineStr", "n", "s", "str")  # the t attribute of a cell (ST_CellType)
 MAX_FORMULAS = 1_000_000
 MAX_CELLS = 5_000_000
 
@@ -107,6 +108,7 @@ class SheetScan:
     rows: dict[int, RowSpan] = field(default_factory=dict)
     sheet_data: Span | None = None
     dimension: tuple[int, str] | None = None  # (start offset, ref)
+    not_finite: list[tuple[int, int]] = field(default_factory=list)  # value cells storing NaN, INF, 1e999, ...
 
 
 class _Scanner:
@@ -158,7 +160,9 @@ class _Scanner:
                 self._dimension(pos, attrib.get("ref", ""))
         elif d == 1 and local == "row":
             r = attrib.get("r")
-            self.row_number = int(r) if r is not None and r.isdigit() else self.row_number + 1
+            if r is not None and not r.isdigit():
+                raise Refused(f"{self.out.part}: row number {r[:20]!r} is not a number")
+            self.row_number = int(r) if r is not None else self.row_number + 1
             if not 1 <= self.row_number <= MAX_ROW:
                 raise Refused(f"{self.out.part}: row {self.row_number} is beyond Excel's {MAX_ROW} rows")
             self.row = RowSpan(pos)
@@ -262,10 +266,14 @@ class _Scanner:
         out = self.out
         out.cells[key] = self.cell
         kind = self.cell_attrs.get("t", "n")
+        if kind not in CELL_TYPES:
+            raise Refused(f"{out.part}: cell type {kind[:20]!r} is not one of {', '.join(CELL_TYPES)}")
         value = self._value(kind, self.value_text)
         if self.f_attrs is None:
             if value is not None:
                 out.values[key] = value
+                if type(value) is CellError and kind not in ("e", "s", "str", "inlineStr"):
+                    out.not_finite.append(key)
             return
         f = self.f_attrs
         self.budget[0] -= 1

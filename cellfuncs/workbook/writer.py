@@ -7,6 +7,8 @@ attributes (style), its formula and any extension, and gets its new cached value
 stores a dynamic array: ``<f t="array" ref="A1:B10">`` in the anchor, whose ``cm`` points
 at a cell-metadata record marking it dynamic (XLDAPR, ``fDynamic="1"``), and the values
 in every cell of the range. Cells of an old, larger spill are emptied (their style stays).
+A stored number that is not finite (``NaN``, ``INF``, ``1e999``) is read as #NUM! and
+written as #NUM!, so that no reader meets it as a number.
 """
 
 from __future__ import annotations
@@ -83,6 +85,7 @@ class _SheetPatch:
         at = engine.at[s]
         self.unshared = {scan.formulas[key].si for key in masters.values() if key in at and is_dynamic(engine, at[key])}
         self.bounds: Area | None = None
+        self.touched: set[tuple[int, int]] = set()  # cells already rewritten
 
     def build(self) -> bytes:
         engine, s, scan = self.engine, self.s, self.scan
@@ -100,6 +103,9 @@ class _SheetPatch:
                     k = (r, c)
                     if k != key and k not in engine.claims[s] and k not in engine.at[s]:
                         self._clear(k)
+        for key in self.scan.not_finite:  # read as #NUM!, so stored as #NUM!: no reader meets "NaN" as a number
+            if key not in self.touched:
+                self._value_cell(key, self.scan.values[key])
         self._insert_new_cells()
         self._dimension()
         return splice(self.data, self.edits)
@@ -124,6 +130,7 @@ class _SheetPatch:
                 + b"</%sc>" % p)
 
     def _replace(self, key: tuple[int, int], new: bytes | None) -> None:
+        self.touched.add(key)
         if new is not None:
             span = self.scan.cells[key]
             self.edits.append((span.start, span.end(self.data), new))
@@ -168,6 +175,7 @@ class _SheetPatch:
         self._replace(key, self._cell_bytes(key, value, b"", []))
 
     def _clear(self, key: tuple[int, int]) -> None:
+        self.touched.add(key)
         span = self.scan.cells.get(key)
         if span is None:
             return
@@ -438,7 +446,7 @@ def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], se
     if any(is_dynamic(engine, fi) for fi in range(len(engine.cells))):
         cm = _metadata(edit, book)
     for sheet in book.sheets:
-        if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index]):
+        if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index] or sheet.scan.not_finite):
             continue
         data = pkg.utf8(sheet.part)
         new = _SheetPatch(data, sheet.scan, engine, sheet.index, cm).build()
