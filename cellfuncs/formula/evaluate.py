@@ -178,13 +178,26 @@ def evaluate(node: Node, context: Context) -> Value:
     return _EVALUATORS[type(node)](node, context)
 
 
+def value_of(node: Node, context: Context) -> Value:
+    """:func:`evaluate`, with a tree too deep for Python's recursion (the parser accepts 200
+    levels; some functions take five frames a level) giving an error value, not an exception.
+
+    >>> print(value_of(parse("=" + "SUM(" * 199 + "1" + ")" * 199), SimpleContext()))
+    #VALUE! the formula nests functions too deeply to evaluate
+    """
+    try:
+        return evaluate(node, context)
+    except RecursionError:
+        return CellError(VALUE, "the formula nests functions too deeply to evaluate")
+
+
 def compute(formula: str, context: Context | None = None) -> Value:
     """Parse (cached) and evaluate ``formula``; without a context, a :class:`SimpleContext`.
 
     >>> compute('="x"&1/4'), compute("=-2^2")
     ('x0.25', 4.0)
     """
-    return evaluate(parse(formula), SimpleContext() if context is None else context)
+    return value_of(parse(formula), SimpleContext() if context is None else context)
 
 
 def collect(

@@ -38,8 +38,8 @@ from typing import Any, Callable, Iterator, Mapping, NamedTuple
 
 import numpy as np
 
-from ..errors import CALC, NA, NAME, REF, SPILL, VALUE, CellError
-from ..formula import Node, Value, evaluate
+from ..errors import CALC, NA, NAME, REF, SPILL, CellError
+from ..formula import Value, value_of
 from ..formula.budget import active, charge
 from .areas import AreaIndex, Overlap
 from .graph import components, cycle
@@ -66,8 +66,8 @@ class FormulaCell:
 class Graph(NamedTuple):
     """The dependency graph. Nodes: the units (formula cells evaluated together, a column
     group, or alone), then ``extras[k]`` as node ``len(units) + k``: a defined name seen from
-    a sheet, ``("name", key, sheet)``, or a range that formulas read, ``("area", sheet, Area)``,
-    which stands between the formulas that read it and those inside it, so a range read by a
+    a sheet, ``("name", key, sheet)``, or a range that formulas read, ``("area", sheet, (r1, c1,
+    r2, c2))``, which stands between the formulas that read it and those inside it, so a range read by a
     thousand formulas costs a thousand edges and not a thousand times its contents."""
 
     units: list[tuple[int, ...]]
@@ -93,14 +93,6 @@ class _Links:
 
 
 _UNSET = object()
-
-
-def _computed(ast: Node, context: Any) -> Value:
-    """The value of ``ast``; a tree too deep for the evaluator's recursion is an error value."""
-    try:
-        return evaluate(ast, context)
-    except RecursionError:
-        return CellError(VALUE, "the formula nests functions too deeply to evaluate")
 
 
 def quoted(sheet: str) -> str:
@@ -356,7 +348,7 @@ class Recalc:
             else:
                 ctx = _Context(self)
                 ctx.sheet = sheet  # a name's references are as written: no offset
-                value = _computed(t.ast, ctx)
+                value = value_of(t.ast, ctx)
             self.name_values[(key, sheet)] = value
         return value
 
@@ -634,7 +626,7 @@ class Recalc:
         ctx = self._context
         ctx.sheet, ctx.dr, ctx.dc = fc.sheet, fc.row - t.row, fc.col - t.col
         self.budget.start()
-        self._store(fi, _computed(t.ast, ctx))
+        self._store(fi, value_of(t.ast, ctx))
 
     def _group(self, members: tuple[int, ...]) -> None:
         first = self.cells[members[0]]
@@ -643,7 +635,7 @@ class Recalc:
         n = len(members)
         ctx.sheet, ctx.dr, ctx.dc, ctx.n = first.sheet, first.row - t.row, first.col - t.col, n
         self.budget.start(n)
-        v = _computed(t.ast, ctx)
+        v = value_of(t.ast, ctx)
         if type(v) is np.ndarray:
             if v.shape != (n, 1):
                 column = None

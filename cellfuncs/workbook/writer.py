@@ -103,9 +103,9 @@ class _SheetPatch:
                     k = (r, c)
                     if k != key and k not in engine.claims[s] and k not in engine.at[s]:
                         self._clear(k)
-        for key in self.scan.not_finite:  # read as #NUM!, so stored as #NUM!: no reader meets "NaN" as a number
+        for key in scan.not_finite:  # read as #NUM!, so stored as #NUM!: no reader meets "NaN" as a number
             if key not in self.touched:
-                self._value_cell(key, self.scan.values[key])
+                self._value_cell(key, scan.values[key])
         self._insert_new_cells()
         self._dimension()
         return splice(self.data, self.edits)
