@@ -136,6 +136,14 @@ def range_read_bomb(folder: Path) -> Path:
     return write(folder / "range_read.xlsx", {"A1": "=SUM(B2:XFC1048575)", "B2": 1, "A2": "=6*7"})
 
 
+def many_column_sums(folder: Path) -> Path:
+    """A thousand formulas each summing a whole column that one far cell makes a million rows
+    long: each within the limits of one formula, together a billion cells."""
+    cells: dict[str, object] = {f"B{r}": "=SUM(A:A)" for r in range(1, 1001)}
+    cells["A1048576"] = 1
+    return write(folder / "many_sums.xlsx", cells)
+
+
 def text_doubling_bomb(folder: Path) -> Path:
     """Each cell joins the previous one to itself: 2^60 characters by the end."""
     cells: dict[str, object] = {"A1": '="xxxxxxxx"'}

@@ -81,6 +81,16 @@ def test_a_range_one_short_of_the_sheet_edges_is_not_read_cell_by_cell(tmp_path)
     assert sheet["A1"].value == "#NUM!" and sheet["A2"].value == 42
 
 
+def test_many_formulas_within_their_limits_are_bounded_together(tmp_path):
+    # the workbook limit lowered from its default (64 such sums) to keep the test short
+    code, err, sheet = one(tmp_path, hw.many_column_sums, "--max-workbook-work", "4200000")
+    assert code == 1
+    assert [sheet[f"B{r}"].value for r in range(1, 6)] == [1, 1, 1, 1, "#NUM!"]
+    assert "S!B5: #NUM! the formulas of the workbook would build more than 4,200,000 array cells in all, the limit " \
+           "per workbook (--max-workbook-work)" in err
+    assert sheet["B1000"].value == "#NUM!"
+
+
 def test_doubling_a_text_stops_at_the_characters_a_cell_holds(tmp_path):
     code, err, sheet = one(tmp_path, hw.text_doubling_bomb)
     assert code == 1

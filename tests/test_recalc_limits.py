@@ -67,6 +67,17 @@ def test_the_work_of_one_formula_is_counted_over_all_its_arrays(tmp_path):
     assert cli(str(path), "--in-place", "--max-formula-work", "40")[0] == 0 and value(path, "C1") == 165
 
 
+def test_the_work_of_all_formulas_of_a_workbook_is_counted(tmp_path):
+    cells: dict[str, object] = {f"A{r}": 1.0 for r in range(1, 11)}
+    cells.update({f"C{r}": "=SUM(A1:A10)" for r in range(1, 6)})  # 10 cells each
+    path = book(tmp_path, cells)
+    code, _, err = cli(str(path), "--in-place", "--max-workbook-work", "30")
+    assert code == 1 and [value(path, f"C{r}") for r in range(1, 6)] == [10, 10, 10, "#NUM!", "#NUM!"]
+    assert "S!C4: #NUM! the formulas of the workbook would build more than 30 array cells in all, the limit per " \
+           "workbook (--max-workbook-work)" in err
+    assert cli(str(path), "--in-place", "--max-workbook-work", "50")[0] == 0 and value(path, "C5") == 10
+
+
 def test_spilled_cells_of_a_workbook_are_counted(tmp_path):
     path = book(tmp_path, {"A1": "={1,2;3,4}", "D1": "={1,2,3}"})
     code, _, err = cli(str(path), "--in-place", "--max-spill-cells", "6")

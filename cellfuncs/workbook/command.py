@@ -45,6 +45,8 @@ LIMIT_HELP = {
                    "a table), a spill; over it the cell is #NUM! naming the limit",
     "formula_work": "cells of all the arrays one formula (or defined name) builds while it is evaluated; "
                     "over it the cell is #NUM! naming the limit",
+    "workbook_work": "cells of all the arrays all the formulas of one workbook build; past it the formulas "
+                     "still to come are #NUM! naming the limit",
     "spill_cells": "cells the array formulas and spills of one workbook cover: stored array-formula ranges "
                    "beyond it refuse the file, a spill that would pass it is #SPILL!",
     "dependencies": "dependencies between the formulas, names and ranges of one workbook (each counted "
@@ -65,7 +67,8 @@ link to its target.
 
 Limits on the work one workbook may ask for, counted before the work is done (the options
 above raise them): {DEFAULTS.array_cells:,} cells per array, {DEFAULTS.formula_work:,} array cells per formula,
-{DEFAULTS.spill_cells:,} spilled cells per workbook, {DEFAULTS.dependencies:,} dependencies per workbook. Texts
+{DEFAULTS.workbook_work:,} per workbook, {DEFAULTS.spill_cells:,} spilled cells per workbook,
+{DEFAULTS.dependencies:,} dependencies per workbook. Texts
 longer than {MAX_TEXT:,} characters and formulas longer than {MAX_FORMULA_TEXT:,} are errors (Excel's limits);
 stored numbers that are not finite (NaN, INF, 1e999) are #NUM!.
 

@@ -7,7 +7,10 @@ line. What the file *declares* (array-formula ranges, the dependencies between f
 is checked while it is read: over a limit the file is refused, naming the limit and the
 cell. What one formula *computes* (a range it reads, an array an operator or function
 builds, a spill) is checked before each array is built: over a limit, that cell holds an
-error value naming the limit and the rest of the workbook is computed.
+error value naming the limit and the rest of the workbook is computed. The work of all
+formulas together is bounded too, so many formulas each within their limit (a thousand
+sums of a whole column a million rows long) cannot add up to hours: past that limit,
+the formulas still to come hold its error value.
 
 >>> Limits().budget().array
 Limit(cells=1048576, option='--max-array-cells')
@@ -23,16 +26,20 @@ from ..formula.budget import Budget, Limit
 @dataclass(frozen=True)
 class Limits:
     """The defaults accept every workbook of the project's reference set with a wide margin
-    (the largest array-formula range there covers 16,384 cells)."""
+    (there, the largest array-formula range covers 16,384 cells, the largest array holds
+    16,384 cells, one formula builds at most 4,876 array cells, a workbook 191,576, and a
+    workbook has at most 20,052 dependencies)."""
 
     array_cells: int = 1_048_576  # cells of one array: a range read, a broadcast, a spill (one whole column)
     formula_work: int = 8_388_608  # cells of all the arrays one formula (or defined name) builds
+    workbook_work: int = 67_108_864  # cells of all the arrays all formulas of a workbook build (in one pass)
     spill_cells: int = 1_048_576  # cells covered by the array formulas and spills of one workbook
     dependencies: int = 10_000_000  # (formula, formula or spill it reads) pairs of one workbook
 
     def budget(self) -> Budget:
         """The per-formula budget of the formula engine."""
-        return Budget(Limit(self.array_cells, option("array_cells")), Limit(self.formula_work, option("formula_work")))
+        return Budget(Limit(self.array_cells, option("array_cells")), Limit(self.formula_work, option("formula_work")),
+                      Limit(self.workbook_work, option("workbook_work")))
 
 
 def option(field: str) -> str:
