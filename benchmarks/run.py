@@ -78,6 +78,12 @@ SCALAR_CALLS = {
     "STABLE_PHASE propane": ('STABLE_PHASE("propane", 25, 5, "degC", "bar")', 150),
     "MOLAR_VOLUME propane": ('MOLAR_VOLUME("propane", 25, 5, "", "degC", "bar", "L/mol")', 150),
     "MOLAR_VOLUME propane liquid": ('MOLAR_VOLUME("propane", 25, 15, "liquid", "degC", "bar", "L/mol")', None),
+    # carbon dioxide: its Span-Wagner equation of state (the same calls on the cubic model follow)
+    "BOIL_TEMP CO2": ('BOIL_TEMP("CO2", 50, "bar", "degC")', 50),
+    "STABLE_PHASE CO2": ('STABLE_PHASE("CO2", 40, 100, "degC", "bar")', 150),
+    "MOLAR_VOLUME CO2": ('MOLAR_VOLUME("CO2", 40, 100, "", "degC", "bar", "L/mol")', 150),
+    "MASS_DENSITY CO2": ('MASS_DENSITY("CO2", 40, 100, "", "degC", "bar")', None),
+    "MASS_DENSITY CO2 liquid": ('MASS_DENSITY("CO2", 0, 50, "liquid", "degC", "bar")', None),
 }
 
 
@@ -111,6 +117,31 @@ def scalar(repeat: int) -> None:
         print(f"  {name:30s} {seconds * 1e6:9.1f} us  {goal:18s} {flag}")
 
 
+def co2_equation_against_cubic(repeat: int) -> None:
+    """Carbon dioxide's scalar calls on its equation of state beside the same calls on the general
+    (Peng-Robinson / Rackett-Tait) model, built from the same data file without the equation."""
+    import dataclasses
+
+    from cellfuncs.substances.general.definition import load_builtin
+    from cellfuncs.substances.general.model import GeneralSubstance
+    from cellfuncs.substances import lookup
+
+    equation_model = lookup("CO2")
+    cubic_model = GeneralSubstance(dataclasses.replace(load_builtin("carbon-dioxide"), equation=""))
+    calls = {
+        "boil_temperature": lambda s: s.boil_temperature(np.array(5e6)),
+        "stable_phase": lambda s: s.stable_phase(np.array(313.15), np.array(1e7)),
+        "molar_volume": lambda s: s.molar_volume(np.array(313.15), np.array(1e7)),
+        "molar_volume liquid": lambda s: s.molar_volume(np.array(273.15), np.array(5e6), 1),
+    }
+    print("Carbon dioxide, one scalar state through the model (median): equation of state against the cubic model")
+    for name, call in calls.items():
+        call(equation_model), call(cubic_model)  # first use builds the tables
+        new = _median_seconds(lambda: call(equation_model), 200, repeat)
+        old = _median_seconds(lambda: call(cubic_model), 200, repeat)
+        print(f"  {name:22s} equation {new * 1e6:8.1f} us   cubic {old * 1e6:8.1f} us   ratio {new / old:5.2f}")
+
+
 def cold_start(repeat: int) -> None:
     command = [sys.executable, "-m", "cellfuncs", "eval", '=BOIL_TEMP("water", 1, "atm", "degC")']
     times = []
@@ -137,6 +168,8 @@ def main() -> None:
     vectorised_cubic(repeat)
     print()
     scalar(repeat)
+    print()
+    co2_equation_against_cubic(repeat)
     print()
     cold_start(repeat)
     print()

@@ -1,8 +1,8 @@
 """The ``cellfuncs`` command: evaluate formulas, list the functions, recalculate workbooks, set up Excel.
 
 Exit status: 0 clean; 1 an error value in a result; 2 a usage problem or a
-formula that does not parse (``recalc``: a refused file); 3 an internal failure;
-4 (``recalc``) an output that could not be written.
+formula that does not parse (``eval`` still evaluates the others; ``recalc``: a
+refused file); 3 an internal failure; 4 (``recalc``) an output that could not be written.
 """
 
 from __future__ import annotations
@@ -43,6 +43,13 @@ def _parser() -> argparse.ArgumentParser:
     evaluate.add_argument("formulas", nargs="+", metavar="FORMULA")
     evaluate.add_argument("--json", action="store_true", help="print a JSON list of {formula, value, error}")
     commands.add_parser("functions", help="list the sheet functions with their signatures")
+    commands.add_parser(
+        "units",
+        help="list the unit names by quantity",
+        description="List the units the functions accept, by quantity. Any unit takes the SI prefixes and "
+        "combines with * / ** (kg/m3, kJ/(kg*K)); case does not matter where it is unambiguous; a gauge unit "
+        "may state its atmosphere as a pressure or a standard-atmosphere altitude: barg@83kPa, psig@1600m.",
+    )
     from .workbook import command as recalc_command
 
     recalc = commands.add_parser(
@@ -101,22 +108,31 @@ def _errors(value: Any) -> list:
     return [c for c in cells if isinstance(c, CellError)]
 
 
+# quotes that word processors and chat tools put in place of the ones a formula needs
+_TYPOGRAPHIC_QUOTES = str.maketrans({"\u201c": '"', "\u201d": '"', "\u201e": '"', "\u201f": '"', "\u2033": '"',
+                                     "\u2018": "'", "\u2019": "'", "\u201a": "'", "\u201b": "'"})
+
+
 def _evaluate(formulas: Sequence[str], as_json: bool) -> int:
+    """Each formula on its own: its value, or its error; one that does not parse spoils no other."""
     import numpy as np
 
-    from .formula import FormulaSyntaxError, compute, parse
+    from .errors import CellError
+    from .formula import FormulaSyntaxError, compute
     from .formula.evaluate import SimpleContext
     from .sheet import FUNCTIONS
 
-    try:
-        for formula in formulas:
-            parse(formula)
-    except FormulaSyntaxError as exc:
-        print(f"cellfuncs eval: {formula!r} does not parse: {exc}", file=sys.stderr)
-        return 2
     context = SimpleContext({name: entry.call for name, entry in FUNCTIONS.items()})
-    results = [compute(formula, context) for formula in formulas]
-    status = 1 if any(_errors(value) for value in results) else 0
+    results: list[Any] = []
+    unparsed = False
+    for formula in formulas:
+        try:
+            results.append(compute(formula.translate(_TYPOGRAPHIC_QUOTES), context))
+        except FormulaSyntaxError as exc:
+            unparsed = True
+            results.append(CellError("#VALUE!", f"does not parse: {exc}"))
+            print(f"cellfuncs eval: {formula!r} does not parse: {exc}", file=sys.stderr)
+    status = 2 if unparsed else 1 if any(_errors(value) for value in results) else 0
     if as_json:
         records = []
         for formula, value in zip(formulas, results):
@@ -149,23 +165,40 @@ def _functions() -> int:
     return 0
 
 
+def _units() -> int:
+    from .units import catalogue
+
+    for quantity, names in catalogue().items():
+        print(f"{quantity}:")
+        for name in names:
+            print(f"  {name}")
+    print()
+    print("Prefixes combine with every unit (kPa, MPa, mbar, cm3); units combine with * / ** (kg/m3, kJ/(kg*K)).")
+    print("Gauge units (barg, psig, kPag, MPag, atg) refer to 101.325 kPa unless the text states the site's")
+    print("atmosphere: barg@83kPa, psig@12.1psia, or an altitude in the ISO 2533 standard atmosphere: barg@1600m.")
+    return 0
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
         if args.command == "eval":
             return _evaluate(args.formulas, args.json)
         if args.command == "recalc":
-            from .workbook.command import run
-
-            from .workbook.command import limits_of
+            from .workbook.command import limits_of, run
 
             return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance, limits_of(args),
                        args.split_hard_links)
+        if args.command == "units":
+            return _units()
         if args.command == "excel-setup":
             from .excel_setup import run as excel_setup
 
             return excel_setup(args.print_only)
         return _functions()
+    except BrokenPipeError:  # the reader stopped early (| head): nothing more to say
+        sys.stderr.close()
+        return 0
     except Exception as exc:  # an internal failure, not a cell error
         print(f"cellfuncs: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
         return 3

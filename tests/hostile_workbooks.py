@@ -136,6 +136,17 @@ def range_read_bomb(folder: Path) -> Path:
     return write(folder / "range_read.xlsx", {"A1": "=SUM(B2:XFC1048575)", "B2": 1, "A2": "=6*7"})
 
 
+def builtin_bombs(folder: Path) -> Path:
+    """Built-ins asked for more than a cell or the budget holds: a text substituted into
+    itself, texts joined past a cell's length, a column times a row by MMULT, a huge identity
+    matrix; and a large but allowed SEQUENCE."""
+    return write(folder / "builtins.xlsx", {
+        "A1": '=REPT("x",30000)', "C1": "=A1", "C2": "=A1",
+        "B1": '=SUBSTITUTE(A1,"x",A1)', "B2": '=TEXTJOIN(",",TRUE,C1:C2)',
+        "B3": "=SUM(MMULT(SEQUENCE(100000),SEQUENCE(1,16384)))", "B4": "=SUM(MUNIT(4096))",
+        "B5": "=SUM(SEQUENCE(1000,1000))"})
+
+
 def many_column_sums(folder: Path) -> Path:
     """A thousand formulas each summing a whole column that one far cell makes a million rows
     long: each within the limits of one formula, together a billion cells."""

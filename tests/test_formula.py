@@ -364,9 +364,9 @@ def test_iferror_evaluates_fallback_only_on_error():
         calls.append(1)
         return 0.0
 
-    assert calc("=IFERROR(1, COUNT())", functions={"COUNT": count}) == 1.0
+    assert calc("=IFERROR(1, PROBE())", functions={"PROBE": count}) == 1.0
     assert not calls
-    assert calc("=IFERROR(1/0, COUNT())", functions={"COUNT": count}) == 0.0
+    assert calc("=IFERROR(1/0, PROBE())", functions={"PROBE": count}) == 0.0
     assert calls == [1]
 
 
@@ -554,7 +554,8 @@ def test_text(formula, text):
 
 
 def test_text_errors_and_arrays():
-    assert calc('=TEXT(1, "yyyy")').code == VALUE  # engine contract: unsupported format
+    assert calc('=TEXT(1.5, "# ?/?")').code == VALUE  # engine contract: fractions are not supported yet
+    assert calc('=TEXT(1, "yyyy")') == "1900"  # Excel behaviour (common practice): day 1 is 1900-01-01
     assert calc('=TEXT(1/0, "0")').code == DIV0
     assert calc('=TEXT(1E307, "0%")').code == NUM
     assert values(calc('=TEXT({1,2.5}, "0.0")')) == [["1.0", "2.5"]]
@@ -564,7 +565,9 @@ def test_every_builtin_is_tested():
     import inspect
     import sys
 
-    source = inspect.getsource(sys.modules[__name__])
+    from tests import test_builtins  # noqa: F401  (examples of Excel's documentation)
+
+    source = inspect.getsource(sys.modules[__name__]) + inspect.getsource(sys.modules["tests.test_builtins"])
     untested = [name for name in BUILTINS if f"{name}(" not in source]
     assert not untested
 

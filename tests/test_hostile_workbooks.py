@@ -81,8 +81,18 @@ def test_a_range_one_short_of_the_sheet_edges_is_not_read_cell_by_cell(tmp_path)
     assert sheet["A1"].value == "#NUM!" and sheet["A2"].value == 42
 
 
+def test_built_ins_asked_for_too_much_are_errors_counted_before_the_work(tmp_path):
+    code, err, sheet = one(tmp_path, hw.builtin_bombs)
+    assert code == 1
+    assert [sheet[f"B{r}"].value for r in range(1, 5)] == ["#VALUE!"] * 2 + ["#NUM!"] * 2
+    assert "S!B3: #NUM! the 100000x16384 array would have 1,638,400,000 cells" in err
+    assert "S!B4: #NUM! the 4096x4096 array would have 16,777,216 cells" in err
+    assert sheet["B5"].value == 500_000_500_000  # the sum of 1 .. 10^6
+    assert len(sheet["A1"].value) == 30_000
+
+
 def test_many_formulas_within_their_limits_are_bounded_together(tmp_path):
-    # the workbook limit lowered from its default (64 such sums) to keep the test short
+    # the workbook limit lowered from its default (256 such sums) to keep the test short
     code, err, sheet = one(tmp_path, hw.many_column_sums, "--max-workbook-work", "4200000")
     assert code == 1
     assert [sheet[f"B{r}"].value for r in range(1, 6)] == [1, 1, 1, 1, "#NUM!"]

@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 from cellfuncs.substances.water import if97, if97_saturation
-from cellfuncs.substances.water.if97 import region1, region2, region5
+from cellfuncs.substances.water.if97 import region1, region2, region2_metastable, region5
 from cellfuncs.substances.water.if97_saturation import (
     b23_pressure,
     b23_temperature,
@@ -43,6 +43,10 @@ GIBBS_TABLES = [
     (region2, 300.0, 0.0035, "0.394913866e2", "0.254991145e4", "0.241169160e4", "0.852238967e1", "0.191300162e1", "0.427920172e3"),
     (region2, 700.0, 0.0035, "0.923015898e2", "0.333568375e4", "0.301262819e4", "0.101749996e2", "0.208141274e1", "0.644289068e3"),
     (region2, 700.0, 30.0, "0.542946619e-2", "0.263149474e4", "0.246861076e4", "0.517540298e1", "0.103505092e2", "0.480386523e3"),
+    # IAPWS R7-97(2012), Table 18, metastable-vapour equation (from memory of Table 18)
+    (region2_metastable, 450.0, 1.0, "0.192516540", "0.276881115e4", "0.257629461e4", "0.656660377e1", "0.276349265e1", "0.498408101e3"),
+    (region2_metastable, 440.0, 1.0, "0.186212297", "0.274015123e4", "0.255393894e4", "0.650218759e1", "0.298166443e1", "0.489363295e3"),
+    (region2_metastable, 450.0, 1.5, "0.121685206", "0.272134539e4", "0.253881758e4", "0.629170440e1", "0.362795578e1", "0.481941819e3"),
     # IAPWS R7-97(2012), Table 42, region 5 (from memory of Table 42)
     (region5, 1500.0, 0.5, "0.138455090e1", "0.521976855e4", "0.452749310e4", "0.965408875e1", "0.261609445e1", "0.917068690e3"),
     (region5, 1500.0, 30.0, "0.230761299e-1", "0.516723514e4", "0.447495124e4", "0.772970133e1", "0.272724317e1", "0.928548002e3"),

@@ -236,7 +236,7 @@ def test_libreoffice_recalculating_agrees_on_every_builtin_only_cell(rebuilt, tm
         sheet, ref = PACK_CELL[ours_path.name]  # recalculated too: LibreOffice does not know the pack's functions
         assert theirs[sheet][ref].value == "#NAME?", (ours_path.name, sheet, ref)
     assert not wrong, wrong[:10]
-    assert checked >= 100, checked
+    assert checked >= 90, checked  # 93 built-in-only formula cells in the four workbooks
 
 
 # ---- (iii) the charts and the coloured maps render ----------------------------------------------
@@ -276,8 +276,9 @@ def test_the_maps_and_charts_render_in_colour(rebuilt, tmp_path):
     assert len(maps) == 4  # water map, water lines, CO2 map, CO2 lines: one page each
     palette = {name: fill for name, fill, *_ in build.PALETTE}
     # each colour the maps use covers many pixels of its map page (legend swatches alone are small)
-    for page, used in ((maps[0], ("Frost", "Cobalt", "Lagoon", "Dune", "Apricot", "Heather")),
-                       (maps[2], ("Frost", "Lagoon", "Dune", "Apricot", "Heather"))):
+    for page, used in ((maps[0], ("ice Ih", "ice III, ice V, ice VI, ice VII", "liquid", "vapor", "gas",
+                                  "supercritical fluid")),
+                       (maps[2], ("solid", "liquid", "vapor", "gas", "supercritical fluid"))):
         for name in used:
             assert _pixels_near(page, palette[name]) > 400, name
     # the charts: their triple-point marker is drawn (the critical point is black, like text)

@@ -444,10 +444,10 @@ def test_errors_propagate_and_iferror_catches_them(tmp_path):
 
 
 def test_an_unknown_built_in_is_name_error_naming_it(tmp_path):
-    path = one_sheet(tmp_path, {"A1": "=XLOOKUP(1,B1:B2,C1:C2)", "A2": "=_xlfn.XLOOKUP(1,B1:B2,C1:C2)"})
+    path = one_sheet(tmp_path, {"A1": "=CUBEVALUE(1,B1:B2,C1:C2)", "A2": "=_xlfn.CUBEVALUE(1,B1:B2,C1:C2)"})
     code, _, err = cli(str(path))
     assert code == 1
-    assert "S!A1: #NAME? unknown function XLOOKUP" in err and "S!A2: #NAME? unknown function XLOOKUP" in err
+    assert "S!A1: #NAME? unknown function CUBEVALUE" in err and "S!A2: #NAME? unknown function CUBEVALUE" in err
 
 
 def test_pack_functions_with_file_format_prefixes(tmp_path):
@@ -540,6 +540,24 @@ def test_shared_formulas_as_excel_stores_them(tmp_path):
     ws = values(path)
     assert [ws[f"B{i}"].value for i in (1, 2, 3)] == [10.0, 20.0, 30.0]
     assert '<f t="shared" si="0"/>' in sheet(path)  # the formula storage is kept
+
+
+def test_volatile_markers_inside_a_legacy_array_range_are_cells_of_the_array(tmp_path):
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    for i in range(1, 4):
+        ws.cell(i, 1, float(i))
+    ws["C1"] = ArrayFormula("C1:C3", "=A1:A3*2")
+    path = tmp_path / "marked.xlsx"
+    wb.save(path)
+    # Excel writes <f ca="1"/> into the other cells of a volatile array formula's range
+    xml = sheet(path)
+    for r in (2, 3):
+        xml = xml.replace(f'<c r="A{r}" t="n"><v>{r}</v></c>', f'<c r="A{r}" t="n"><v>{r}</v></c><c r="C{r}"><f ca="1"/></c>')
+    rewrite(path, {"xl/worksheets/sheet1.xml": xml.encode()})
+    code, _, err = cli(str(path), "--in-place")
+    assert code == 0, err
+    assert [values(path)[f"C{i}"].value for i in range(1, 4)] == [2.0, 4.0, 6.0]
 
 
 def test_legacy_array_formula_fills_its_range(tmp_path):

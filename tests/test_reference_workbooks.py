@@ -2,9 +2,9 @@
 
 The reference set (../shared/excel-reference/: 400 workbooks last saved by Excel, from the
 public test suites of Apache POI, IronCalc and xlcalculator; see its README.md) is read
-where it lies, never copied here. The test looks for it beside the project folder or
-beside one of its parents. Absent, the test is skipped with the reason, except under
-CI=true, where its absence is a failure.
+where it lies, never copied here, found as the conformance score finds it
+(cellfuncs/workbook/conformance.py). Absent, the test is skipped with the reason, except
+under CI=true, where its absence is a failure.
 
 A dry run (nothing written) of all of them, split over a few processes each under the same
 1 GiB address-space limit as the hostile corpus (tests/test_hostile_workbooks.py): no file
@@ -17,28 +17,19 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
-from pathlib import Path
 
 import pytest
 
+from cellfuncs.workbook.conformance import default_folder
 from hostile_workbooks import ENV, WATCHDOG, limit_memory
-
-ROOT = Path(__file__).resolve().parents[1]
-
-
-def reference_folder() -> Path | None:
-    for folder in ROOT.parents:
-        candidate = folder / "shared" / "excel-reference"
-        if candidate.is_dir():
-            return candidate
-    return None
 
 
 def test_every_reference_workbook_recalculates_under_the_default_limits():
-    folder = reference_folder()
+    folder = default_folder()
     if folder is None:
-        message = f"the Excel reference workbooks (shared/excel-reference beside {ROOT} or a parent) are absent"
-        if os.environ.get("CI", "").lower() == "true":
+        message = ("the Excel reference workbooks are absent (shared/excel-reference beside the project or a "
+                   "parent, or $CELLFUNCS_EXCEL_REFERENCE)")
+        if os.environ.get("CI") == "true":
             pytest.fail(message)
         pytest.skip(message)
     files = sorted(str(p) for p in folder.glob("*/*.xls[xm]"))

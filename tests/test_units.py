@@ -223,3 +223,104 @@ def test_parsing_is_cached():
     first = conversion("kPag", PRESSURE)
     assert conversion("kPag", PRESSURE) is first
     assert conversion("degF", TEMPERATURE) is conversion("degF", TEMPERATURE)
+
+
+# --- unit texts as engineers type them ---------------------------------------------------------
+
+@pytest.mark.parametrize("typed, meant", [
+    ("Bar", "bar"), ("BARG", "barg"), ("kpa", "kPa"), ("KPA", "kPa"), ("PSIG", "psig"), ("Psia", "psia"),
+    ("DEGC", "degC"), ("degf", "degF"), ("mmhg", "mmHg"), ("ATM", "atm"), ("kj/kg", "kJ/kg"),
+])
+def test_case_does_not_matter_where_it_is_unambiguous(typed, meant):
+    kind = TEMPERATURE if "deg" in meant else MOLAR_ENERGY if "J" in meant else PRESSURE
+    assert conversion(typed, kind) == conversion(meant, kind)
+
+
+@pytest.mark.parametrize("typed, candidates", [("mpa", ("MPa", "mPa")), ("MBAR", ("Mbar", "mbar"))])
+def test_an_ambiguous_case_lists_the_candidates(typed, candidates):
+    with pytest.raises(UnitError) as info:
+        conversion(typed, PRESSURE)
+    for candidate in candidates:
+        assert candidate in str(info.value)
+
+
+# technical atmosphere 1 kgf/cm2 = 9.806 65 E+04 Pa, exact; conventional water columns 1000 kg/m3 x g_n:
+# mmH2O 9.806 65 Pa exact, inH2O 2.490 889 E+02 Pa -- NIST SP 811 (2008), App. B.8 (from memory of App. B.8).
+# "kg/cm2" on plant gauges and data sheets means kgf/cm2 (common practice).
+@pytest.mark.parametrize("text, factor, offset", [
+    ("bar(g)", 1e5, ATM), ("bar (a)", 1e5, 0.0), ("psi(g)", LB * G_N / INCH**2, ATM), ("kPa(g)", 1e3, ATM),
+    ("kg/cm2", G_N * 1e4, 0.0), ("kg/cm²", G_N * 1e4, 0.0), ("kg/cm2g", G_N * 1e4, ATM), ("kgf/cm2g", G_N * 1e4, ATM),
+    ("kg/cm2(g)", G_N * 1e4, ATM), ("KGF/CM2A", G_N * 1e4, 0.0), ("mmH2O", G_N, 0.0), ("inH2O", 249.0889, 0.0),
+])
+def test_plant_spellings_of_pressure(text, factor, offset):
+    c = conversion(text, PRESSURE)
+    assert c.scale == pytest.approx(factor, rel=printed(249.0889, 7) if "in" in text else EXACT)
+    assert c.offset == offset
+
+
+# US gallon = 231 in3 = 3.785 411 784 E-03 m3, exact; Btu (IT) = 1.055 055 852 62 E+03 J, exact
+# (NIST SP 811 (2008), App. B.8, from memory of App. B.8)
+def test_trade_units_of_density_and_energy():
+    assert conversion("lb/gal", DENSITY).scale == pytest.approx(LB / 3.785411784e-3, rel=EXACT)
+    btu_per_lb = conversion("BTU/lbm", MOLAR_ENERGY)
+    assert btu_per_lb.alternate and btu_per_lb.scale == pytest.approx(1055.05585262 / LB, rel=EXACT)
+
+
+# --- the site's atmosphere for gauge units -----------------------------------------------------
+
+def test_a_gauge_unit_may_state_its_atmosphere_as_a_pressure():
+    assert conversion("barg@83kPa", PRESSURE).to_si(10.0) == pytest.approx(10e5 + 83e3, rel=EXACT)
+    assert conversion("psig @ 12.1 psia", PRESSURE).offset == pytest.approx(12.1 * LB * G_N / INCH**2, rel=EXACT)
+    # the same number in gauge units is a different absolute pressure, and so a different boiling point
+    assert BOIL_TEMP("water", 10, "barg@83kPa") < BOIL_TEMP("water", 10, "barg")
+
+
+# U.S. Standard Atmosphere 1976, Table I, pressures at geometric altitudes (identical to ISO 2533:1975
+# below 11 km); from memory of the table's five printed digits.
+@pytest.mark.parametrize("altitude, pascal", [(0, 101325.0), (1000, 89876.0), (2000, 79501.0), (5000, 54048.0),
+                                              (11000, 22700.0)])
+def test_a_gauge_unit_may_state_its_atmosphere_as_an_altitude(altitude, pascal):
+    assert conversion(f"barg@{altitude}m", PRESSURE).offset == pytest.approx(pascal, rel=printed(pascal, 5))
+    assert units.standard_atmosphere(float(altitude)) == pytest.approx(pascal, rel=printed(pascal, 5))
+
+
+def test_altitude_in_feet():
+    assert conversion("psig@5000ft", PRESSURE).offset == pytest.approx(units.standard_atmosphere(5000 * FT), rel=EXACT)
+
+
+@pytest.mark.parametrize("text, words", [
+    ("bara@83kPa", "gauge pressure unit"), ("barg@", "after '@'"), ("barg@5psig", "absolute pressure"),
+    ("barg@20000m", "outside the standard atmosphere"), ("barg@-3kPa", "positive"),
+])
+def test_bad_atmospheres_say_why(text, words):
+    with pytest.raises(UnitError, match=words):
+        conversion(text, PRESSURE)
+
+
+def test_units_command_lists_every_quantity(capsys):
+    from cellfuncs.cli import main
+
+    assert main(["units"]) == 0
+    out = capsys.readouterr().out
+    for heading in ("temperature:", "pressure:", "plant spellings:", "barg@1600m"):
+        assert heading in out
+
+
+# --- the usual units without pint ----------------------------------------------------------------
+
+def test_the_common_unit_table_is_what_pint_computes_from_units_txt():
+    from importlib import resources
+
+    stored = resources.files("cellfuncs").joinpath("data", "unit_table.toml").read_text(encoding="utf-8")
+    assert stored == units.common_table_text(), "regenerate: python -m cellfuncs.units > cellfuncs/data/unit_table.toml"
+
+
+def test_a_formula_in_common_units_does_not_import_pint():
+    import subprocess
+    import sys
+
+    code = ("import sys; from cellfuncs.sheet.functions import BOIL_TEMP, MASS_DENSITY; "
+            "BOIL_TEMP('water', 1, 'atm', 'degC'); MASS_DENSITY('water', 20, 5, '', 'degC', 'barg', 'kg/m3'); "
+            "print('pint' in sys.modules)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert done.stdout.strip() == "False", done.stdout + done.stderr

@@ -242,13 +242,17 @@ def grid():
 def test_lowest_chemical_potential_is_the_stable_phase(grid, a, b):
     _, _, mu, stable, near = grid
     both = np.isfinite(mu[a]) & np.isfinite(mu[b]) & ~near
+    # where a third phase is also evaluated (named metastable states: superheated or supercooled
+    # liquid, supersaturated vapour), the stable phase is the lowest of all of them
+    mus = np.stack([mu[phase] for phase in PHASES])
+    lowest = np.asarray(PHASES, dtype=object)[np.argmin(np.where(np.isfinite(mus), mus, np.inf), axis=0)]
+    assert (stable[both] == lowest[both]).all()
+    pair = both & np.isin(stable, (a, b))
     lower = np.where(mu[a] < mu[b], a, b)
-    assert (stable[both] == lower[both]).all()
-    # The formulations refuse superheated and supercooled liquid, supersaturated vapour and
-    # superheated ice, so only ice Ih below its sublimation pressure overlaps another phase;
-    # there the cross-check runs on many states.
-    if (a, b) == ("ice Ih", "vapor"):
-        assert both.sum() > 500
+    assert (stable[pair] == lower[pair]).all()
+    # metastable liquid and vapour overlap the stable phases near the lines; ice Ih below its
+    # sublimation pressure overlaps the vapour on many states
+    assert both.sum() > (500 if (a, b) == ("ice Ih", "vapor") else 50)
 
 
 def test_the_stable_phase_has_its_own_formulation(grid):
@@ -368,7 +372,10 @@ def test_ice_v_has_no_volume_formulation():
 
 @pytest.mark.parametrize("T, p, phase, words", [
     (250.0, ATM, "liquid", "below its melting temperature"),  # supercooled liquid
-    (400.0, 1e5, "liquid", "below its vapour pressure"),  # superheated liquid
+    (400.0, 1e5, "liquid", "superheated by more than 10 K"),  # superheated liquid beyond the margin
+    (243.15, ATM, "liquid", "supercooled by more than 25 K"),
+    (260.0, 100.0, "liquid", "below the triple-point pressure"),
+    (400.0, 20e6, "vapor", "covered to 1e+07 Pa only"),
     (300.0, 1e5, "vapor", "supersaturated"),
     (250.0, 1e5, "vapor", "supersaturated"),
     (150.0, 1e-8, "vapor", "below 200 K"),
@@ -708,3 +715,39 @@ def test_saturation_margins_broadcast_a_column_of_temperatures_against_a_row_of_
     assert out.shape == (2, 2)
     t_sat = BOIL_TEMP("water", [[1.0, 2.0]], "atm", "degC")
     assert np.allclose(out.astype(float), t_sat - np.array([[90.0], [100.0]]), rtol=1e-14)
+
+
+# --- metastable states a user names -------------------------------------------------------------
+
+def test_supersaturated_vapour_follows_the_metastable_vapour_equation():
+    # IAPWS R7-97(2012), Table 18: v = 0.192516540 m3/kg at 450 K, 1 MPa (from memory of Table 18)
+    v = MOLAR_VOLUME(W, 450.0, 1e6, "vapor", "K", "Pa", "m3/kg")
+    assert v == pytest.approx(0.192516540, rel=5e-9)
+    assert STABLE_PHASE(W, 450.0, 1e6) == "liquid"
+
+
+def test_vapour_just_above_its_vapour_pressure_is_continuous_with_region_2():
+    # the metastable-vapour equation joins IF97 region 2 on the saturation line within IF97's
+    # consistency (common practice: the release states both equations' agreement there)
+    T = np.linspace(300.0, 580.0, 15)
+    p = num(BOIL_PRESSURE(W, T))
+    below = num(MOLAR_VOLUME(W, T, p * (1 - 1e-7), "vapor"))
+    above = num(MOLAR_VOLUME(W, T, p * (1 + 1e-7), "vapor"))
+    assert np.abs(above / below - 1).max() < 1e-3
+
+
+def test_superheated_liquid_near_saturation_is_region_1():
+    # 101 degC at 1 atm: 1 K above saturation; region 1 continues smoothly through the line
+    rho = MASS_DENSITY(W, 101.0, 1.0, "liquid", "degC", "atm")
+    at_line = MASS_DENSITY(W, 100.0, 1.0, "liquid", "degC", "atm")
+    assert 0.0 < at_line - rho < 1.0  # the liquid keeps expanding, by about 0.08 % per kelvin
+    assert STABLE_PHASE(W, 101.0, 1.0, "degC", "atm") == "vapor"
+
+
+# Densities of supercooled water at 0.1 MPa, Hare and Sorensen, J. Chem. Phys. 87, 4840 (1987),
+# Table I (from memory of the table): 0.99926 g/cm3 at -5 degC, 0.99813 at -10 degC, 0.99355 at -20 degC
+@pytest.mark.parametrize("celsius, measured", [(-5.0, 999.26), (-10.0, 998.13), (-20.0, 993.55)])
+def test_supercooled_liquid_matches_measured_densities(celsius, measured):
+    rho = MASS_DENSITY(W, celsius, 0.1, "liquid", "degC", "MPa")
+    assert rho == pytest.approx(measured, rel=2e-4)
+    assert STABLE_PHASE(W, celsius, 0.1, "degC", "MPa") == "ice Ih"

@@ -10,6 +10,7 @@ before and after the change.
 
 from __future__ import annotations
 
+import math
 import re
 import shutil
 import subprocess
@@ -138,3 +139,138 @@ def test_phase_map_starting_at_200_c_shows_no_ice(tmp_path):
     assert (before[0], after[0]) == (-60, 200)
     assert any(v.startswith("ice") for v in before[1:])
     assert set(after[1:]) == {"liquid", "vapor"}  # 200 to 280 °C: below the critical temperature, above any ice
+
+
+# ---- legibility: what a reader sees on screen and on paper ---------------------------------------
+# Widths in column-width units (the width of "0" in the workbook's font), estimated per character
+# for a proportional sans font (common practice: narrow i, l, punctuation; wide m, w, capitals).
+_NARROW, _SLIM, _WIDE = set("il.,:;|!'`"), set("fjrtI()[]- /"), set("mwMW@%")
+
+
+def _text_width(text: str, size: float, bold: bool) -> float:
+    units = sum(0.45 if c in _NARROW else 0.65 if c in _SLIM else 1.4 if c in _WIDE else
+                1.15 if c.isupper() else 1.0 for c in text)
+    return units * size / 11 * (1.08 if bold else 1.0)
+
+
+def _books():
+    for name in NAMES:
+        path = FOLDER / name
+        yield name, openpyxl.load_workbook(path), openpyxl.load_workbook(path, data_only=True)
+
+
+def _span(ws, cell) -> tuple[float, float]:
+    """(width in units, height in points) of the cell or the merged range it starts."""
+    from openpyxl.utils import get_column_letter
+
+    first_col = last_col = cell.column
+    first_row = last_row = cell.row
+    for merged in ws.merged_cells.ranges:
+        if merged.min_row == cell.row and merged.min_col == cell.column:
+            last_col, last_row = merged.max_col, merged.max_row
+    width = sum(ws.column_dimensions[get_column_letter(c)].width or 8.43 for c in range(first_col, last_col + 1))
+    height = sum(ws.row_dimensions[r].height or 15.0 for r in range(first_row, last_row + 1))
+    return width, height
+
+
+def test_no_text_is_wider_than_its_cell():
+    too_wide = []
+    for name, _, values in _books():
+        for ws in values.worksheets:
+            for row in ws.iter_rows():
+                for cell in row:
+                    if not isinstance(cell.value, str) or not cell.value:
+                        continue
+                    font = cell.font
+                    need = _text_width(cell.value, font.sz or 11, bool(font.b))
+                    width, height = _span(ws, cell)
+                    if cell.alignment.wrap_text:  # wrapped: the row must be tall enough for its lines
+                        lines = math.ceil(need / (width * 0.95))
+                        if lines * (font.sz or 11) * 1.2 > height + 1:
+                            too_wide.append((name, ws.title, cell.coordinate, cell.value[:40], "rows"))
+                    elif need > width:
+                        too_wide.append((name, ws.title, cell.coordinate, cell.value[:40], round(need / width, 2)))
+    assert not too_wide, too_wide
+
+
+def test_no_font_is_below_8_points_and_nothing_shrinks_to_fit():
+    small = []
+    for name, formulas, _ in _books():
+        for ws in formulas.worksheets:
+            for row in ws.iter_rows():
+                for cell in row:
+                    if cell.value is not None and ((cell.font.sz or 11) < 8 or cell.alignment.shrink_to_fit):
+                        small.append((name, ws.title, cell.coordinate))
+            for rules in ws.conditional_formatting:
+                for rule in rules.rules:
+                    if rule.dxf is not None and rule.dxf.font is not None and (rule.dxf.font.sz or 11) < 8:
+                        small.append((name, ws.title, str(rules.sqref)))
+    assert not small, small
+
+
+def test_every_sheet_prints_one_page_wide_at_a_readable_scale():
+    build = _build_module()
+    for name, formulas, _ in _books():
+        for ws in formulas.worksheets:
+            setup = ws.page_setup
+            assert ws.sheet_properties.pageSetUpPr.fitToPage, (name, ws.title)
+            assert (setup.fitToWidth, setup.fitToHeight) == (1, 0), (name, ws.title)
+            area = ws.print_area
+            last = ws.max_column
+            if area:  # the printed part of a sheet whose data continue beyond it
+                from openpyxl.utils import column_index_from_string
+
+                last = column_index_from_string(area.split(":")[-1].lstrip("$").rstrip("0123456789").replace("$", ""))
+            from openpyxl.utils import get_column_letter
+
+            width = sum(ws.column_dimensions[get_column_letter(c)].width or 8.43 for c in range(1, last + 1))
+            orientation, scale = build.print_scale(width, last)
+            assert setup.orientation == orientation and scale >= 60, (name, ws.title, scale)
+
+
+def _build_module():
+    sys.path.insert(0, str(FOLDER))
+    try:
+        import build
+    finally:
+        sys.path.pop(0)
+    return build
+
+
+def test_every_legend_entry_is_a_phase_name():
+    from cellfuncs.substances import lookup
+
+    for ws in openpyxl.load_workbook(FOLDER / "phase_maps.xlsx").worksheets:
+        if not ws.title.endswith("map"):
+            continue
+        labels = set(lookup(ws["D5"].value)._labels) | {"no data"}
+        start = next(r for r in range(1, ws.max_row + 1) if str(ws.cell(r, 1).value or "").startswith("Legend"))
+        entries = [ws.cell(r, 1).value for r in range(start + 1, ws.max_row + 1) if ws.cell(r, 1).value]
+        assert len(entries) >= 6, ws.title
+        for entry in entries:
+            names = [n.strip() for n in entry.split(",")]
+            assert entry == "phase + phase (on a line)" or all(n in labels for n in names), (ws.title, entry)
+
+
+def test_chart_series_have_pairwise_distinct_colours():
+    with zipfile.ZipFile(FOLDER / "phase_maps.xlsx") as z:
+        charts = [n for n in z.namelist() if n.startswith("xl/charts/chart")]
+        assert len(charts) == 2
+        for chart in charts:
+            xml = z.read(chart).decode()
+            series = re.findall(r"<(?:c:)?ser>.*?</(?:c:)?ser>", xml, flags=re.S)
+            colours = [re.search(r'srgbClr val="([0-9A-Fa-f]{6})"', s).group(1).upper() for s in series]
+            assert len(colours) == len(series) >= 5 and len(set(colours)) == len(colours), (chart, colours)
+
+
+def test_text_results_keep_their_distance_from_the_numbers_beside_them():
+    # a text result right of a number (the phase beside a margin, "146.7gas") is indented or centred
+    for name, formulas, values in _books():
+        for ws, vs in zip(formulas.worksheets, values.worksheets):
+            for row in vs.iter_rows(min_col=2):
+                for cell in row:
+                    left = vs.cell(cell.row, cell.column - 1).value
+                    if isinstance(cell.value, str) and isinstance(left, (int, float)) and not isinstance(left, bool):
+                        align = ws[cell.coordinate].alignment
+                        assert align.indent >= 1 or align.horizontal in ("center", "right"), (
+                            name, ws.title, cell.coordinate, cell.value)

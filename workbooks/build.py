@@ -61,15 +61,34 @@ HEADER_FILL = _fill("DCE6EC")
 INPUT_FONT = Font(color="1F4E9A", bold=True)
 INPUT_FILL = _fill("FFF4CC")
 RESULT_FONT = Font(bold=True)
-NOTE_FONT = Font(size=9, color="404040")
+NOTE_FONT = Font(size=10, color="404040")
 CAUTION_FILL = _fill("FBE3D6")
 CAUTION_HEAD = Font(bold=True, color="9C2A00", size=12)
 CAUTION_FONT = Font(color="5A1800")
 WRAP = Alignment(wrap_text=True, vertical="top")
+TEXT_RESULT = Alignment(horizontal="left", indent=1)  # a text beside a number keeps its distance
 FLAG_RULES = (  # (text the flag starts with, fill, font colour)
     ("CHECK", "F4B6A6", "7A1500"), ("LOW", "FFE08A", "5C4300"), ("OXYGEN", "F4B6A6", "7A1500"),
     ("EXCEEDS", "F4B6A6", "7A1500"), ("ok", "CDEBC6", "1E5020"), ("within", "CDEBC6", "1E5020"),
 )
+
+
+# Printing: a column-width unit is the width of "0" in the workbook's font: about 7 px at 96 dpi
+# plus 5 px of padding a column in Excel's Calibri, and about 9.4 px (padding included) where
+# LibreOffice draws with a wider substitute font (measured on its rendered pages). The wider
+# figure decides, so the sheet stays readable in both.
+PX_PER_UNIT, PX_PER_COLUMN, MM_PER_PX = 9.4, 0.0, 25.4 / 96
+PAGE_MM = {"portrait": 210.0, "landscape": 297.0}  # A4 widths
+MARGIN_IN = 0.4  # left and right page margins
+MIN_SCALE = 60  # per cent: smaller prints are hard to read
+
+
+def print_scale(width_units: float, columns: int) -> tuple[str, int]:
+    """(orientation, per-cent scale) at which a sheet ``width_units`` wide fits an A4 page's width."""
+    width_mm = (width_units * PX_PER_UNIT + columns * PX_PER_COLUMN) * MM_PER_PX
+    printable = {o: w - 2 * MARGIN_IN * 25.4 for o, w in PAGE_MM.items()}
+    orientation = "portrait" if printable["portrait"] >= width_mm else "landscape"
+    return orientation, min(100, math.floor(100 * printable[orientation] / width_mm))
 
 
 class Sheet:
@@ -82,10 +101,19 @@ class Sheet:
         for letter, width in widths.items():
             ws.column_dimensions[letter].width = width
         ws.sheet_view.showGridLines = False
-        ws.page_setup.orientation = "landscape" if self.width > 140 else "portrait"
+        # one page wide, as many tall as it takes: fitting a long sheet on one page would shrink its
+        # text until it cannot be read; the width is kept so that the scale stays at MIN_SCALE or more
+        orientation, scale = print_scale(self.width, self.last_col)
+        if scale < MIN_SCALE:
+            raise ValueError(f"sheet {ws.title!r} is too wide to print at {MIN_SCALE} %: {scale} %")
+        self.print_scale = scale
+        ws.page_setup.orientation = orientation
         ws.page_setup.paperSize = ws.PAPERSIZE_A4
-        ws.page_setup.fitToWidth = ws.page_setup.fitToHeight = 1  # each sheet prints on one page
+        ws.page_setup.fitToWidth, ws.page_setup.fitToHeight = 1, 0
         ws.sheet_properties.pageSetUpPr.fitToPage = True
+        ws.page_margins.left = ws.page_margins.right = MARGIN_IN
+        ws.page_margins.top = ws.page_margins.bottom = 0.5
+        ws.page_margins.header = ws.page_margins.footer = 0.3
 
     def fit(self, row: int, text: str, size: float = 11) -> None:
         """Make a row spanning the sheet tall enough for ``text`` wrapped in it (a width unit holds
@@ -94,14 +122,17 @@ class Sheet:
         self.ws.row_dimensions[row].height = max(15.0, round(lines * size * 1.4 + 4))
 
     def title(self, text: str, *lines: str) -> None:
-        self.ws["A1"] = text
-        self.ws["A1"].font = TITLE
-        for i, line in enumerate(lines, start=2):
-            self.ws.cell(i, 1, line).font = SUBTITLE
+        """The title and the lines under it, each across the sheet's width, wrapped where long."""
+        for i, (line, font) in enumerate([(text, TITLE)] + [(line, SUBTITLE) for line in lines], start=1):
+            self.ws.merge_cells(start_row=i, start_column=1, end_row=i, end_column=self.last_col)
+            cell = self.ws.cell(i, 1, line)
+            cell.font, cell.alignment = font, WRAP
+            self.fit(i, line, font.size)
 
     def section(self, row: int, text: str) -> None:
         for col in range(1, self.last_col + 1):
             self.ws.cell(row, col).fill = SECTION_FILL
+        self.ws.merge_cells(start_row=row, start_column=1, end_row=row, end_column=self.last_col)
         cell = self.ws.cell(row, 1, text)
         cell.font = SECTION_FONT
 
@@ -113,15 +144,17 @@ class Sheet:
         self.ws.row_dimensions[row].height = height
 
     def put(self, ref: str, value, fmt: str | None = None, kind: str = "result") -> None:
-        """A value or formula; ``kind`` is "input", "result", "label" or "plain"."""
+        """A value or formula; ``kind`` is "input", "result", "text" (a result that is text), "label" or "plain"."""
         cell = self.ws[ref]
         cell.value = value
         if fmt:
             cell.number_format = fmt
         if kind == "input":
             cell.font, cell.fill, cell.border = INPUT_FONT, INPUT_FILL, BOX
-        elif kind == "result":
+        elif kind in ("result", "text"):
             cell.font, cell.border = RESULT_FONT, BOX
+            if kind == "text":
+                cell.alignment = TEXT_RESULT
         elif kind == "label":
             cell.border = BOX
             cell.alignment = Alignment(wrap_text=True, vertical="center")
@@ -150,7 +183,7 @@ class Sheet:
                 formula=[f'LEFT({first},{len(start)})="{start}"'], fill=_fill(fill), font=Font(bold=True, color=colour),
                 stopIfTrue=True))
 
-    def formulations(self, row: int, rows: list[tuple[str, str, str, str]]) -> int:
+    def formulations(self, row: int, rows: list[tuple[str, str, str, str]], height: float = 36) -> int:
         """A table of the formulations behind the results: (result, substance, model field, source field),
         each looked up with SUBSTANCE_INFO; returns the next free row."""
         self.section(row, "Which published formulation stands behind each result (looked up with SUBSTANCE_INFO)")
@@ -169,7 +202,7 @@ class Sheet:
             for col in (3, 3 + half):
                 self.ws.cell(i, col).alignment = WRAP
                 self.ws.cell(i, col).font = NOTE_FONT
-            self.ws.row_dimensions[i].height = 36
+            self.ws.row_dimensions[i].height = height
         return row + 2 + len(rows)
 
     def caution(self, row: int, lines: list[str]) -> int:
@@ -237,9 +270,9 @@ def steam_service() -> Workbook:
         s.put(f"F{r}", f'=BOIL_TEMP("water",D{r},"barg","degC")', "0.0")
         s.put(f"G{r}", f'=IF(C{r}="vapor",SUPERHEAT("water",E{r},D{r},"degC","barg"),'
                        f'SUBCOOLING("water",E{r},D{r},"degC","barg"))', "0.0")
-        s.put(f"H{r}", f'=STABLE_PHASE("water",E{r},D{r},"degC","barg")')
+        s.put(f"H{r}", f'=STABLE_PHASE("water",E{r},D{r},"degC","barg")', kind="text")
         s.put(f"I{r}", f'=IF(OR(H{r}=C{r},AND(C{r}="vapor",H{r}="gas")),IF(G{r}<$C$13,"LOW MARGIN: under "&$C$13'
-                       f'&" K","ok"),"CHECK: "&H{r}&" at this state, expected "&C{r})')
+                       f'&" K","ok"),"CHECK: "&H{r}&" at this state, expected "&C{r})', kind="text")
     phases = DataValidation(type="list", formula1='"liquid,vapor"', allow_blank=False)
     ws.add_data_validation(phases)
     phases.add("C15:C20")
@@ -252,7 +285,7 @@ def steam_service() -> Workbook:
     s.section(23, "3. Flash steam from condensate let down between levels (adiabatic, to saturation)")
     s.headers(24, ["From level", "To level", "Condensate flow (kg/h)", "Condensate temperature (°C)",
                    "From pressure (barg)", "To pressure (barg)", "Flash fraction (kg steam per kg condensate)",
-                   "Flash steam (kg/h)", "Condensate left as liquid (kg/h)"])
+                   "Flash steam (kg/h)", "Condensate left as liquid (kg/h)"], height=60)
     for r, (src, dst, flow) in enumerate([(7, 8, 5200.0), (8, 9, 8400.0), (9, 10, 11600.0)], start=25):
         s.put(f"A{r}", f"=A{src}", kind="label")
         s.put(f"B{r}", f"=A{dst}", kind="label")
@@ -348,16 +381,16 @@ def cryogen_release() -> Workbook:
                        f'{fixed["air"]}*EXP(-E{r}/{fixed["room"]}))', "0.0")
         s.put(f"G{r}", f'=IF(F{r}<{fixed["low"]},"OXYGEN DEFICIENCY: below "&{fixed["low"]}&" % - asphyxiation '
                        f'hazard",IF(F{r}>{fixed["high"]},"OXYGEN ENRICHMENT: above "&{fixed["high"]}&" % - fire '
-                       f'hazard","within "&{fixed["low"]}&" to "&{fixed["high"]}&" %"))')
+                       f'hazard","within "&{fixed["low"]}&" to "&{fixed["high"]}&" %"))', kind="text")
     s.flags("G25:G28")
     s.labelled(29, "Largest release of liquid nitrogen from D-1 that keeps the room at or above the deficiency "
                    "threshold (L)", f'={fixed["room"]}*LN({fixed["air"]}/{fixed["low"]})/I18*1000', "0.0")
     ws.row_dimensions[29].height = 30
     ws["A29"].alignment = WRAP
-    s.note(30, "Assumption: the room is well mixed and closed. The released gas mixes at once with all the room "
-               "air and the mixture leaves through leaks at room pressure as gas is added, so the oxygen fraction "
-               "falls as 20.9 % x exp(-V_gas/V_room) (for released oxygen the air's nitrogen and argon fall the "
-               "same way). No ventilation is credited. Cold gas sinks and pools: near the floor, in pits and "
+    s.note(30, "Assumption: the room is well mixed and not ventilated. The released gas mixes at once with all the "
+               "room air and pushes the mixture out through the room's leaks at room pressure as it is added "
+               "(displacement), so the oxygen fraction falls as 20.9 % x exp(-V_gas/V_room) (for released oxygen "
+               "the air's nitrogen and argon fall the same way). No ventilation is credited. Cold gas sinks and pools: near the floor, in pits and "
                "below benches the oxygen can be far lower than this average.")
 
     row = s.formulations(32, [
@@ -405,7 +438,7 @@ def frost_and_pressure() -> Workbook:
         s.put(f"B{r}", bar, "#,##0.0####", "input")
         s.put(f"C{r}", f'=MELT_TEMP("water",B{r},"bar","degC")', "0.000")
         s.put(f"D{r}", f"=C{r}-$C$7", "0.000")
-        s.put(f"E{r}", f'=STABLE_PHASE("water",C{r}-0.5,B{r},"degC","bar")')
+        s.put(f"E{r}", f'=STABLE_PHASE("water",C{r}-0.5,B{r},"degC","bar")', kind="text")
     s.note(13, "Ice Ih melts at a lower temperature as pressure rises (about 0.0074 K per bar near 1 atm); above "
                "about 2100 bar the solid that forms is a denser ice (ice III, then V), which melts at higher "
                "temperatures again.")
@@ -460,18 +493,22 @@ def frost_and_pressure() -> Workbook:
 
 
 # ---- d. phase maps ---------------------------------------------------------------------------------
-PALETTE = (  # (name, fill, text colour, phase texts it marks, meaning)
-    ("Graphite", "4A4A4A", "FFFFFF", None, "on a line: two or three phases coexist"),
-    ("Frost", "D6ECFA", "1F3A5F", ("ice Ih", "solid"), "ice Ih (water) / the solid (other substances)"),
-    ("Cobalt", "6F8FD0", "FFFFFF", ("ice III", "ice V", "ice VI", "ice VII"), "the denser ices III, V, VI, VII"),
-    ("Lagoon", "3FA89C", "FFFFFF", ("liquid",), "liquid"),
-    ("Dune", "F2DFA7", "5C4300", ("vapor",), "vapour (below the critical temperature)"),
-    ("Apricot", "F5A97F", "5A1800", ("gas",), "gas (above the critical temperature, below the critical pressure)"),
-    ("Heather", "A58BC8", "FFFFFF", ("supercritical fluid",), "supercritical fluid"),
-    ("Fog", "D9D9D9", "404040", ("no data",), "outside the data of the formulations"),
+PALETTE = (  # (legend entry: the phases as STABLE_PHASE names them, fill, text colour, texts it marks, meaning)
+    ("phase + phase (on a line)", "4A4A4A", "FFFFFF", None, "two or three phases coexist"),
+    ("ice Ih", "D6ECFA", "1F3A5F", ("ice Ih",), "ordinary ice"),
+    ("solid", "D6ECFA", "1F3A5F", ("solid",), "the solid"),
+    ("ice III, ice V, ice VI, ice VII", "6F8FD0", "FFFFFF", ("ice III", "ice V", "ice VI", "ice VII"),
+     "the denser ices of high pressure"),
+    ("liquid", "3FA89C", "FFFFFF", ("liquid",), "liquid"),
+    ("vapor", "F2DFA7", "5C4300", ("vapor",), "vapour, below the critical temperature"),
+    ("gas", "F5A97F", "5A1800", ("gas",), "gas: above the critical temperature, below the critical pressure"),
+    ("supercritical fluid", "A58BC8", "FFFFFF", ("supercritical fluid",),
+     "above the critical temperature and the critical pressure"),
+    ("no data", "D9D9D9", "404040", ("no data",), "outside the data of the formulations"),
 )
 TRIPLE_COLOUR, CRITICAL_COLOUR = "D81B60", "111111"
-BOIL, SUBLIME, MELT = "1B6CA8", "8A5A00", ("2E7D32", "7CB342", "00897B", "1B5E20")  # line colours of the chart
+# line colours of the charts: every series its own hue
+BOIL, SUBLIME, MELT = "1B6CA8", "8A5A00", ("2E7D32", "E65100", "6A1B9A", "00ACC1")
 
 
 def _map_rule(first: str, texts: tuple[str, ...] | None) -> str:
@@ -480,18 +517,22 @@ def _map_rule(first: str, texts: tuple[str, ...] | None) -> str:
     return "OR(" + ",".join(f'{first}="{t}"' for t in texts) + ")" if len(texts) > 1 else f'{first}="{texts[0]}"'
 
 
+MAP_FONT = Font(size=8)
+
+
 def _phase_map(wb: Workbook, title: str, substance: str, scenario: str, t_start: float, t_step: float,
-               columns: int, log_top: float, log_step: float, rows: int) -> Worksheet:
+               columns: int, log_top: float, log_step: float, rows: int, phases: tuple[str, ...]) -> Worksheet:
     """A map sheet: inputs, a grid of STABLE_PHASE (pressures down column A, temperatures along row 11)
     coloured by conditional formatting, and the legend."""
     ws = wb.create_sheet(title)
     widths = {"A": 13}
-    widths.update({get_column_letter(c): 8.4 for c in range(2, 2 + columns)})
+    widths.update({get_column_letter(c): 9.5 for c in range(2, 2 + columns)})  # "supercritical" at 8 pt
     s = Sheet(ws, widths)
     s.title(f"Phase map of {substance}: the stable phase over temperature and pressure", scenario,
             "Yellow cells with blue figures are inputs. Each map cell is STABLE_PHASE at its column's temperature "
             "and its row's pressure; the colours follow the legend below the map.")
     s.labelled(5, "Substance", substance, kind="result", value_col="D")
+    ws.merge_cells("D5:F5")
     s.labelled(6, "First temperature (°C)", t_start, "0", "input", value_col="D")
     s.labelled(7, "Temperature step (K)", t_step, "0", "input", value_col="D")
     s.labelled(8, "Highest pressure, log10 of bar", log_top, "0.0", "input", value_col="D")
@@ -502,12 +543,12 @@ def _phase_map(wb: Workbook, title: str, substance: str, scenario: str, t_start:
     ws[f"B{head - 1}"] = "Temperature (°C) →"
     ws[f"B{head - 1}"].font = HEADER_FONT
     ws[f"A{head}"] = "Pressure (bar) ↓"
-    ws[f"A{head}"].font = HEADER_FONT
+    ws[f"A{head}"].font, ws[f"A{head}"].alignment = HEADER_FONT, WRAP
+    ws.row_dimensions[head].height = 30
     for c in range(2, 2 + columns):
         letter = get_column_letter(c)
         s.put(f"{letter}{head}", "=$D$6" if c == 2 else f"={get_column_letter(c - 1)}{head}+$D$7", "0")
         ws[f"{letter}{head}"].fill = HEADER_FILL
-    small = Font(size=7)
     for r in range(top, top + rows):
         s.put(f"A{r}", "=10^$D$8" if r == top else f"=A{r - 1}/10^$D$9", "0.0E+0")
         ws[f"A{r}"].fill = HEADER_FILL
@@ -515,23 +556,25 @@ def _phase_map(wb: Workbook, title: str, substance: str, scenario: str, t_start:
             letter = get_column_letter(c)
             cell = ws[f"{letter}{r}"]
             cell.value = f'=IFERROR(STABLE_PHASE($D$5,{letter}${head},$A{r},"degC","bar"),"no data")'
-            cell.font = small
-            cell.alignment = Alignment(horizontal="center", vertical="center", shrink_to_fit=True)
-        ws.row_dimensions[r].height = 17
+            cell.font = MAP_FONT
+            cell.alignment = Alignment(horizontal="center", vertical="center", wrap_text=True)
+        ws.row_dimensions[r].height = 24  # two lines at 8 pt: "supercritical / fluid", "ice Ih + / liquid"
     area = f"B{top}:{last_col}{top + rows - 1}"
     for name, fill, text, texts, _ in PALETTE:
         ws.conditional_formatting.add(area, FormulaRule(formula=[_map_rule(f"B{top}", texts)], fill=_fill(fill),
-                                                        font=Font(color=text, size=7), stopIfTrue=True))
+                                                        font=Font(color=text, size=8), stopIfTrue=True))
     ws.freeze_panes = f"B{top}"
     legend = top + rows + 1
-    s.section(legend, "Legend: the colours of the map (a palette of this workbook)")
-    for i, (name, fill, text, texts, meaning) in enumerate(PALETTE, start=legend + 1):
-        ws.merge_cells(f"B{i}:F{i}")
-        ws.merge_cells(f"G{i}:{last_col}{i}")
+    s.section(legend, "Legend: the phase each colour marks, as STABLE_PHASE names it")
+    entries = [entry for entry in PALETTE if entry[0] in phases]
+    for i, (name, fill, text, texts, meaning) in enumerate(entries, start=legend + 1):
+        ws.merge_cells(f"A{i}:D{i}")
+        ws.merge_cells(f"E{i}:{last_col}{i}")
         s.put(f"A{i}", name, kind="plain")
-        ws[f"A{i}"].fill, ws[f"A{i}"].font = _fill(fill), Font(bold=True, color=text)
-        ws[f"B{i}"] = "a text with \" + \"" if texts is None else ", ".join(f'"{t}"' for t in texts)
-        ws[f"G{i}"] = meaning
+        for col in range(1, 5):
+            ws.cell(i, col).fill = _fill(fill)
+        ws[f"A{i}"].font = Font(bold=True, color=text)
+        ws[f"E{i}"] = meaning
     return ws
 
 
@@ -541,17 +584,25 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
                 note: str) -> Worksheet:
     """The chart of the lines and its data: one PHASE_LINE spill per line, triple and critical points."""
     ws = wb.create_sheet(title)
-    s = Sheet(ws, {get_column_letter(c): 11 for c in range(1, 3 * len(lines) + 1)})
+    # the printed part is twelve columns wide (points, chart, formulations, caution); the line data
+    # below it take three columns a line, however many there are
+    s = Sheet(ws, {get_column_letter(c): 11 for c in range(1, 13)})
+    for c in range(13, 3 * len(lines) + 1):
+        ws.column_dimensions[get_column_letter(c)].width = 11
     s.title(f"Lines of {substance}: boiling, melting and sublimation (PHASE_LINE), triple and critical points",
             note, "The line data below are PHASE_LINE spills, stored with their values; the chart reads plain "
             "references to them (lower block). LibreOffice recomputes array formulas that use functions it does not "
             "know, so it shows #NAME? in the spills, but keeps the references' stored values and draws the chart.")
     sub = f"'{map_title}'!$D$5"
-    points, data = 40, 33
+    # what a person reads comes first and is the print area: points, chart, formulations, caution;
+    # the chart's data follow below it
+    row = s.formulations(24, [(what, substance, model, source) for what, model, source in models], height=26)
+    end = s.caution(row + 1, [ESTIMATES, CODES]) - 1
+    ws.print_area = f"A1:{get_column_letter(s.last_col)}{end}"
+    points, data = 40, end + 5
     copy = data + points + 3  # first row of the chart's data: references to the spills
-    ws[f"A{copy - 3}"] = ("Chart data: references to the spills above (a spreadsheet program that cannot compute the "
-                          "spills still shows these stored values)")
-    ws[f"A{copy - 3}"].font = NOTE_FONT
+    s.note(copy - 3, "Chart data: references to the spills above (a spreadsheet program that cannot compute the "
+                     "spills still shows these stored values)")
     ws["B5"], ws["C5"] = "T (°C)", "p (bar)"
     s.put("A6", "Triple point", kind="plain")
     s.put("B6", f'=TRIPLE_POINT({sub},"T","degC")', "0.000")
@@ -562,7 +613,7 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
     chart = ScatterChart()
     chart.title = f"{substance}: phase lines"
     chart.style = 13
-    chart.height, chart.width = 12, 22
+    chart.height, chart.width = 9, 20
     chart.x_axis.title = "Temperature (°C)"
     chart.y_axis.title = "Pressure (bar), logarithmic"
     chart.x_axis.scaling.min, chart.x_axis.scaling.max = x_range
@@ -577,6 +628,7 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
     for i, (label, boundary, t_a, t_b, solid, colour) in enumerate(lines):
         col = 1 + 3 * i
         x, y = get_column_letter(col), get_column_letter(col + 1)
+        ws.merge_cells(f"{x}{data - 2}:{y}{data - 2}")
         ws[f"{x}{data - 2}"] = label
         ws[f"{x}{data - 2}"].font = HEADER_FONT
         ws[f"{x}{data - 1}"], ws[f"{y}{data - 1}"] = "T (°C)", "p (bar)"
@@ -584,6 +636,7 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
         ws[f"{x}{data}"] = f'=PHASE_LINE({sub},"{boundary}",{t_a},{t_b},{points},"degC","bar"{extra})'
         for r in range(data, data + points):  # formats of the spill range: empty cells, so nothing blocks it
             ws[f"{x}{r}"].number_format, ws[f"{y}{r}"].number_format = "0.00", "0.000E+00"
+        ws.merge_cells(f"{x}{copy - 2}:{y}{copy - 2}")
         ws[f"{x}{copy - 2}"] = label
         ws[f"{x}{copy - 2}"].font = HEADER_FONT
         ws[f"{x}{copy - 1}"], ws[f"{y}{copy - 1}"] = "T (°C)", "p (bar)"
@@ -608,8 +661,6 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
     for c in (2, 3):
         ws.cell(5, c).font = HEADER_FONT
     ws.add_chart(chart, "E5")
-    row = s.formulations(copy + points + 1, [(what, substance, model, source) for what, model, source in models])
-    s.caution(row + 1, [ESTIMATES, CODES])
     return ws
 
 
@@ -618,7 +669,9 @@ def phase_maps() -> Workbook:
     wb.remove(wb.active)
     scenario = ("Tessellate Process Training Centre, module 3 (invented scenario): where a pure substance is "
                 "solid, liquid, vapour, gas or supercritical fluid.")
-    _phase_map(wb, "Water map", "water", scenario, -60.0, 20.0, 26, 4.5, 0.5, 18)
+    common = ("phase + phase (on a line)", "liquid", "vapor", "gas", "supercritical fluid", "no data")
+    _phase_map(wb, "Water map", "water", scenario, -60.0, 30.0, 18, 4.5, 0.5, 18,
+               common + ("ice Ih", "ice III, ice V, ice VI, ice VII"))
     _line_sheet(wb, "Water lines", "Water map", "water", [
         ("boiling", "boil", 0.01, 373.946, None, BOIL),
         ("sublimation", "sublime", -60.0, 0.01, None, SUBLIME),
@@ -632,7 +685,7 @@ def phase_maps() -> Workbook:
         ("Sublimation line", "sublime_model", "sublime_model_source"),
     ], "The melting line of each ice is drawn over the temperatures where that ice melts; the ice VI and VII lines "
        "join at their common triple point near 82 °C.")
-    _phase_map(wb, "CO2 map", "carbon dioxide", scenario, -110.0, 10.0, 22, 3.5, 0.25, 19)
+    _phase_map(wb, "CO2 map", "carbon dioxide", scenario, -110.0, 14.0, 16, 3.5, 0.25, 19, common + ("solid",))
     _line_sheet(wb, "CO2 lines", "CO2 map", "carbon dioxide", [
         ("boiling", "boil", -56.558, 30.978, None, BOIL),
         ("sublimation", "sublime", -118.89, -56.558, None, SUBLIME),

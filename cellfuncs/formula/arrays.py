@@ -19,7 +19,7 @@ from typing import Any, Callable, Sequence, Union
 
 import numpy as np
 
-from ..errors import CALC, NUM, VALUE, CellError
+from ..errors import CALC, DIV0, NUM, VALUE, CellError
 from .budget import charge
 from .coerce import to_number
 from .nodes import Scalar
@@ -150,6 +150,10 @@ def numeric(fn: Callable[..., float | CellError]) -> Callable[..., Value]:
             r = fn(*nums)
         except OverflowError:
             return _TOO_LARGE
+        except ZeroDivisionError:
+            return CellError(DIV0, "division by zero")
+        except ValueError:  # a math domain error
+            return _NOT_FINITE
         if type(r) is float and not math.isfinite(r):
             return _TOO_LARGE if r == r else _NOT_FINITE
         return r

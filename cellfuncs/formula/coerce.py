@@ -39,6 +39,8 @@ def to_number(v: Scalar) -> float | CellError:
 
     >>> to_number(True), to_number(None), to_number(" 1,250.5 "), to_number("5%")
     (1.0, 0.0, 1250.5, 0.05)
+    >>> to_number("$5"), to_number("($1,000)"), to_number("2024-01-02"), to_number("12:00")
+    (5.0, -1000.0, 45293.0, 0.5)
     """
     t = type(v)
     if t is float:
@@ -50,7 +52,7 @@ def to_number(v: Scalar) -> float | CellError:
     if t is str:
         m = _NUMERIC_TEXT.match(v)
         if m is None:
-            return CellError(VALUE, f"text {_quote(v)} is not a number")
+            return _other_number_text(v)
         x = float(m.group(1).replace(",", ""))
         return x / 100.0 if m.group(2) else x
     if t is CellError:
@@ -58,6 +60,24 @@ def to_number(v: Scalar) -> float | CellError:
     if isinstance(v, Real):  # ints or numpy numbers a caller let through
         return float(v)
     raise TypeError(f"not a cell value: {v!r}")
+
+
+# Currency and accounting forms Excel (en-US) also reads: "$5", "-$5", "$-5", "(5)", "($1,000)".
+_MONEY = re.compile(r"\s*(\(?)\s*([+-]?)\s*\$?\s*([+-]?)([0-9][0-9,]*\.?[0-9]*|\.[0-9]+)\s*(\)?)\s*\Z")
+
+
+def _other_number_text(v: str) -> float | CellError:
+    """Currency amounts, dates and times in text, as numbers (a date as its serial)."""
+    m = _MONEY.match(v)
+    if m and "$" in v or (m and m.group(1) and m.group(5)):
+        paren, sign1, sign2, digits, close = m.groups()
+        if bool(paren) == bool(close) and not (sign1 and sign2) and _NUMERIC_TEXT.match(digits):
+            x = float(digits.replace(",", ""))
+            return -x if paren or "-" in (sign1, sign2) else x
+    from .dates import parse_date_text
+
+    x = parse_date_text(v)
+    return x if x is not None else CellError(VALUE, f"text {_quote(v)} is not a number")
 
 
 def to_text(v: Scalar) -> str | CellError:

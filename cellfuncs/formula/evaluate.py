@@ -16,7 +16,7 @@ from typing import Any, Callable, Mapping, Protocol
 
 import numpy as np
 
-from ..errors import NAME, REF, VALUE, CellError
+from ..errors import DIV0, NAME, NUM, REF, VALUE, CellError
 from .arrays import Value, as_value, object_array
 from .budget import charge
 from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary
@@ -138,9 +138,14 @@ def _call(node: Call, context: Context) -> Value:
     count = len(node.args)
     if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
         return _arity_error(node.name, spec, count)
-    if spec.lazy:
-        return spec.fn(context, *node.args)
-    return spec.fn(*[evaluate(a, context) for a in node.args])
+    try:
+        if spec.lazy:
+            return spec.fn(context, *node.args)
+        return spec.fn(*[evaluate(a, context) for a in node.args])
+    except ZeroDivisionError:  # arithmetic a built-in did not guard: still a cell value, never a crash
+        return CellError(DIV0, f"{node.name}: division by zero")
+    except (OverflowError, ValueError):
+        return CellError(NUM, f"{node.name}: the result is not a finite number")
 
 
 def _charge_call(args: list) -> CellError | None:

@@ -1,4 +1,4 @@
-"""Built-in logical functions: IF, IFERROR, ISERROR, AND, OR, NOT.
+"""Built-in logical functions: IF, IFS, IFERROR, IFNA, ISERROR, AND, OR, XOR, NOT, SWITCH, TRUE, FALSE.
 
 >>> from cellfuncs.formula import compute
 >>> compute('=IF(1>2, 1/0, "no")'), compute('=IFERROR(1/0, -1)'), compute('=AND(TRUE, 1, OR(FALSE))')
@@ -9,9 +9,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import VALUE, CellError
+from ..errors import NA, VALUE, CellError
 from .arrays import Value, elementwise, first_error, map_values
-from .coerce import to_bool
+from .coerce import compare, to_bool
 from .evaluate import Context, builtin, collect, evaluate
 from .nodes import Missing, Node, Scalar
 
@@ -127,3 +127,86 @@ def not_(v: Scalar) -> bool | CellError:
     """
     b = to_bool(v)
     return b if type(b) is CellError else not b
+
+
+@builtin("XOR", 1, None, lazy=True)
+def xor(context: Context, *nodes: Node) -> bool | CellError:
+    """TRUE when an odd number of the logical arguments are TRUE.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=XOR(TRUE, {1,0})'), compute('=XOR(1, 1)')
+    (False, False)
+    """
+    values = _logicals(context, nodes, "XOR")
+    return values if type(values) is CellError else sum(values) % 2 == 1
+
+
+@builtin("IFNA", 2, lazy=True)
+def ifna(context: Context, value: Node, fallback: Node) -> Value:
+    """``value``, with each #N/A (element) replaced by ``fallback``; other errors stay.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=IFNA(NA(), 0)'), compute('=IFNA(1/0, 0)').code
+    (0.0, '#DIV/0!')
+    """
+    v = evaluate(value, context)
+    is_na = lambda x: type(x) is CellError and x.code == NA  # noqa: E731
+    if is_na(v):
+        return _argument(fallback, context)
+    if type(v) is np.ndarray and any(is_na(x) for x in v.flat):
+        return map_values(lambda x, f: f if is_na(x) else x, v, _argument(fallback, context))
+    return v
+
+
+@builtin("IFS", 2, None, lazy=True)
+def ifs(context: Context, *nodes: Node) -> Value:
+    """The value after the first TRUE test of ``test1, value1, test2, value2, ...``; #N/A when
+    none is TRUE.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=IFS(1>2, "a", 2>1, "b")'), compute('=IFS(FALSE, 1)').code
+    ('b', '#N/A')
+    """
+    if len(nodes) % 2:
+        return CellError(VALUE, "IFS takes pairs of a test and a value")
+    for test, then in zip(nodes[::2], nodes[1::2]):
+        t = evaluate(test, context)
+        if type(t) is np.ndarray:
+            t = t[0, 0]
+        t = to_bool(t)
+        if type(t) is CellError:
+            return t
+        if t:
+            return _argument(then, context)
+    return CellError(NA, "no test of IFS is TRUE")
+
+
+@builtin("SWITCH", 3, None, lazy=True)
+def switch(context: Context, expression: Node, *nodes: Node) -> Value:
+    """The result paired with the first value equal to ``expression``, else the default (an
+    odd last argument), else #N/A.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=SWITCH(2, 1, "one", 2, "two")'), compute('=SWITCH("x", "y", 1, 0)')
+    ('two', 0.0)
+    """
+    x = evaluate(expression, context)
+    if type(x) is CellError:
+        return x
+    if type(x) is np.ndarray:
+        x = x[0, 0]
+    for value, result in zip(nodes[::2], nodes[1::2]):
+        v = evaluate(value, context)
+        if type(v) is np.ndarray:
+            v = v[0, 0]
+        if type(v) is CellError:
+            return v
+        if type(v) is type(x) and compare(x, v) == 0:
+            return _argument(result, context)
+    if len(nodes) % 2:
+        return _argument(nodes[-1], context)
+    return CellError(NA, "SWITCH found no matching value")
+
+
+builtin("TRUE", 0)(lambda: True)
+builtin("FALSE", 0)(lambda: False)

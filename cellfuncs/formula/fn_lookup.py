@@ -1,4 +1,4 @@
-"""Built-in lookup functions: INDEX, MATCH, VLOOKUP.
+"""Built-in lookup functions: INDEX, MATCH, VLOOKUP, HLOOKUP, LOOKUP, XLOOKUP, XMATCH.
 
 >>> from cellfuncs.formula import compute
 >>> compute("=INDEX({1,2;3,4}, 2, 1)"), compute("=MATCH(25, {10,20,30})"), compute('=VLOOKUP("b", {"a",1;"B",2}, 2, FALSE)')
@@ -71,18 +71,21 @@ def index(array: Value, row: Value, column: Value = _ABSENT) -> Value:
     return _take(a, row, column, whole=True)
 
 
-class _Wildcard:
-    """Excel's ``*`` and ``?`` wildcards (``~`` escapes), case-insensitive, matched in time linear
-    in the pattern times the text: the parts between stars are found one after the other, left
-    to right, which is all a star needs (one regex of several ``.*`` can take exponential time).
+class Wildcard:
+    """Excel's ``*`` and ``?`` wildcards (``~`` escapes), case-insensitive, with a regex's
+    ``fullmatch`` and ``search``, in time linear in the pattern times the text: the parts
+    between stars are found one after the other, left to right, which is all a star needs
+    (one regex of several ``.*`` can take exponential time on a text that almost matches).
 
-    >>> w = _Wildcard("a*b?d*~*")
-    >>> w.matches("AxxBcD*"), w.matches("abd*"), _Wildcard("*a*a*a*a*a*a*a*a*a*b").matches("a" * 60)
-    (True, False, False)
+    >>> w = Wildcard("a*b?d*~*")
+    >>> bool(w.fullmatch("AxxBcD*")), bool(w.fullmatch("abd*")), Wildcard("*a*a*a*a*a*a*a*a*a*b").fullmatch("a" * 60)
+    (True, False, None)
+    >>> Wildcard("b*d").search("abcde").start(), Wildcard("b*x").search("abcde")
+    (1, None)
     """
 
     def __init__(self, pattern: str):
-        pieces: list[list[str]] = [[]]  # the regex units between stars
+        pieces: list[list[str]] = [[]]  # the regex units between stars, each one character wide
         for part in re.split(r"(~[*?~]|[*?])", pattern):
             if part == "*":
                 pieces.append([])
@@ -94,31 +97,44 @@ class _Wildcard:
                 pieces[-1] += [re.escape(ch) for ch in part]
         flags = re.IGNORECASE | re.DOTALL
         self.parts = [re.compile("".join(units), flags) for units in pieces]
-        self.last = len(pieces[-1])  # each unit is one character
+        self.last = len(pieces[-1])
 
-    def matches(self, text: str) -> bool:
-        first, *middle, last = self.parts if len(self.parts) > 1 else (self.parts[0], None)
-        if last is None:
-            return first.fullmatch(text) is not None
-        m = first.match(text)
-        if m is None:
-            return False
-        pos = m.end()
+    def _rest(self, text: str, pos: int, anchored: bool) -> bool:
+        """Whether the parts after the first follow from ``pos`` (the last at the end if anchored)."""
+        middle, last = self.parts[1:-1], self.parts[-1]
         for part in middle:
             m = part.search(text, pos)
             if m is None:
                 return False
             pos = m.end()
+        if not anchored:
+            return last.search(text, pos) is not None
         start = len(text) - self.last
         return start >= pos and last.fullmatch(text, start) is not None
+
+    def fullmatch(self, text: str) -> bool | None:
+        """True if the whole text matches, else None (as a regex's ``fullmatch`` is falsy)."""
+        if len(self.parts) == 1:
+            return True if self.parts[0].fullmatch(text) else None
+        m = self.parts[0].match(text)
+        return True if m is not None and self._rest(text, m.end(), anchored=True) else None
+
+    def search(self, text: str, pos: int = 0) -> re.Match | None:
+        """The leftmost match at or after ``pos``, as the match of its part before the first
+        star (its ``start()`` is where the whole match starts), or None."""
+        m = self.parts[0].search(text, pos)
+        if m is None or len(self.parts) == 1:
+            return m
+        return m if self._rest(text, m.end(), anchored=False) else None
 
 
 _WILDCARD_LITERALS = {"~*": "*", "~?": "?", "~~": "~"}
 
 
 @lru_cache(maxsize=256)
-def _wildcard(pattern: str) -> _Wildcard:
-    return _Wildcard(pattern)
+def wildcard(pattern: str) -> Wildcard:
+    """The :class:`Wildcard` of ``pattern`` (kept for reuse)."""
+    return Wildcard(pattern)
 
 
 def _find(x: Scalar, values: list, mode: int) -> float | CellError:
@@ -129,8 +145,8 @@ def _find(x: Scalar, values: list, mode: int) -> float | CellError:
     if x is None:
         return CellError(NA, "the lookup value is blank")
     if mode == 0 and type(x) is str and any(ch in x for ch in "*?~"):
-        regex = _wildcard(x)
-        found = next((i for i, v in enumerate(values) if type(v) is str and regex.matches(v)), None)
+        regex = wildcard(x)
+        found = next((i for i, v in enumerate(values) if type(v) is str and regex.fullmatch(v)), None)
     elif mode == 0:
         found = next((i for i, v in enumerate(values) if type(v) is type(x) and compare(v, x) == 0), None)
     else:
@@ -200,3 +216,171 @@ def vlookup(lookup: Value, table: Value, column: Value, approximate: Value = Tru
         return r if type(r) is CellError else a[int(r) - 1, int(c) - 1]
 
     return map_values(one, lookup)
+
+
+@builtin("HLOOKUP", 3, 4)
+def hlookup(lookup: Value, table: Value, row: Value, approximate: Value = True) -> Value:
+    """The value in ``row`` (1-based) of the column whose first cell matches ``lookup``
+    (VLOOKUP across).
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=HLOOKUP("b", {"a","b";1,2}, 2, FALSE)')
+    2.0
+    """
+    if type(table) is CellError:
+        return table
+    return vlookup(lookup, np.ascontiguousarray(as_array(table).T), row, approximate)
+
+
+def _vector_and_result(a: np.ndarray) -> tuple[list, np.ndarray]:
+    """LOOKUP's array form: search the first row of a wide array (the first column of a tall
+    or square one) and return from the last."""
+    if a.shape[1] > a.shape[0]:
+        return list(a[0, :]), a[-1, :]
+    return list(a[:, 0]), a[:, -1]
+
+
+@builtin("LOOKUP", 2, 3)
+def lookup(value: Value, vector: Value, result: Value = _ABSENT) -> Value:
+    """The element of ``result`` (or of the array's last row or column) where the sorted
+    ``vector`` holds the largest value not above ``value``.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=LOOKUP(4.19, {4.14,4.19,5.17}, {"red","orange","yellow"})'), compute("=LOOKUP(0, {1,2})").code
+    ('orange', '#N/A')
+    """
+    for v in (vector, result):
+        if type(v) is CellError:
+            return v
+    a = as_array(vector)
+    if result is _ABSENT:
+        keys, out = _vector_and_result(a)
+    else:
+        keys, out = list(a.flat), as_array(result).ravel()
+
+    def one(x: Scalar) -> Scalar:
+        r = _find(x, keys, 1)
+        if type(r) is CellError:
+            return r
+        i = int(r) - 1
+        return out[i] if i < out.size else CellError(NA, "the result vector is shorter than the lookup vector")
+
+    return map_values(one, value)
+
+
+def _xfind(x: Scalar, values: list, match_mode: int, search_mode: int) -> int | CellError:
+    """0-based index for XMATCH and XLOOKUP: match mode 0 exact, -1 exact or next smaller,
+    1 exact or next larger, 2 wildcards; search mode 1 first to last, -1 last to first, 2 and
+    -2 (binary searches of sorted data) as 1 and -1, which agree with them on sorted data."""
+    if type(x) is CellError:
+        return x
+    order = range(len(values) - 1, -1, -1) if search_mode in (-1, -2) else range(len(values))
+    if x is None:  # a blank lookup value finds a blank, else looks for 0
+        found = next((i for i in order if values[i] is None), None)
+        if found is not None:
+            return found
+        x = 0.0
+    order = range(len(values) - 1, -1, -1) if search_mode in (-1, -2) else range(len(values))
+    regex = wildcard(x) if match_mode == 2 and type(x) is str else None
+    best = None
+    for i in order:
+        v = values[i]
+        if type(v) is not type(x):
+            continue
+        if regex is not None:
+            if regex.fullmatch(v):
+                return i
+            continue
+        c = compare(v, x)
+        if c == 0:
+            return i
+        if match_mode == -1 and c < 0 and (best is None or compare(v, values[best]) > 0):
+            best = i
+        elif match_mode == 1 and c > 0 and (best is None or compare(v, values[best]) < 0):
+            best = i
+    return best if best is not None else CellError(NA, f"{_shown(x)} was not found")
+
+
+def _modes(match_mode: Value, search_mode: Value) -> tuple[int, int] | CellError:
+    out = []
+    for v, allowed in ((match_mode, (-1, 0, 1, 2)), (search_mode, (-2, -1, 1, 2))):
+        if type(v) is np.ndarray:
+            v = v[0, 0]
+        n = to_number(0.0 if v is None else v)
+        if type(n) is CellError:
+            return n
+        if int(n) not in allowed:
+            return CellError(VALUE, f"the mode {to_text(n)} is not one of {allowed}")
+        out.append(int(n))
+    return out[0], out[1]
+
+
+def _line(a: np.ndarray) -> list | CellError:
+    if a.shape[0] != 1 and a.shape[1] != 1:
+        return CellError(VALUE, f"the lookup array must be one row or column, not {shape_text(a.shape)}")
+    return list(a.flat)
+
+
+@builtin("XMATCH", 2, 4)
+def xmatch(value: Value, array: Value, match_mode: Value = 0.0, search_mode: Value = 1.0) -> Value:
+    """The 1-based position of ``value`` in a row or column (modes as XLOOKUP's).
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=XMATCH("Gra?e", {"Apple","Grape","Pear"}, 2)'), compute("=XMATCH(35, {10,20,30,40}, 1)")
+    (2.0, 4.0)
+    """
+    if type(array) is CellError:
+        return array
+    values = _line(as_array(array))
+    modes = _modes(match_mode, search_mode)
+    for v in (values, modes):
+        if type(v) is CellError:
+            return v
+
+    def one(x: Scalar) -> Scalar:
+        i = _xfind(x, values, *modes)
+        return i if type(i) is CellError else float(i + 1)
+
+    return map_values(one, value)
+
+
+@builtin("XLOOKUP", 3, 6)
+def xlookup(value: Value, array: Value, results: Value, if_not_found: Value = _ABSENT,
+            match_mode: Value = 0.0, search_mode: Value = 1.0) -> Value:
+    """The row (or column) of ``results`` where ``array`` matches ``value``; ``if_not_found``
+    instead of #N/A; match mode 0 exact, -1 or next smaller, 1 or next larger, 2 wildcards;
+    search mode 1 first to last, -1 last to first.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=XLOOKUP("b", {"a";"b"}, {1;2})'), compute('=XLOOKUP("z", {"a","b"}, {1,2}, "none")')
+    (2.0, 'none')
+    """
+    for v in (array, results):
+        if type(v) is CellError:
+            return v
+    a, r = as_array(array), as_array(results)
+    keys = _line(a)
+    modes = _modes(match_mode, search_mode)
+    for v in (keys, modes):
+        if type(v) is CellError:
+            return v
+    vertical = a.shape[1] == 1 and a.shape[0] > 1 or (a.shape == (1, 1) and r.shape[1] == 1)
+    if (r.shape[0] if vertical else r.shape[1]) != len(keys):
+        return CellError(VALUE, "XLOOKUP's lookup and return arrays differ in length")
+
+    def one(x: Scalar) -> Value:
+        i = _xfind(x, keys, *modes)
+        if type(i) is CellError:
+            if if_not_found is not _ABSENT and if_not_found is not None:
+                return if_not_found
+            return i
+        part = r[i:i + 1, :] if vertical else r[:, i:i + 1]
+        return part[0, 0] if part.size == 1 else part
+
+    if type(value) is np.ndarray:
+        return map_values(lambda x: _first(one(x)), value)
+    return one(value)
+
+
+def _first(v: Value) -> Scalar:
+    return v[0, 0] if type(v) is np.ndarray else v

@@ -20,6 +20,7 @@ from .arrays import Value, elementwise
 from .budget import text_error
 from .coerce import decimal_round, format_number, to_number, to_text
 from .evaluate import builtin
+from .numfmt import apply_format, general
 from .nodes import Scalar
 
 
@@ -78,17 +79,20 @@ def _scientific(x: float, f: _NumberFormat) -> str:
 
 
 def format_value(x: float, fmt: str) -> str | CellError:
-    """``x`` in a number format: General, @, or digit patterns such as ``0``, ``0.00``,
-    ``#,##0``, ``0.0%`` and ``0.00E+00``; rounding is half away from zero.
+    """``x`` in a number format: General, @, digit patterns such as ``0``, ``0.00``,
+    ``#,##0``, ``0.0%`` and ``0.00E+00``, and the other codes :mod:`numfmt` reads (sections,
+    conditions, literals, dates and times); rounding is half away from zero.
 
     >>> format_value(0.1234, "0.0%"), format_value(12345.0, "0.00E+00"), format_value(-2.5, "0")
     ('12.3%', '1.23E+04', '-3')
     """
-    if fmt.upper() in ("GENERAL", "@"):
+    if fmt == "@":
         return format_number(x)
+    if fmt.upper() == "GENERAL":
+        return general(x)
     f = _number_format(fmt)
-    if f is None:
-        return CellError(VALUE, f'the format "{fmt}" is not supported')
+    if f is None:  # sections, literals, dates and times
+        return apply_format(x, fmt)
     if f.suffix == "%":
         percent = x * 100.0
         return _fixed(percent, f) + "%" if math.isfinite(percent) else CellError(NUM, "the percentage is too large")

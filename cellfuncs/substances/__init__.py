@@ -18,53 +18,106 @@ from .base import Substance
 from .result import BAD_ARGUMENT, ModelError
 
 
-def _keys(substance: Substance, formula: str, designation: str, aliases) -> set[str]:
-    keys = {substance.name, formula, *aliases}
+_WATER = "water"  # the one substance with its own model; every other key names a data file
+
+
+def _keys(name: str, formula: str, designation: str, aliases) -> set[str]:
+    keys = {name, formula, *aliases}
     if designation:
         keys |= {designation, designation.replace("-", "")}
     return {" ".join(k.split()).lower() for k in keys if k}
 
 
 @lru_cache(maxsize=None)
-def _catalogue() -> tuple[dict[str, list[Substance]], tuple[Substance, ...]]:
-    from .general.definition import builtin_keys, load_builtin
-    from .general.model import GeneralSubstance
-    from .water.model import Water
+def _index() -> tuple[dict[str, list[str]], dict[str, str]]:
+    """(lower-case name -> substance keys, key -> substance name), read from the data files' headers
+    alone, so that finding a substance builds only its own model."""
+    import tomllib
+    from importlib import resources
 
-    table: dict[str, list[Substance]] = {}
-    water = Water()
-    every: list[Substance] = [water]
-    for key in _keys(water, "H2O", "R-718", water.aliases):
-        table.setdefault(key, []).append(water)
-    for file_key in builtin_keys():
-        d = load_builtin(file_key)
-        substance = GeneralSubstance(d)
-        every.append(substance)
-        for key in _keys(substance, d.formula, d.designation, d.aliases):
-            table.setdefault(key, []).append(substance)
-    return table, tuple(every)
+    from .general.definition import builtin_keys
+
+    table: dict[str, list[str]] = {}
+    titles = {}
+    data = resources.files("cellfuncs.data")
+    files = {_WATER: data.joinpath("water", "water.toml")}
+    files.update({key: data.joinpath("substances", f"{key}.toml") for key in builtin_keys()})
+    for key, path in files.items():
+        # the top-level keys (name, formula, designation, aliases) stand before the first table
+        head = tomllib.loads(path.read_text(encoding="utf-8").split("\n[", 1)[0])
+        titles[key] = head["name"]
+        for name in _keys(head["name"], head.get("formula", ""), head.get("designation", ""), head.get("aliases", ())):
+            table.setdefault(name, []).append(key)
+    return table, titles
+
+
+@lru_cache(maxsize=None)
+def _build(key: str) -> Substance:
+    """The model of substance ``key`` (built once, on first use)."""
+    if key == _WATER:
+        from .water.model import Water
+
+        return Water()
+    from .general.definition import load_builtin
+
+    return _model(load_builtin(key))
+
+
+def _model(definition) -> Substance:
+    """The model of a definition: its equation of state's when it names one, else the general model."""
+    from .general.model import GeneralSubstance
+    from .helmholtz.equation import equation
+    from .helmholtz.substance import EquationSubstance
+
+    if definition.equation:
+        return EquationSubstance(definition, equation(definition.equation))
+    return GeneralSubstance(definition)
 
 
 def names() -> list[str]:
     """The substances' names, one each, sorted."""
-    return sorted(s.name for s in _catalogue()[1])
+    return sorted(_index()[1].values())
+
+
+def _normal(name: str) -> str:
+    return " ".join(str(name).split()).lower()
+
+
+@lru_cache(maxsize=1)
+def _mixtures() -> dict[str, tuple[str, str]]:
+    """Lower-case mixture names (with and without a designation's hyphen) -> (name, components)."""
+    from ..data import load
+
+    table = {}
+    for name, entry in load("mixtures")["mixtures"].items():
+        for key in (name, name.replace("-", ""), *entry.get("aliases", ())):
+            table[_normal(key)] = (name, entry["components"])
+    return table
 
 
 def lookup(name: str) -> Substance:
-    """The substance called ``name``; an unknown or ambiguous name raises ModelError."""
-    key = " ".join(str(name).split()).lower()
-    found = _catalogue()[0].get(key)
+    """The substance called ``name``; an unknown or ambiguous name raises ModelError.
+
+    >>> lookup("R-410A")
+    Traceback (most recent call last):
+    ...
+    cellfuncs.substances.result.ModelError: 'R-410A' is a mixture (R-32/R-125, 50/50 % by mass); this pack models pure substances
+    """
+    key = _normal(name)
+    found = _index()[0].get(key)
     if not found:
+        mixture = _mixtures().get(key)
+        if mixture is not None:
+            raise ModelError(BAD_ARGUMENT, f"'{name}' is a mixture ({mixture[1]}); this pack models pure substances")
         raise ModelError(BAD_ARGUMENT, f"unknown substance '{name}'; SUBSTANCES() lists the known names")
     if len(found) > 1:
-        which = ", ".join(sorted(s.name for s in found))
+        which = ", ".join(sorted(_index()[1][k] for k in found))
         raise ModelError(BAD_ARGUMENT, f"'{name}' fits several substances ({which}); give the name")
-    return found[0]
+    return _build(found[0])
 
 
 def define(fields: Mapping[str, Any]) -> Substance:
     """A user-defined substance from field -> value or (value, unit); see general/definition.py."""
     from .general.definition import Definition
-    from .general.model import GeneralSubstance
 
-    return GeneralSubstance(Definition.from_fields(fields))
+    return _model(Definition.from_fields(fields))

@@ -44,12 +44,14 @@ from ..formula.budget import active, charge
 from .areas import AreaIndex, Overlap
 from .graph import components, cycle
 from .limits import DEFAULTS, Limits, option
-from .model import Book
+from .model import Book, Sheet
 from .package import Refused
 from .refs import MAX_COL, MAX_ROW, Area, address, area, shifted
+from .sheetxml import FormulaXml
 from .templates import Template, Templates, build
 
 MAX_PASSES = 4
+KEPT_BLOCK_CELLS = 4_194_304  # ranges read are kept for reuse up to this many cells (32 MiB of references)
 _PREFIXES = ("_XLUDF.", "_XLFN.", "_XLWS.")
 
 
@@ -93,6 +95,7 @@ class _Links:
 
 
 _UNSET = object()
+_POSITIONAL = object()  # the value of a name that depends on the formula cell using it
 
 
 def quoted(sheet: str) -> str:
@@ -115,6 +118,7 @@ class _Context:
         self.sheet = 0
         self.dr = 0
         self.dc = 0
+        self.row = self.col = 1  # the formula cell
 
     def function(self, name: str) -> Callable[..., Any] | None:
         fn = self.functions.get(name)
@@ -135,6 +139,18 @@ class _Context:
                 return CellError(REF, f"{ref} moved by {self.dr} rows and {self.dc} columns is off the sheet")
         return s, a
 
+    def position(self) -> tuple[int, int]:
+        """The formula cell's row and column (for ROW() and COLUMN())."""
+        return self.row, self.col
+
+    def bounds(self, sheet: str | None, ref: str) -> tuple[int, int, int, int] | CellError:
+        """First row, first column, last row, last column of a reference (for ROW, ROWS, ...)."""
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return found
+        a = found[1]
+        return a.r1, a.c1, a.r2, a.c2
+
     def reference(self, sheet: str | None, ref: str) -> Value:
         found = self._area(sheet, ref)
         if type(found) is CellError:
@@ -154,7 +170,35 @@ class _Context:
             if "[" in text:
                 return CellError(REF, f"{text} is an external reference (another workbook)")
             return CellError(NAME, f"unknown name {text}")
-        return engine.name_value(key, self.sheet)
+        return self.named(key)
+
+    def named(self, key: tuple[int | None, str]) -> Value:
+        """The value of the defined name ``key`` as this formula cell sees it."""
+        return self.engine.name_value(key, self.sheet, (self.row, self.col))
+
+
+class _NameContext(_Context):
+    """The view from a defined name: its references as written (no offset). A name that
+    asks for the formula cell's position (ROW(), COLUMN()), or uses a name that does, has a
+    value per cell: evaluated without a cell it only records that (``positional``)."""
+
+    def __init__(self, engine: Recalc, sheet: int, cell: tuple[int, int] | None):
+        super().__init__(engine)
+        self.sheet, self.cell = sheet, cell
+        if cell is not None:
+            self.row, self.col = cell
+        self.positional = False
+
+    def position(self) -> tuple[int, int]:
+        self.positional = True
+        return super().position()
+
+    def named(self, key: tuple[int | None, str]) -> Value:
+        value = self.engine.name_value(key, self.sheet, self.cell)
+        if value is _POSITIONAL:
+            self.positional = True
+            return CellError(NA, "a name whose value depends on the formula cell")  # never shown: see name_value
+        return value
 
 
 class _Column(_Context):
@@ -203,6 +247,12 @@ def _legacy_fill(value: Value, shape: tuple[int, int]) -> np.ndarray:
     return out
 
 
+def _stored_range(f: FormulaXml, row: int, col: int) -> Area:
+    """The range an array formula's cell stores (its own cell if the range does not start there)."""
+    a = area(f.ref) if f.ref else None
+    return a if a is not None and a.r1 == row and a.c1 == col else Area(row, col, row, col)
+
+
 class Recalc:
     """Recalculation of one workbook: :meth:`run` fills :attr:`values` (per sheet,
     (row, column) -> value), :attr:`result` (per formula cell) and :attr:`spills`."""
@@ -236,18 +286,21 @@ class Recalc:
     # ---- reading -------------------------------------------------------------------
     def _load(self) -> None:
         dynamic = self.book.dynamic_cm
-        declared = 0  # cells of the stored array ranges so far
+        declared = [0]  # cells of the stored array ranges so far, over all sheets
         for sheet in self.book.sheets:
             scan = sheet.scan
             if scan is None:
                 continue
             s = sheet.index
+            arrays = self._array_ranges(sheet, declared)
             masters = {f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
-            arrays = AreaIndex()
             for (row, col), f in scan.formulas.items():
                 if f.kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
                     if f.cached is not None:
                         self.constants[s][(row, col)] = f.cached
+                    continue
+                if f.kind == "normal" and not f.text and arrays.at(row, col) not in (None, (row, col)):
+                    self.stored[s][(row, col)] = f.cached  # Excel's <f ca="1"/> in a volatile array's range
                     continue
                 text, base = f.text, (row, col)
                 if f.kind == "shared" and not f.text:
@@ -263,33 +316,41 @@ class Recalc:
                 old = None
                 kind = "normal"
                 if f.kind == "array":
-                    old = area(f.ref) if f.ref else None
-                    old = old if old is not None and old.r1 == row and old.c1 == col else Area(row, col, row, col)
+                    old = _stored_range(f, row, col)
                     kind = "dynamic" if dynamic is not None and f.cm == dynamic else "legacy"
-                    h, w = old.shape
-                    declared += h * w
-                    if declared > self.limits.spill_cells:  # before a cell of the range is visited
-                        raise Refused(f"{quoted(sheet.name)}!{address(row, col)}: the array formula's range "
-                                      f"{old.text()} ({h * w:,} cells) brings the array ranges of the workbook to "
-                                      f"{declared:,} cells, over the limit of {self.limits.spill_cells:,} "
-                                      f"({option('spill_cells')})")
-                    arrays.add(old, len(self.cells))
                     if kind == "legacy":
-                        self.legacy[s].add(old, len(self.cells))
-                        self.legacy_cells += h * w
+                        self.legacy[s].add(old, (row, col))
+                        self.legacy_cells += old.shape[0] * old.shape[1]
                 self.at[s][(row, col)] = len(self.cells)
                 self.cells.append(FormulaCell(s, row, col, template, kind, old))
-            try:
-                arrays.freeze()
-            except Overlap as exc:
-                first, second = (self.where(fi) for fi in exc.args)
-                raise Refused(f"the array formulas at {first} and {second} have overlapping ranges") from None
             self.legacy[s].freeze()
             for key, v in scan.values.items():
                 if arrays.at(*key) is not None:
                     self.stored[s][key] = v
                 elif key not in self.at[s]:
                     self.constants[s][key] = v
+
+    def _array_ranges(self, sheet: Sheet, declared: list[int]) -> AreaIndex:
+        """The stored ranges of a sheet's array formulas (item: the anchor cell), counted against
+        the limit before any cell of them is visited; refused if two overlap."""
+        arrays = AreaIndex()
+        for (row, col), f in sheet.scan.formulas.items():
+            if f.kind != "array":
+                continue
+            a = _stored_range(f, row, col)
+            h, w = a.shape
+            declared[0] += h * w
+            if declared[0] > self.limits.spill_cells:
+                raise Refused(f"{quoted(sheet.name)}!{address(row, col)}: the array formula's range {a.text()} "
+                              f"({h * w:,} cells) brings the array ranges of the workbook to {declared[0]:,} cells, "
+                              f"over the limit of {self.limits.spill_cells:,} ({option('spill_cells')})")
+            arrays.add(a, (row, col))
+        try:
+            arrays.freeze()
+        except Overlap as exc:
+            first, second = (f"{quoted(sheet.name)}!{address(*anchor)}" for anchor in exc.args)
+            raise Refused(f"the array formulas at {first} and {second} have overlapping ranges") from None
+        return arrays
 
     def _column_index(self) -> list[dict[int, tuple[list[int], list[int]]]]:
         index: list[dict] = [{} for _ in self.book.sheets]
@@ -337,32 +398,55 @@ class Recalc:
             t = self._name_templates[key] = build(self.book.names[key], 1, 1)
         return t
 
-    def name_value(self, key: tuple[int | None, str], sheet: int) -> Value:
-        """The value of a defined name seen from ``sheet``, remembered for the pass. The graph
-        evaluates every name before the formulas that use it, so this only looks it up."""
+    def name_value(self, key: tuple[int | None, str], sheet: int, cell: tuple[int, int] | None = None) -> Value:
+        """The value of a defined name seen from ``sheet`` (by formula ``cell``), remembered for
+        the pass. The graph evaluates every name before the formulas that use it, so for a
+        formula this is a look-up; only a name whose value depends on the cell (ROW()) is
+        evaluated again for each cell that uses it (without a cell: :data:`_POSITIONAL`)."""
         value = self.name_values.get((key, sheet), _UNSET)
         if value is _UNSET:
-            t = self.name_template(key)
-            if t.ast is None:
-                value = t.error
-            else:
-                ctx = _Context(self)
-                ctx.sheet = sheet  # a name's references are as written: no offset
-                value = value_of(t.ast, ctx)
-            self.name_values[(key, sheet)] = value
+            value = self.name_values[(key, sheet)] = self._name(key, sheet, None)
+        if value is _POSITIONAL and cell is not None:
+            return self._name(key, sheet, cell)
         return value
+
+    def _name(self, key: tuple[int | None, str], sheet: int, cell: tuple[int, int] | None) -> Value:
+        t = self.name_template(key)
+        if t.ast is None:
+            return t.error
+        ctx = _NameContext(self, sheet, cell)
+        value = value_of(t.ast, ctx)
+        return _POSITIONAL if ctx.positional and cell is None else value
 
     # ---- values ----------------------------------------------------------------------
     def block(self, s: int, a: Area) -> np.ndarray | CellError:
         """The values of area ``a`` of sheet ``s`` as a 2-D object array (whole columns
-        and rows cut to the used range), or the budget's error value."""
+        and rows cut to the used range), or the budget's error value.
+
+        Blocks are kept for the pass: every formula cell inside an area is evaluated before
+        any formula reading the area (the dependency order), so its values no longer change.
+        Each use is charged to the budget all the same (the formula goes through its cells),
+        and the blocks kept hold at most :data:`KEPT_BLOCK_CELLS` cells in all.
+        """
         r2, c2 = a.r2, a.c2
         if r2 == MAX_ROW or c2 == MAX_COL:
             rows, cols = self.extent[s]
             r2, c2 = min(r2, max(rows, a.r1)), min(c2, max(cols, a.c1))
-        over = charge((r2 - a.r1 + 1, c2 - a.c1 + 1))
+        h, w = r2 - a.r1 + 1, c2 - a.c1 + 1
+        over = charge((h, w))
         if over is not None:
             return over
+        key = (s, a.r1, a.c1, r2, c2)
+        out = self._blocks.get(key)
+        if out is None:
+            out = self._read_block(s, a.r1, a.c1, r2, c2)
+            if self._kept + h * w <= KEPT_BLOCK_CELLS:
+                self._blocks[key] = out
+                self._kept += h * w
+        return out
+
+    def _read_block(self, s: int, r1: int, c1: int, r2: int, c2: int) -> np.ndarray:
+        a = Area(r1, c1, r2, c2)
         get = self.values[s].get
         h, w = r2 - a.r1 + 1, c2 - a.c1 + 1
         columns = range(a.c1, c2 + 1)
@@ -529,6 +613,8 @@ class Recalc:
 
     def _reset(self, assumed: dict[int, Area]) -> None:
         self.values = [dict(c) for c in self.constants]
+        self._blocks: dict[tuple[int, int, int, int, int], np.ndarray] = {}
+        self._kept = 0  # cells of the blocks kept
         self.claims: list[dict[tuple[int, int], int]] = [{} for _ in self.book.sheets]
         self.result = [None] * len(self.cells)
         self.spills = {}
@@ -547,7 +633,29 @@ class Recalc:
         ext = self.extent[s]
         ext[0], ext[1] = max(ext[0], a.r2), max(ext[1], a.c2)
 
+    @property
+    def graph(self) -> tuple[list[tuple[int, ...]], list[list[int]], list[list[int]]]:
+        """(units, the units each needs, components) of the last pass, for tools that trace
+        results back: what a unit needs through ranges and names is listed as the units
+        behind them, so every node of this view is a unit."""
+        graph = self._graph_used
+        n = len(graph.units)
+        needs = []
+        for u in range(n):
+            found, seen, todo = set(), set(), list(graph.adj[u])
+            while todo:
+                v = todo.pop()
+                if v < n:
+                    found.add(v)
+                elif v not in seen:
+                    seen.add(v)
+                    todo += graph.adj[v]
+            needs.append(sorted(found))
+        comps = [[u for u in comp if u < n] for comp in graph.comps]
+        return graph.units, needs, [comp for comp in comps if comp]
+
     def _evaluate(self, graph: Graph, assumed: dict[int, Area]) -> None:
+        self._graph_used = graph  # the order the results come from (see :attr:`graph`)
         self._reset(assumed)
         self._context = _Context(self)
         self._column = _Column(self)
@@ -625,7 +733,7 @@ class Recalc:
             self._store(fi, t.error)
             return
         ctx = self._context
-        ctx.sheet, ctx.dr, ctx.dc = fc.sheet, fc.row - t.row, fc.col - t.col
+        ctx.sheet, ctx.dr, ctx.dc, ctx.row, ctx.col = fc.sheet, fc.row - t.row, fc.col - t.col, fc.row, fc.col
         self.budget.start()
         self._store(fi, value_of(t.ast, ctx))
 

@@ -43,7 +43,7 @@ NUMBERS: dict[str, str] = {
     "liquid_heat_capacity": "J/(mol*K)",
     "liquid_heat_capacity.temperature": "K",
 }
-TEXTS = ("name", "formula", "designation", "aliases", "note", "associating")
+TEXTS = ("name", "formula", "designation", "aliases", "note", "associating", "equation")
 REQUIRED = ("name", "molar_mass", "critical_temperature", "critical_pressure")
 LINES = ("boil", "melt", "sublime")
 # line fields: "<line>.<key>"; numbers in K and Pa, lists of numbers written as [a, b, ...]
@@ -55,6 +55,8 @@ LINE_NUMBERS = {"ancillary": ("Tc", "pc"), "antoine": ("A", "B", "C"), "simon_gl
 LINE_LISTS = {"ancillary": (("n", "t"),), "antoine": (), "simon_glatzel": (),
               "ancillary_melting": (("a", "t"), ("b", "s")), "ancillary_sublimation": (("a", "t"),)}
 OPTIONAL_LISTS = ("b", "s")
+# the ideal-gas heat capacity: rows "ideal_gas_cp.<key>" like a line's, its forms in ..ideal_gas
+IDEAL_GAS = "ideal_gas_cp"
 
 
 @dataclass
@@ -65,8 +67,10 @@ class Definition:
     aliases: tuple[str, ...] = ()
     associating: bool = False
     note: str = ""
+    equation: str = ""  # key of a shipped equation of state (data/equations/<key>.toml) for the fluid
     values: dict[str, float] = field(default_factory=dict)
     lines: dict[str, dict[str, Any]] = field(default_factory=dict)
+    ideal_gas: dict[str, Any] = field(default_factory=dict)
     sources: dict[str, str] = field(default_factory=dict)
 
     @classmethod
@@ -86,6 +90,9 @@ class Definition:
             elif key.split(".")[0] in LINES and "." in key:
                 line, part = key.split(".", 1)
                 d.lines.setdefault(line, {})[part] = _line_value(key, part, value)
+            elif key.startswith(IDEAL_GAS + "."):
+                part = key.split(".", 1)[1]
+                d.ideal_gas[part] = _line_value(key, part, value)
             else:
                 raise ModelError(BAD_ARGUMENT, f"unknown field '{raw_key}' in the substance definition")
         d.sources = dict(sources or {})
@@ -100,11 +107,14 @@ class Definition:
                                             ("associating", "TRUE" if self.associating else "FALSE", "")]
         if self.note:
             rows.append(("note", self.note, ""))
+        if self.equation:
+            rows.append(("equation", self.equation, ""))
         rows += [(k, self.values[k], NUMBERS[k]) for k in NUMBERS if k in self.values]
-        for line in LINES:
-            for part, value in self.lines.get(line, {}).items():
+        tables = [(line, self.lines.get(line, {})) for line in LINES] + [(IDEAL_GAS, self.ideal_gas)]
+        for prefix, table in tables:
+            for part, value in table.items():
                 shown = "[" + ", ".join(repr(float(v)) for v in value) + "]" if isinstance(value, list) else value
-                rows.append((f"{line}.{part}", shown, ""))
+                rows.append((f"{prefix}.{part}", shown, ""))
         return rows
 
 
@@ -134,6 +144,7 @@ def _number(key: str, value: Any, unit: Any, si: str) -> float:
 
 
 def _line_value(key: str, part: str, value: Any) -> Any:
+    """A line's or the ideal-gas table's value: its texts stay text, lists become lists of floats."""
     if part in LINE_TEXTS:
         return str(value).strip()
     if isinstance(value, (list, tuple)) or isinstance(value, str) and value.strip().startswith("["):
@@ -151,6 +162,12 @@ def _validate(d: Definition) -> None:
             raise ModelError(BAD_ARGUMENT, "the substance definition needs a 'name'")
         if key != "name" and key not in d.values:
             raise ModelError(BAD_ARGUMENT, f"the substance definition needs '{key}'")
+    if d.equation:
+        from ..helmholtz.equation import equation_keys
+
+        if d.equation not in equation_keys():
+            raise ModelError(BAD_ARGUMENT, f"field 'equation': no equation of state '{d.equation}'; known: "
+                                           f"{', '.join(sorted(equation_keys()))}")
     v = d.values
     if "acentric_factor" not in v and "normal_boiling_point" not in v:
         raise ModelError(BAD_ARGUMENT, "the substance definition needs 'acentric_factor' or 'normal_boiling_point'")
@@ -166,6 +183,10 @@ def _validate(d: Definition) -> None:
         raise ModelError(BAD_ARGUMENT, "field 'triple_point_pressure' must be below the critical pressure")
     for line, table in d.lines.items():
         _validate_line(line, table)
+    if d.ideal_gas:
+        from .. import ideal_gas
+
+        ideal_gas.validate(d.ideal_gas)
 
 
 def _validate_line(line: str, table: dict[str, Any]) -> None:
@@ -213,10 +234,18 @@ def load_builtin(key: str) -> Definition:
     text = resources.files("cellfuncs.data").joinpath("substances", f"{key}.toml").read_text(encoding="utf-8")
     data = tomllib.loads(text)
     fields: dict[str, Any] = {k: data[k] for k in TEXTS if k in data}
+    from ..helmholtz.equation import equation_keys
+
+    if key in equation_keys():  # the substance's fluid comes from its equation of state
+        fields["equation"] = key
     if "aliases" in fields:
         fields["aliases"] = ", ".join(fields["aliases"])
     sources: dict[str, str] = {}
     for key_, entry in data.get("constants", {}).items():
+        # data files write each unit exactly as NUMBERS names it, so a misspelt unit is an error, not a conversion
+        if key_ in NUMBERS and entry.get("unit") != NUMBERS[key_]:
+            raise ModelError(BAD_ARGUMENT, f"{key}.toml: constant '{key_}' has unit {entry.get('unit')!r}; "
+                                           f"data files write {NUMBERS[key_]!r}")
         fields[key_] = (entry["value"], entry.get("unit"))
         sources[key_] = entry.get("reference", "") + (" (recalled from memory of the table)" if entry.get("memory") else "")
         for state in ("temperature",):
@@ -228,4 +257,10 @@ def load_builtin(key: str) -> Definition:
                 continue
             fields[f"{line}.{part}"] = value
         sources[line] = table.get("reference", "") + (" (recalled from memory)" if table.get("memory") else "")
+    table = data.get(IDEAL_GAS, {})
+    for part, value in table.items():
+        if part not in ("memory", "note"):
+            fields[f"{IDEAL_GAS}.{part}"] = value
+    if table:
+        sources[IDEAL_GAS] = table.get("reference", "") + (" (recalled from memory)" if table.get("memory") else "")
     return Definition.from_fields(fields, sources)

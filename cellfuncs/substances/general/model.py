@@ -196,7 +196,7 @@ class GeneralSubstance(Substance):
             self._melt_range = (t0, self._melt.get("T_max", 10.0 * t0))
         elif self.has_triple and "enthalpy_of_fusion" in v and np.isfinite(self.v_solid):
             tt, pt = self.triple
-            dv = float(self.liquid.volume(tt, pt, pt)) - self.v_solid
+            dv = self._v_liquid_triple() - self.v_solid
             self._melt_slope = v["enthalpy_of_fusion"] / dv
             t_top = tt * np.exp((P_MAX - pt) / self._melt_slope)
             self._melt_range = (min(tt, t_top), max(tt, t_top))
@@ -207,6 +207,11 @@ class GeneralSubstance(Substance):
             self._melt_range = (self.triple.temperature, self.triple.temperature)
         else:
             self._melt_range = None
+
+    def _v_liquid_triple(self) -> float:
+        """Molar volume of the liquid at the triple point (for the Clapeyron melting line)."""
+        tt, pt = self.triple
+        return float(self.liquid.volume(tt, pt, pt))
 
     def _p_melt(self, T: np.ndarray) -> np.ndarray:
         if self._melt is not None:
@@ -434,14 +439,7 @@ class GeneralSubstance(Substance):
         p_sat = self._p_boil(t_in)
         sub.flag(q < p_sat * (1 - LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"liquid {self.name} at {fmt(tt)} K and "
                  f"{fmt(qq)} Pa is below its vapour pressure: superheated liquid is outside the model", t, q)
-        if self._melt_range is not None:
-            p_lo, p_hi = self._melt_p_range
-            frozen = (q >= p_lo) & (q <= p_hi)
-            if frozen.any():
-                t_m = np.full(t.shape, -np.inf)
-                t_m[frozen] = self._t_melt(q[frozen])
-                sub.flag(t < t_m * (1 - LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"liquid {self.name} at {fmt(tt)} K "
-                         f"and {fmt(qq)} Pa is below its melting temperature", t, q)
+        self._flag_frozen(sub, t, q)
         volume = self.liquid.volume(t_in, q, p_sat)
         step = 1e-3
         t_up, t_down = np.minimum(t_in + step, self.tc), t_in - step
@@ -462,6 +460,17 @@ class GeneralSubstance(Substance):
         if fields.wants("g"):  # the chemical potential needs the vapour's fugacity: only when asked
             values["g"] = self._mu_liquid(t_in, q)
         self._store(fields, sel, r, sub, **values)
+
+    def _flag_frozen(self, sub: Result, t: np.ndarray, q: np.ndarray, word: str = "liquid") -> None:
+        """Flag fluid states below the melting temperature at their pressure (the solid's region)."""
+        if self._melt_range is not None:
+            p_lo, p_hi = self._melt_p_range
+            frozen = (q >= p_lo) & (q <= p_hi)
+            if frozen.any():
+                t_m = np.full(t.shape, -np.inf)
+                t_m[frozen] = self._t_melt(q[frozen])
+                sub.flag(t < t_m * (1 - LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"{word} {self.name} at {fmt(tt)} K "
+                         f"and {fmt(qq)} Pa is below its melting temperature", t, q)
 
     def _gas(self, t, q, sel, r, fields, sub: Result) -> None:
         z = self.eos.compressibility(t, q, "vapor")

@@ -143,9 +143,14 @@ class _GasRegion:
     The residual series runs in pi and (tau - tau_shift).
     """
 
-    def __init__(self, ideal: str, residual: str, reducing: str):
+    def __init__(self, ideal: str, residual: str, reducing: str, ideal_changes: str | None = None):
         i0, ir = table(_DATA, ideal), table(_DATA, residual)
-        self._ideal = _PowerSeries(np.zeros_like(i0["J0"]), i0["J0"], i0["n0"])
+        n0 = i0["n0"].copy()
+        if ideal_changes is not None:  # a variant that replaces some of another region's ideal-gas terms
+            changes = table(_DATA, ideal_changes)
+            for j0, value in zip(changes["J0"], changes["n0"]):
+                n0[np.flatnonzero(i0["J0"] == j0)[0]] = value
+        self._ideal = _PowerSeries(np.zeros_like(i0["J0"]), i0["J0"], n0)
         self._residual = _PowerSeries(ir["I"], ir["J"], ir["n"])
         self._tau_shift = ir.get("tau_shift", 0.0)
         self._p_star = constant(_DATA, f"{reducing}_reducing_pressure").value
@@ -162,6 +167,8 @@ class _GasRegion:
 
 
 _REGION2 = _GasRegion("region2_ideal", "region2_residual", "region2")
+_REGION2_METASTABLE = _GasRegion("region2_ideal", "region2_metastable_residual", "region2",
+                                 ideal_changes="region2_metastable_ideal")
 _REGION5 = _GasRegion("region5_ideal", "region5_residual", "region5")
 
 
@@ -177,6 +184,18 @@ def region2(T: ArrayLike, p: ArrayLike) -> Props:
     (0.0054294662, 5175.403)
     """
     return _REGION2(T, p)
+
+
+def region2_metastable(T: ArrayLike, p: ArrayLike) -> Props:
+    """Metastable (supersaturated) vapour, IAPWS R7-97(2012) Sec. 6.2, eqs. (18)-(19) with Table 16.
+
+    Valid from the saturated-vapour line to the 5 % equilibrium moisture line, from the triple-point
+    pressure to 10 MPa; not checked here.
+
+    >>> round(float(region2_metastable(450.0, 1e6).v), 9)
+    0.19251654
+    """
+    return _REGION2_METASTABLE(T, p)
 
 
 def region5(T: ArrayLike, p: ArrayLike) -> Props:

@@ -58,6 +58,10 @@ P_MAX_FLUID = 100e6  # Pa, regions 1, 2 and 3
 P_MAX_LIQUID = 210e6  # Pa, region 1 extended along the ice Ih melting line
 P_MAX_REGION5 = 50e6  # Pa
 ICE_IH_P_MAX = 210e6  # Pa, IAPWS R10-06 range
+META_VAPOUR_P_MAX = constant(_DATA, "metastable_vapour_p_max").value
+META_VAPOUR_MOISTURE = constant(_DATA, "metastable_vapour_moisture").value
+SUPERHEAT_MARGIN = constant(_DATA, "superheated_liquid_margin").value
+SUPERCOOL_MARGIN = constant(_DATA, "supercooled_liquid_margin").value
 
 SOLIDS = tuple(f"ice {name}" for name in ice_lines.ICES)  # ice Ih, ice III, ice V, ice VI, ice VII
 _IH_P_TOP = ice_lines.line_range("Ih")[1][1]  # 208.566 MPa, the ice Ih-III-liquid triple point
@@ -102,8 +106,7 @@ def _molar(p: Props) -> Props:
 
 
 class Water(Substance):
-    name = "water"
-    aliases = ("water", "h2o", "r-718", "r718")
+    name = load(_DATA)["name"]
     molar_mass = M
     critical = FixedPoint(TC, PC)
     triple = FixedPoint(TT, PT)
@@ -219,23 +222,34 @@ class Water(Substance):
                    "(only ice Ih has one, IAPWS R10-06)", phase)
 
     def _liquid(self, t, q, sel, r: Result, fields) -> None:
+        """Region 1 (region 3 above 623.15 K); named as a phase, also metastable: superheated up to
+        SUPERHEAT_MARGIN above the saturation temperature, supercooled down to SUPERCOOL_MARGIN below
+        the melting temperature."""
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(q > P_MAX_LIQUID, OUT_OF_RANGE, "liquid water at {} Pa is above the formulation's range (210 MPa)", q)
         sub.flag((t > REGION1_T_MAX) & (q > P_MAX_FLUID), OUT_OF_RANGE,
                  "liquid water above 623.15 K is covered to 100 MPa only; got {} Pa", q)
-        # IF97 region 1 starts at 273.15 K; below it the extension reaches down to the melting line
-        cold = t < if97.T_MIN
-        p_sat = if97_saturation.saturation_pressure(np.where(cold, TT, t))
-        sub.flag(~cold & (q < p_sat * (1 - LINE_TOL)), OUT_OF_RANGE,
-                 lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is below its vapour pressure "
-                 f"({fmt(if97_saturation.saturation_pressure(tt))} Pa): superheated liquid is outside IF97", t, q)
-        freeze = cold
-        if freeze.any():
+        warm = t >= TT
+        p_sat = if97_saturation.saturation_pressure(np.clip(t, TT, TC))
+        superheated = warm & (q < p_sat * (1 - LINE_TOL))
+        if superheated.any():
+            t_sat = np.full(t.shape, np.inf)
+            t_sat[superheated] = if97_saturation.saturation_temperature(np.maximum(q[superheated], PT))
+            sub.flag(superheated & ((t > t_sat + SUPERHEAT_MARGIN) | (t > REGION1_T_MAX)), OUT_OF_RANGE,
+                     lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is superheated by more than "
+                     f"{fmt(SUPERHEAT_MARGIN)} K, the limit of the metastable liquid (IF97 region 1, saturation at "
+                     f"{fmt(if97_saturation.saturation_temperature(max(qq, PT)))} K)", t, q)
+        cold = t < TT
+        sub.flag(cold & (q < PT), OUT_OF_RANGE, lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is "
+                 f"below the triple-point pressure ({fmt(PT)} Pa) as well as supercooled: outside the formulations",
+                 t, q)
+        if cold.any():
             t_melt = np.full(t.shape, -np.inf)
-            t_melt[freeze], _ = ice_lines.melting_temperature_any(np.maximum(q[freeze], PT))
-            sub.flag(t < t_melt * (1 - MELT_JOIN_TOL), OUT_OF_RANGE,
-                     lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is below its melting temperature "
-                     "(supercooled liquid is outside the formulation)", t, q)
+            t_melt[cold], _ = ice_lines.melting_temperature_any(np.maximum(q[cold], PT))
+            sub.flag(cold & ((t < t_melt - SUPERCOOL_MARGIN) | (t < _MELT_T_MIN * (1 - MELT_JOIN_TOL))), OUT_OF_RANGE,
+                     lambda tt, qq: f"liquid water at {fmt(tt)} K and {fmt(qq)} Pa is supercooled by more than "
+                     f"{fmt(SUPERCOOL_MARGIN)} K below its melting temperature or below {fmt(_MELT_T_MIN)} K, the limit "
+                     "of the metastable liquid (IF97 region 1 extended)", t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         low = ok & (t <= REGION1_T_MAX)
         if low.any():
@@ -246,16 +260,39 @@ class Water(Substance):
         self._report(r, sel, sub)
 
     def _vapor(self, t, q, sel, r: Result, fields) -> None:
+        """Region 2 (region 3 above B23); named as a phase, also supersaturated above the vapour
+        pressure, by IF97's metastable-vapour equation, to the 5 % equilibrium moisture line."""
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(t < REGION2_T_MIN, OUT_OF_RANGE,
                  "water vapour below 200 K is outside the formulation (IF97 region 2 extended to 200 K); got {} K", t)
         cold = t < TT
         p_line = np.where(cold, ice_lines.sublimation_pressure(np.clip(t, REGION2_T_MIN, TT)),
                           if97_saturation.saturation_pressure(np.clip(t, TT, TC)))
-        sub.flag(q > p_line * (1 + LINE_TOL), OUT_OF_RANGE,
-                 lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is above its "
-                 f"{'sublimation' if tt < TT else 'vapour'} pressure: supersaturated vapour is outside IF97", t, q)
+        above = q > p_line * (1 + LINE_TOL)
+        sub.flag(above & cold, OUT_OF_RANGE, lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is above its "
+                 "sublimation pressure: vapour supersaturated over ice is outside the formulations", t, q)
+        sub.flag(above & ~cold & (q > META_VAPOUR_P_MAX), OUT_OF_RANGE,
+                 lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is above its vapour pressure: "
+                 f"supersaturated vapour is covered to {fmt(META_VAPOUR_P_MAX)} Pa only (IF97's metastable-vapour "
+                 "equation)", t, q)
+        meta = above & ~cold & (q <= META_VAPOUR_P_MAX)
+        meta_props = None
+        if meta.any():
+            tm, qm = t[meta], q[meta]
+            meta_props = if97.region2_metastable(tm, qm)
+            t_sat = if97_saturation.saturation_temperature(qm)
+            h_liq, h_vap = if97.region1(t_sat, qm).h, if97.region2(t_sat, qm).h
+            wet = np.zeros(t.shape, bool)
+            wet[meta] = (meta_props.h - h_liq) / (h_vap - h_liq) < 1.0 - META_VAPOUR_MOISTURE
+            sub.flag(wet, OUT_OF_RANGE, lambda tt, qq: f"water vapour at {fmt(tt)} K and {fmt(qq)} Pa is "
+                     f"supersaturated beyond the {fmt(100 * META_VAPOUR_MOISTURE)} % equilibrium moisture line, where "
+                     "IF97's metastable-vapour equation ends", t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        if meta_props is not None:
+            keep = ok[meta]
+            if keep.any():
+                self._put_props(fields, sel, ok & meta, Props(*(np.asarray(f)[keep] for f in meta_props)))
+            ok = ok & ~meta
         above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, REGION3_T_MAX)))
         two = ok & ~above_b23
         if two.any():
@@ -330,11 +367,17 @@ _MODELS = {
              "251.165 K to 715 K, 611.657 Pa to 20.618 GPa", "IAPWS R14-08(2011), eqs. 1-5"),
     "sublime": ("IAPWS R14-08 sublimation-pressure equation of ice Ih", "50 K to 273.16 K", "IAPWS R14-08(2011), eq. 6"),
     "liquid": ("IAPWS-IF97 region 1 (region 3 above 623.15 K)",
-               "melting line to 647.096 K, vapour pressure to 100 MPa (region 1 extended to 210 MPa)",
+               "melting line to 647.096 K, vapour pressure to 100 MPa (region 1 extended to 210 MPa); named "
+               f"as a phase also metastable: superheated to {SUPERHEAT_MARGIN:g} K above saturation, supercooled "
+               f"to {SUPERCOOL_MARGIN:g} K below the melting line (region 1 extended, not below the triple-point "
+               "pressure)",
                "IAPWS R7-97(2012), sections 5 and 7"),
-    "vapor": ("IAPWS-IF97 region 2 (region 3 between the B23 line and saturation)",
-              "200 K to 647.096 K up to the vapour or sublimation pressure (region 2 extended below 273.15 K)",
-              "IAPWS R7-97(2012), sections 6 and 7"),
+    "vapor": ("IAPWS-IF97 region 2 (region 3 between the B23 line and saturation); supersaturated vapour: "
+              "IF97's metastable-vapour equation",
+              "200 K to 647.096 K up to the vapour or sublimation pressure (region 2 extended below 273.15 K); "
+              f"supersaturated above 273.16 K to the {100 * META_VAPOUR_MOISTURE:g} % equilibrium moisture line "
+              f"and {META_VAPOUR_P_MAX / 1e6:g} MPa",
+              "IAPWS R7-97(2012), sections 6 and 7 (metastable vapour: section 6.2)"),
     "fluid": ("IAPWS-IF97 regions 2, 3 and 5", "647.096 K to 1073.15 K up to 100 MPa; to 2273.15 K up to 50 MPa",
               "IAPWS R7-97(2012), sections 6, 7 and 9"),
     "solid": ("IAPWS R10-06 Gibbs function of ice Ih", "up to 273.16 K and 210 MPa, not above the melting line",
