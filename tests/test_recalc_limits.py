@@ -176,3 +176,56 @@ def test_help_lists_every_exit_code_and_every_limit():
     assert "32,767 characters" in text and "8,192" in text and "--split-hard-links" in text
     top = subprocess.run([sys.executable, "-m", "cellfuncs", "--help"], capture_output=True, text=True).stdout
     assert "4 an output that could not be written" in " ".join(top.split())
+
+
+# ---- defined names ---------------------------------------------------------------------
+def _engine(path: Path, functions: dict):
+    from cellfuncs.workbook.engine import Recalc
+    from cellfuncs.workbook.model import load
+    from cellfuncs.workbook.package import Package
+
+    pkg = Package(str(path))
+    try:
+        engine = Recalc(load(pkg), functions)
+        engine.run()
+    finally:
+        pkg.close()
+    return engine
+
+
+def _named_book(tmp_path: Path, cells: dict[str, object], names: dict[str, str]) -> Path:
+    from openpyxl.workbook.defined_name import DefinedName
+
+    path = book(tmp_path, cells)
+    wb = openpyxl.load_workbook(path)
+    for name, text in names.items():
+        wb.defined_names[name] = DefinedName(name, attr_text=text)
+    wb.save(path)
+    return path
+
+
+def test_a_name_is_evaluated_once_however_many_cells_and_names_use_it(tmp_path):
+    calls = []
+
+    def tick() -> float:
+        calls.append(1)
+        return 2.0
+
+    cells = {f"A{r}": "=Twice+Base" for r in range(1, 51)}
+    path = _named_book(tmp_path, cells, {"Base": "TICK()", "Twice": "Base+Base"})
+    engine = _engine(path, {"TICK": tick})
+    assert [engine.values[0][(r, 1)] for r in (1, 50)] == [6.0, 6.0]
+    assert len(calls) == 1
+
+
+def test_a_name_using_the_cells_position_has_a_value_per_cell(tmp_path):
+    path = _named_book(tmp_path, {"A5": "=Here", "B7": "=Here*10", "C2": "=Deeper"},
+                       {"Here": "ROW()", "Deeper": "Here+COLUMN()"})
+    engine = _engine(path, {})
+    assert (engine.values[0][(5, 1)], engine.values[0][(7, 2)], engine.values[0][(2, 3)]) == (5.0, 70.0, 5.0)
+
+
+def test_names_in_a_loop_name_it(tmp_path):
+    path = _named_book(tmp_path, {"A1": "=Ping"}, {"Ping": "Pong+1", "Pong": "Ping*2"})
+    code, _, err = cli(str(path), "--check")
+    assert code == 1 and "circular reference: the name P" in err and "-> the name P" in err
