@@ -2,7 +2,8 @@
 and LibreOffice.
 
 Exit status: 0 clean; 1 an error value in a result; 2 a usage problem or a
-formula that does not parse (``eval`` still evaluates the others); 3 an internal failure.
+formula that does not parse (``eval`` still evaluates the others; ``recalc``: a
+refused file); 3 an internal failure; 4 (``recalc``) an output that could not be written.
 """
 
 from __future__ import annotations
@@ -24,7 +25,9 @@ def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="cellfuncs",
         description="Phase equilibrium of pure substances as spreadsheet functions.",
-        epilog=CAUTION,
+        epilog="Exit status: 0 clean; 1 an error value in a result; 2 a usage problem, a formula that does not "
+               "parse or a refused workbook; 3 an internal failure; 4 an output that could not be written "
+               "(cellfuncs recalc --help says more).\n\n" + CAUTION,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"cellfuncs {__version__}")
@@ -195,9 +198,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         if args.command == "eval":
             return _evaluate(args.formulas, args.json)
         if args.command == "recalc":
-            from .workbook.command import run
+            from .workbook.command import limits_of, run
 
-            return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance)
+            return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance, limits_of(args),
+                       args.split_hard_links)
         if args.command == "units":
             return _units()
         if args.command == "excel-setup":

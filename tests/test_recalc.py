@@ -425,7 +425,7 @@ def test_a_failure_midway_through_writing_leaves_the_old_file(tmp_path, monkeypa
 
     monkeypatch.setattr(zipout, "_deflate", deflate_then_fail)
     code, _, err = cli(str(path), "--in-place")
-    assert code == 3 and "internal error: OSError: disk full" in err
+    assert code == 4 and f"recalc: {path}: not written: disk full" in err  # an output error, not an internal one
     assert path.read_bytes() == before
     assert [p.name for p in tmp_path.iterdir()] == ["plant.xlsx"]
 

@@ -20,6 +20,7 @@ from typing import Any, Callable, Sequence, Union
 import numpy as np
 
 from ..errors import CALC, DIV0, NUM, VALUE, CellError
+from .budget import charge
 from .coerce import to_number
 from .nodes import Scalar
 
@@ -87,7 +88,8 @@ def map_values(fn: Callable[..., Scalar], *values: Value) -> Value:
     """``fn`` applied to scalars, or element by element over arrays broadcast to a common
     shape (1x1 with anything, a row with a column, equal sizes along each axis).
 
-    Incompatible shapes give one #VALUE! naming them.
+    Incompatible shapes give one #VALUE! naming them; a result over the active work budget
+    (see :mod:`.budget`) is that budget's error value.
 
     >>> map_values(max, object_array([[1.0, 5.0]]), 3.0).tolist()
     [[3.0, 5.0]]
@@ -101,11 +103,14 @@ def map_values(fn: Callable[..., Scalar], *values: Value) -> Value:
         return fn(*values)
     arrays = [as_array(v) for v in values]
     try:
-        np.broadcast_shapes(*(a.shape for a in arrays))
+        shape = np.broadcast_shapes(*(a.shape for a in arrays))
     except ValueError:
         shapes = [shape_text(v.shape) for v in values if type(v) is np.ndarray]
         listed = ", ".join(shapes[:-1]) + " and " + shapes[-1]
         return CellError(VALUE, f"array shapes {listed} do not match")
+    over = charge(shape)  # a whole column against a whole row: refused before it is built
+    if over is not None:
+        return over
     with np.errstate(all="ignore"):  # fn turns overflow into error values; numpy need not warn
         return np.frompyfunc(fn, len(arrays), 1)(*arrays)
 

@@ -18,6 +18,7 @@ import numpy as np
 
 from ..errors import DIV0, NAME, NUM, REF, VALUE, CellError, internal_error, strict
 from .arrays import Value, as_value, object_array
+from .budget import charge
 from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary
 from .operators import BINARY, UNARY
 from .parser import parse
@@ -122,12 +123,19 @@ def _call(node: Call, context: Context) -> Value:
         if fn is None:
             return CellError(NAME, f"unknown function {node.name}")
         args = [evaluate(a, context) for a in node.args]
+        over = _charge_call(args)
+        if over is not None:
+            return over
         try:
             result = fn(*args)
         except Exception as exc:  # a bug: the cell shows it instead of stopping the recalculation
             if strict():
                 raise
             return internal_error(exc, node.name)
+        if isinstance(result, np.ndarray) and result.ndim:
+            over = charge(result.shape)
+            if over is not None:
+                return over
         return as_value(result)
     count = len(node.args)
     if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
@@ -140,6 +148,19 @@ def _call(node: Call, context: Context) -> Value:
         return CellError(DIV0, f"{node.name}: division by zero")
     except (OverflowError, ValueError):
         return CellError(NUM, f"{node.name}: the result is not a finite number")
+
+
+def _charge_call(args: list) -> CellError | None:
+    """The work a pack function's arguments imply: they broadcast like numpy, so a column
+    against a row is a table, charged before the function builds it."""
+    shapes = [a.shape for a in args if type(a) is np.ndarray]
+    if not shapes:
+        return None
+    try:
+        shape = np.broadcast_shapes(*shapes)
+    except ValueError:  # the function reports shapes that do not match
+        return None
+    return charge(shape)
 
 
 _EVALUATORS: dict[type, Callable[[Any, Context], Value]] = {
@@ -164,13 +185,26 @@ def evaluate(node: Node, context: Context) -> Value:
     return _EVALUATORS[type(node)](node, context)
 
 
+def value_of(node: Node, context: Context) -> Value:
+    """:func:`evaluate`, with a tree too deep for Python's recursion (the parser accepts 200
+    levels; some functions take five frames a level) giving an error value, not an exception.
+
+    >>> print(value_of(parse("=" + "SUM(" * 199 + "1" + ")" * 199), SimpleContext()))
+    #VALUE! the formula nests functions too deeply to evaluate
+    """
+    try:
+        return evaluate(node, context)
+    except RecursionError:
+        return CellError(VALUE, "the formula nests functions too deeply to evaluate")
+
+
 def compute(formula: str, context: Context | None = None) -> Value:
     """Parse (cached) and evaluate ``formula``; without a context, a :class:`SimpleContext`.
 
     >>> compute('="x"&1/4'), compute("=-2^2")
     ('x0.25', 4.0)
     """
-    return evaluate(parse(formula), SimpleContext() if context is None else context)
+    return value_of(parse(formula), SimpleContext() if context is None else context)
 
 
 def collect(

@@ -71,15 +71,70 @@ def index(array: Value, row: Value, column: Value = _ABSENT) -> Value:
     return _take(a, row, column, whole=True)
 
 
+class Wildcard:
+    """Excel's ``*`` and ``?`` wildcards (``~`` escapes), case-insensitive, with a regex's
+    ``fullmatch`` and ``search``, in time linear in the pattern times the text: the parts
+    between stars are found one after the other, left to right, which is all a star needs
+    (one regex of several ``.*`` can take exponential time on a text that almost matches).
+
+    >>> w = Wildcard("a*b?d*~*")
+    >>> bool(w.fullmatch("AxxBcD*")), bool(w.fullmatch("abd*")), Wildcard("*a*a*a*a*a*a*a*a*a*b").fullmatch("a" * 60)
+    (True, False, None)
+    >>> Wildcard("b*d").search("abcde").start(), Wildcard("b*x").search("abcde")
+    (1, None)
+    """
+
+    def __init__(self, pattern: str):
+        pieces: list[list[str]] = [[]]  # the regex units between stars, each one character wide
+        for part in re.split(r"(~[*?~]|[*?])", pattern):
+            if part == "*":
+                pieces.append([])
+            elif part == "?":
+                pieces[-1].append(".")
+            elif part in _WILDCARD_LITERALS:
+                pieces[-1].append(re.escape(_WILDCARD_LITERALS[part]))
+            else:
+                pieces[-1] += [re.escape(ch) for ch in part]
+        flags = re.IGNORECASE | re.DOTALL
+        self.parts = [re.compile("".join(units), flags) for units in pieces]
+        self.last = len(pieces[-1])
+
+    def _rest(self, text: str, pos: int, anchored: bool) -> bool:
+        """Whether the parts after the first follow from ``pos`` (the last at the end if anchored)."""
+        middle, last = self.parts[1:-1], self.parts[-1]
+        for part in middle:
+            m = part.search(text, pos)
+            if m is None:
+                return False
+            pos = m.end()
+        if not anchored:
+            return last.search(text, pos) is not None
+        start = len(text) - self.last
+        return start >= pos and last.fullmatch(text, start) is not None
+
+    def fullmatch(self, text: str) -> bool | None:
+        """True if the whole text matches, else None (as a regex's ``fullmatch`` is falsy)."""
+        if len(self.parts) == 1:
+            return True if self.parts[0].fullmatch(text) else None
+        m = self.parts[0].match(text)
+        return True if m is not None and self._rest(text, m.end(), anchored=True) else None
+
+    def search(self, text: str, pos: int = 0) -> re.Match | None:
+        """The leftmost match at or after ``pos``, as the match of its part before the first
+        star (its ``start()`` is where the whole match starts), or None."""
+        m = self.parts[0].search(text, pos)
+        if m is None or len(self.parts) == 1:
+            return m
+        return m if self._rest(text, m.end(), anchored=False) else None
+
+
+_WILDCARD_LITERALS = {"~*": "*", "~?": "?", "~~": "~"}
+
+
 @lru_cache(maxsize=256)
-def wildcard(pattern: str) -> re.Pattern:
-    """Excel's ``*`` and ``?`` wildcards (``~`` escapes) as a case-insensitive regex."""
-    parts = re.split(r"(~[*?~]|[*?])", pattern)
-    regex = "".join(_WILDCARD_PARTS.get(p) or re.escape(p) for p in parts)
-    return re.compile(regex, re.IGNORECASE | re.DOTALL)
-
-
-_WILDCARD_PARTS = {"*": ".*", "?": ".", "~*": r"\*", "~?": r"\?", "~~": "~"}
+def wildcard(pattern: str) -> Wildcard:
+    """The :class:`Wildcard` of ``pattern`` (kept for reuse)."""
+    return Wildcard(pattern)
 
 
 def _find(x: Scalar, values: list, mode: int) -> float | CellError:

@@ -11,6 +11,7 @@ import numpy as np
 
 from ..errors import NUM, VALUE, CellError
 from .arrays import Value, as_array, as_value, shape_text
+from .budget import charge
 from .coerce import to_number
 from .evaluate import builtin
 
@@ -43,6 +44,9 @@ def mmult(a: Value, b: Value) -> Value:
             return m
     if x.shape[1] != y.shape[0]:
         return CellError(VALUE, f"MMULT of {shape_text(x.shape)} and {shape_text(y.shape)} matrices")
+    over = charge((x.shape[0], y.shape[1]))  # a column times a row is a table: counted before it is built
+    if over is not None:
+        return over
     with np.errstate(all="ignore"):  # an overflow becomes #NUM! elements
         return as_value(x @ y)
 
@@ -99,7 +103,7 @@ def munit(n: Value) -> Value:
         return CellError(VALUE, "MUNIT takes a size of at least 1")
     if k > 4096:
         return CellError(NUM, "MUNIT larger than 4096 x 4096 is not supported")
-    return as_value(np.eye(int(k)))
+    return charge((int(k), int(k))) or as_value(np.eye(int(k)))
 
 
 @builtin("SEQUENCE", 1, 4)
@@ -118,4 +122,4 @@ def sequence(rows: Value, columns: Value = 1.0, start: Value = 1.0, step: Value 
         return CellError(VALUE, "SEQUENCE needs at least one row and one column")
     if r * c > 1_048_576:
         return CellError(NUM, "SEQUENCE would be larger than a sheet column")
-    return as_value(first + inc * np.arange(r * c, dtype=float).reshape(r, c))
+    return charge((r, c)) or as_value(first + inc * np.arange(r * c, dtype=float).reshape(r, c))

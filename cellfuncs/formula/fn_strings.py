@@ -18,12 +18,12 @@ import numpy as np
 
 from ..errors import VALUE, CellError
 from .arrays import Value, elementwise
+from .budget import MAX_TEXT  # the most characters a cell holds
 from .coerce import to_bool, to_number, to_text
 from .evaluate import builtin
 from .fn_lookup import wildcard
 from .nodes import Scalar
 
-MAX_TEXT = 32767  # the most characters a cell holds
 
 
 def _count(v: Scalar, what: str, least: float = 0.0) -> int | CellError:
@@ -160,7 +160,11 @@ def substitute(text: Scalar, old: Scalar, new: Scalar, instance: Scalar = None) 
         return parts
     t, o, n = parts
     if instance is None:
-        return t.replace(o, n) if o else t
+        if not o:
+            return t
+        if len(t) + t.count(o) * (len(n) - len(o)) > MAX_TEXT:  # counted before the text is built
+            return CellError(VALUE, f"the text is longer than {MAX_TEXT} characters")
+        return t.replace(o, n)
     k = _count(instance, "SUBSTITUTE's instance", 1.0)
     if type(k) is CellError or not o:
         return k if type(k) is CellError else t
@@ -332,8 +336,9 @@ def concatenate(*values: Scalar) -> Scalar:
     parts = _texts(*values)
     if type(parts) is CellError:
         return parts
-    joined = "".join(parts)
-    return joined if len(joined) <= MAX_TEXT else CellError(VALUE, f"the text is longer than {MAX_TEXT} characters")
+    if sum(map(len, parts)) > MAX_TEXT:  # counted before the text is built
+        return CellError(VALUE, f"the text is longer than {MAX_TEXT} characters")
+    return "".join(parts)
 
 
 @builtin("TEXTJOIN", 3, None)
@@ -359,8 +364,9 @@ def textjoin(delimiter: Value, ignore_empty: Value, *values: Value) -> Scalar:
                 return t
             if t or not skip:
                 parts.append(t)
-    joined = d.join(parts)
-    return joined if len(joined) <= MAX_TEXT else CellError(VALUE, f"the text is longer than {MAX_TEXT} characters")
+    if sum(map(len, parts)) + len(d) * max(len(parts) - 1, 0) > MAX_TEXT:  # counted before the text is built
+        return CellError(VALUE, f"the text is longer than {MAX_TEXT} characters")
+    return d.join(parts)
 
 
 @builtin("T", 1)

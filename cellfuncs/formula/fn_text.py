@@ -17,6 +17,7 @@ import numpy as np
 
 from ..errors import NUM, VALUE, CellError
 from .arrays import Value, elementwise
+from .budget import text_error
 from .coerce import decimal_round, format_number, to_number, to_text
 from .evaluate import builtin
 from .numfmt import apply_format, general
@@ -31,13 +32,15 @@ def concat(*values: Value) -> str | CellError:
     'a2'
     """
     parts = []
+    length = 0
     for v in values:
         for x in v.flat if type(v) is np.ndarray else (v,):
             t = to_text(x)
             if type(t) is CellError:
                 return t
+            length += len(t)
             parts.append(t)
-    return "".join(parts)
+    return text_error(length) or "".join(parts)
 
 
 class _NumberFormat(NamedTuple):

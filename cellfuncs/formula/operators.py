@@ -14,6 +14,7 @@ from typing import Callable
 
 from ..errors import DIV0, NUM, CellError
 from .arrays import Value, elementwise, numeric
+from .budget import text_error
 from .coerce import compare, to_text
 from .nodes import Scalar
 
@@ -48,7 +49,9 @@ def _concat(a: Scalar, b: Scalar) -> Scalar:
     a, b = to_text(a), to_text(b)
     if type(a) is CellError:
         return a
-    return b if type(b) is CellError else a + b
+    if type(b) is CellError:
+        return b
+    return text_error(len(a) + len(b)) or a + b
 
 
 BINARY: dict[str, Callable[[Value, Value], Value]] = {

@@ -19,6 +19,7 @@ from functools import lru_cache
 from typing import NamedTuple
 
 from ..errors import parse_error_text
+from .budget import MAX_FORMULA_TEXT
 from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary, children
 
 _INFIX = {"=": 1, "<>": 1, "<": 1, ">": 1, "<=": 1, ">=": 1, "&": 2, "+": 3, "-": 3, "*": 4, "/": 4, "^": 5}
@@ -28,6 +29,7 @@ _PREFIXES = ("_XLFN.", "_XLWS.")
 # 64 nested function levels.
 MAX_DEPTH = 200
 
+_FILE_PREFIXES = re.compile(r"_xl(?:fn|ws|udf)\.", re.IGNORECASE)  # written in the file, not typed by users
 _FUNCTION_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_.]*\Z")
 _NAME = re.compile(r"[^\W\d][\w.?\\]*\Z")
 _SHEET = re.compile(r"(?:'((?:[^']|'')+)'|([^'!]+))!(.+)\Z")
@@ -267,8 +269,15 @@ def parse(formula: str) -> Node:
     Traceback (most recent call last):
     ...
     cellfuncs.formula.parser.FormulaSyntaxError: the formula ends too early
+    >>> parse("=" + "+".join(["1"] * 5000))
+    Traceback (most recent call last):
+    ...
+    cellfuncs.formula.parser.FormulaSyntaxError: the formula has 9,999 characters; Excel's limit is 8,192
     """
     text = formula.strip()
+    written = len(_FILE_PREFIXES.sub("", text)) - text.startswith("=")
+    if written > MAX_FORMULA_TEXT:  # before tokenizing: the tokens of a huge text would take gigabytes
+        raise FormulaSyntaxError(f"the formula has {written:,} characters; Excel's limit is {MAX_FORMULA_TEXT:,}")
     tokens = _tokens(text if text.startswith("=") else "=" + text)
     if not tokens:
         raise FormulaSyntaxError("the formula is empty")

@@ -2,23 +2,36 @@
 
 Standard output carries the differences of ``--check``, one per line
 (``file<TAB>Sheet!A1<TAB>cached<TAB>computed``); standard error the refused files, the
-error cells with their reasons and a summary line. Exit status, the highest over all
-files: 0 clean; 1 a difference (with --check) or an error cell (without it); 2 a usage
-problem or a refused file; 3 an internal failure.
+error cells with their reasons and a summary line. Every text from a workbook is printed
+with its control characters escaped, so no cell can start a line of its own. The exit
+status is the highest over all files (see :data:`EXIT_CODES`).
 """
 
 from __future__ import annotations
 
+import argparse
 import math
 import os
 import sys
 import time
 from typing import Sequence
 
+from ..formula.budget import MAX_FORMULA_TEXT, MAX_TEXT
+from .limits import DEFAULTS, FIELDS, Limits, option
 from .package import MAX_MEMBERS, MAX_RATIO, MAX_TOTAL, RATIO_FLOOR
+from .report import escaped
 from .sheetxml import MAX_CELLS, MAX_FORMULAS
 
 MAX_LISTED = 200  # error cells listed per file; the count covers them all
+
+EXIT_CODES = {
+    0: "every file recalculated without an error cell (with --check: without a difference)",
+    1: "an error cell (with --check: a cached value that differs from the recalculated one)",
+    2: "a usage problem, or a refused file (nothing written for it)",
+    3: "an internal failure (a bug; the file is left as it was)",
+    4: "an output could not be written (disk full, read-only file system, no permission, --out\n"
+       "     under a file, a folder where the output goes); the input is left as it was",
+}
 
 DESCRIPTION = (
     "Recalculate every formula of .xlsx/.xlsm workbooks with the pack's functions and the built-ins, in "
@@ -26,18 +39,60 @@ DESCRIPTION = (
     "other part stay as they are. Without --out or --in-place nothing is written (a dry run)."
 )
 
+LIMIT_HELP = {
+    "array_cells": "cells of one array a formula builds: a range it reads (whole columns and rows cut to the "
+                   "used range), the result of an operator or function over arrays (a column against a row is "
+                   "a table), a spill; over it the cell is #NUM! naming the limit",
+    "formula_work": "cells of all the arrays one formula (or defined name) builds while it is evaluated; "
+                    "over it the cell is #NUM! naming the limit",
+    "workbook_work": "cells of all the arrays all the formulas of one workbook build; past it the formulas "
+                     "still to come are #NUM! naming the limit",
+    "spill_cells": "cells the array formulas and spills of one workbook cover: stored array-formula ranges "
+                   "beyond it refuse the file, a spill that would pass it is #SPILL!",
+    "dependencies": "dependencies between the formulas, names and ranges of one workbook (each counted "
+                    "before it is followed); beyond it the file is refused",
+}
+
 LIMITS = f"""\
-Refused files (exit 2, nothing written): not a zip; an OLE compound file (how Excel stores
-an encrypted workbook); corrupt XML; XML with a DTD or an entity declaration; more than
+Refused files (exit 2, nothing written): not a regular file (a named pipe or a device);
+not a zip, or a damaged zip directory; an OLE compound file (how Excel stores an encrypted
+workbook); corrupt XML; XML with a DTD or an entity declaration; a part that is edited in an
+encoding other than UTF-8 or UTF-16 (UTF-16 parts are written back in UTF-16); more than
 {MAX_TOTAL // 2**20} MiB expanded in total; a member above {RATIO_FLOOR // 2**20} MiB compressed more than {MAX_RATIO}:1; more than
 {MAX_MEMBERS:,} zip members; more than {MAX_FORMULAS:,} formula cells or {MAX_CELLS:,} cells; a cell or a used
-range beyond Excel's limits (XFD1048576).
+range beyond Excel's limits (XFD1048576); array formulas whose stored ranges overlap or cover
+more than --max-spill-cells; more dependencies than --max-dependencies; with --in-place, a
+file with other hard links (unless --split-hard-links). --in-place writes through a symbolic
+link to its target.
+
+Limits on the work one workbook may ask for, counted before the work is done (the options
+above raise them): {DEFAULTS.array_cells:,} cells per array, {DEFAULTS.formula_work:,} array cells per formula,
+{DEFAULTS.workbook_work:,} per workbook, {DEFAULTS.spill_cells:,} spilled cells per workbook,
+{DEFAULTS.dependencies:,} dependencies per workbook. Texts
+longer than {MAX_TEXT:,} characters and formulas longer than {MAX_FORMULA_TEXT:,} are errors (Excel's limits);
+stored numbers that are not finite (NaN, INF, 1e999) are #NUM!.
 
 Values: a circular reference is #CALC! naming the loop; functions the engine lacks are
 #NAME?; references to other workbooks and DDE links are #REF!; an array result spills as an
 Excel 365 dynamic array (#SPILL! when cells are in the way). The calculation chain
 (xl/calcChain.xml) is dropped; docProps/custom.xml records the engine (RecalcEngine,
-RecalcEngineVersion). Error cells are listed on standard error, at most {MAX_LISTED} per file."""
+RecalcEngineVersion). Error cells are listed on standard error, at most {MAX_LISTED} per file.
+Temporary files (.NAME.cellfuncs-HOST-PID-XXXX.tmp beside the output) of runs that were
+killed are removed by the next run writing the same file.
+
+Exit status (the highest over all files):
+""" + "\n".join(f"  {code}  {text}" for code, text in EXIT_CODES.items())
+
+
+def _count(text: str) -> int:
+    """A limit given on the command line: a whole number of at least 1 (1_000_000 and 1e6 accepted)."""
+    try:
+        value = float(text.replace("_", "").replace(",", ""))
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number") from None
+    if not (math.isfinite(value) and value >= 1 and value == int(value)):
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of at least 1")
+    return int(value)
 
 
 def add_arguments(parser) -> None:
@@ -50,10 +105,23 @@ def add_arguments(parser) -> None:
                         help="write nothing; compare the cached values with recalculated ones (exit 1 on a difference)")
     parser.add_argument("--tolerance", type=float, default=1e-9, metavar="REL",
                         help="relative tolerance of --check for numbers (default 1e-9)")
+    parser.add_argument("--split-hard-links", action="store_true",
+                        help="with --in-place, replace a file that other hard links share too (they keep the old "
+                             "content)")
+    limits = parser.add_argument_group("limits on the work a workbook may ask for")
+    for name in FIELDS:
+        default = getattr(DEFAULTS, name)
+        limits.add_argument(option(name), dest=name, type=_count, default=default, metavar="N",
+                            help=f"{LIMIT_HELP[name]} (default {default:,})")
+
+
+def limits_of(args: argparse.Namespace) -> Limits:
+    """The limits the command line asks for."""
+    return Limits(**{name: getattr(args, name) for name in FIELDS})
 
 
 def _usage(message: str) -> int:
-    print(f"cellfuncs recalc: {message}", file=sys.stderr)
+    print(f"cellfuncs recalc: {escaped(message)}", file=sys.stderr)
     return 2
 
 
@@ -66,6 +134,12 @@ def _destinations(paths: Sequence[str], out: str | None, in_place: bool) -> list
             return f"{seen[name]} and {path} have the same file name"
         seen[name] = path
     if in_place:
+        targets: dict[str, str] = {}
+        for path in paths:
+            target = os.path.realpath(path)
+            if target in targets:
+                return f"{targets[target]} and {path} are the same file"
+            targets[target] = path
         return list(paths)
     if out is None:
         return [None] * len(paths)
@@ -80,9 +154,9 @@ def _destinations(paths: Sequence[str], out: str | None, in_place: bool) -> list
 
 
 def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, check: bool = False,
-        tolerance: float = 1e-9) -> int:
+        tolerance: float = 1e-9, limits: Limits = DEFAULTS, split_links: bool = False) -> int:
     """Recalculate ``paths``; print differences, errors and the summary; return the exit status."""
-    from .recalc import recalc_file
+    from .recalc import recalc_file, unwritable
     from .report import Progress
 
     started = time.perf_counter()
@@ -94,34 +168,43 @@ def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, ch
     if isinstance(dests, str):
         return _usage(dests)
     if out is not None:
-        os.makedirs(out, exist_ok=True)
+        try:
+            os.makedirs(out, exist_ok=True)
+        except OSError as exc:
+            print(f"cellfuncs recalc: cannot create the folder {escaped(out)}: {escaped(unwritable(exc))}",
+                  file=sys.stderr)
+            return 4
     progress = Progress(len(paths))
     status = cells = errors = diffs = 0
     for index, (path, dest) in enumerate(zip(paths, dests)):
+        shown = escaped(path)
         progress.file(index, os.path.basename(path))
         try:
-            outcome = recalc_file(path, dest, check, tolerance, progress.update)
+            outcome = recalc_file(path, dest, check, tolerance, progress.update, limits, split_links)
         except Exception as exc:  # an internal failure: report it, go on with the next file
             progress.clear()
-            print(f"recalc: {path}: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
+            print(f"recalc: {shown}: internal error: {type(exc).__name__}: {escaped(str(exc))}", file=sys.stderr)
             status = max(status, 3)
             continue
         progress.clear()
         if outcome.refused is not None:
-            print(f"recalc: {path}: refused: {outcome.refused}", file=sys.stderr)
+            print(f"recalc: {shown}: refused: {escaped(outcome.refused)}", file=sys.stderr)
             status = max(status, 2)
             continue
         cells += outcome.cells
         errors += len(outcome.errors)
         diffs += len(outcome.differences)
-        for where, cached, computed in outcome.differences:
-            print(f"{path}\t{where}\t{cached}\t{computed}")
+        for where, cached, computed in outcome.differences:  # show() has escaped the values
+            print(f"{shown}\t{escaped(where)}\t{cached}\t{computed}")
         for where, error in outcome.errors[:MAX_LISTED]:
-            print(f"recalc: {path}: {where}: {error}", file=sys.stderr)
+            print(f"recalc: {shown}: {escaped(where)}: {escaped(str(error))}", file=sys.stderr)
         if len(outcome.errors) > MAX_LISTED:
-            print(f"recalc: {path}: ... and {len(outcome.errors) - MAX_LISTED} more error cells", file=sys.stderr)
+            print(f"recalc: {shown}: ... and {len(outcome.errors) - MAX_LISTED} more error cells", file=sys.stderr)
         if (check and outcome.differences) or (not check and outcome.errors):
             status = max(status, 1)
+        if outcome.unwritten is not None:
+            print(f"recalc: {shown}: not written: {escaped(outcome.unwritten)}", file=sys.stderr)
+            status = max(status, 4)
     sys.stdout.flush()
     seconds = time.perf_counter() - started
     print(f"recalc: {len(paths)} files, {cells} cells, {errors} errors, {diffs} differences, {seconds:.2f} s",

@@ -15,6 +15,12 @@ Decisions:
   A legacy array formula ({=...}) fills its stored range, as Excel does.
 - A formula whose value is a blank cell shows 0, as in Excel.
 - References to whole columns or rows are cut to the sheet's used range.
+- A defined name is evaluated once per sheet that uses it, in dependency order like a
+  formula (its own node of the graph), and remembered: a name used twice by another name
+  costs nothing more, and a chain of names a thousand deep needs no recursion.
+- Work is counted before it is done (see :mod:`.limits`): declared array ranges and the
+  dependencies between formulas while reading (over a limit: :class:`Refused`), each
+  array a formula builds while evaluating (over a limit: that cell's error value).
 
 >>> from cellfuncs.workbook.model import Book, Sheet
 >>> from cellfuncs.workbook.sheetxml import FormulaXml, SheetScan
@@ -28,19 +34,24 @@ from __future__ import annotations
 
 import bisect
 from dataclasses import dataclass
-from typing import Any, Callable, Iterator, Mapping
+from typing import Any, Callable, Iterator, Mapping, NamedTuple
 
 import numpy as np
 
 from ..errors import CALC, NA, NAME, REF, SPILL, CellError
-from ..formula import Value, evaluate
+from ..formula import Value, value_of
+from ..formula.budget import active, charge
+from .areas import AreaIndex, Overlap
 from .graph import components, cycle
-from .model import Book
-from .sheetxml import SheetScan
+from .limits import DEFAULTS, Limits, option
+from .model import Book, Sheet
+from .package import Refused
 from .refs import MAX_COL, MAX_ROW, Area, address, area, shifted
+from .sheetxml import FormulaXml
 from .templates import Template, Templates, build
 
 MAX_PASSES = 4
+KEPT_BLOCK_CELLS = 4_194_304  # ranges read are kept for reuse up to this many cells (32 MiB of references)
 _PREFIXES = ("_XLUDF.", "_XLFN.", "_XLWS.")
 
 
@@ -52,6 +63,39 @@ class FormulaCell:
     template: Template
     kind: str  # "normal", "dynamic" (an Excel 365 dynamic array) or "legacy" (an {=array} formula)
     old_area: Area | None  # the stored range of an array formula
+
+
+class Graph(NamedTuple):
+    """The dependency graph. Nodes: the units (formula cells evaluated together, a column
+    group, or alone), then ``extras[k]`` as node ``len(units) + k``: a defined name seen from
+    a sheet, ``("name", key, sheet)``, or a range that formulas read, ``("area", sheet, (r1, c1,
+    r2, c2))``, which stands between the formulas that read it and those inside it, so a range read by a
+    thousand formulas costs a thousand edges and not a thousand times its contents."""
+
+    units: list[tuple[int, ...]]
+    extras: list[tuple]
+    adj: list[list[int]]  # what each node needs
+    comps: list[list[int]]  # strongly connected components, dependencies first
+
+
+class _Links:
+    """The dependency count of one graph build, against its limit."""
+
+    def __init__(self, limit: int, engine: Recalc, graph: Graph):
+        self.left, self.limit = limit, limit
+        self.engine, self.graph = engine, graph
+        self.owner = 0  # the node whose references are being followed
+
+    def spend(self, n: int) -> None:
+        self.left -= n
+        if self.left < 0:
+            who = self.engine.node_text(self.graph, self.owner)
+            raise Refused(f"{who}: its references bring the dependencies between formulas over the limit of "
+                          f"{self.limit:,} ({option('dependencies')})")
+
+
+_UNSET = object()
+_POSITIONAL = object()  # the value of a name that depends on the formula cell using it
 
 
 def quoted(sheet: str) -> str:
@@ -75,7 +119,6 @@ class _Context:
         self.dr = 0
         self.dc = 0
         self.row = self.col = 1  # the formula cell
-        self.resolving: set = set()
 
     def function(self, name: str) -> Callable[..., Any] | None:
         fn = self.functions.get(name)
@@ -127,19 +170,35 @@ class _Context:
             if "[" in text:
                 return CellError(REF, f"{text} is an external reference (another workbook)")
             return CellError(NAME, f"unknown name {text}")
-        t = engine.name_template(key)
-        if t.error is not None:
-            return t.error
-        if key in self.resolving:
-            return CellError(CALC, f"circular reference: the name {text} refers to itself")
-        self.resolving.add(key)
-        offset = self.dr, self.dc
-        self.dr = self.dc = 0  # a name's references are as written
-        try:
-            return evaluate(t.ast, self)
-        finally:
-            self.dr, self.dc = offset
-            self.resolving.discard(key)
+        return self.named(key)
+
+    def named(self, key: tuple[int | None, str]) -> Value:
+        """The value of the defined name ``key`` as this formula cell sees it."""
+        return self.engine.name_value(key, self.sheet, (self.row, self.col))
+
+
+class _NameContext(_Context):
+    """The view from a defined name: its references as written (no offset). A name that
+    asks for the formula cell's position (ROW(), COLUMN()), or uses a name that does, has a
+    value per cell: evaluated without a cell it only records that (``positional``)."""
+
+    def __init__(self, engine: Recalc, sheet: int, cell: tuple[int, int] | None):
+        super().__init__(engine)
+        self.sheet, self.cell = sheet, cell
+        if cell is not None:
+            self.row, self.col = cell
+        self.positional = False
+
+    def position(self) -> tuple[int, int]:
+        self.positional = True
+        return super().position()
+
+    def named(self, key: tuple[int | None, str]) -> Value:
+        value = self.engine.name_value(key, self.sheet, self.cell)
+        if value is _POSITIONAL:
+            self.positional = True
+            return CellError(NA, "a name whose value depends on the formula cell")  # never shown: see name_value
+        return value
 
 
 class _Column(_Context):
@@ -158,6 +217,9 @@ class _Column(_Context):
         get = self.engine.values[s].get
         if fixed_row:
             return get((a.r1, col))
+        over = charge((self.n, 1))
+        if over is not None:
+            return over
         start = a.r1 + self.dr
         column = [get((r, col)) for r in range(start, start + self.n)]
         for x in column:
@@ -185,18 +247,10 @@ def _legacy_fill(value: Value, shape: tuple[int, int]) -> np.ndarray:
     return out
 
 
-def _array_members(scan: SheetScan) -> set[tuple[int, int]]:
-    """Cells inside an array formula's range (its first cell excepted) that carry an empty
-    formula element: Excel writes ``<f ca="1"/>`` there when the array is volatile."""
-    out = set()
-    for (row, col), f in scan.formulas.items():
-        if f.kind == "array" and f.ref:
-            a = area(f.ref)
-            if a is not None and (a.r1, a.c1) == (row, col):
-                out |= {(r, c) for r in range(a.r1, a.r2 + 1) for c in range(a.c1, a.c2 + 1)
-                        if (r, c) != (row, col) and (r, c) in scan.formulas and scan.formulas[(r, c)].kind == "normal"
-                        and not scan.formulas[(r, c)].text}
-    return out
+def _stored_range(f: FormulaXml, row: int, col: int) -> Area:
+    """The range an array formula's cell stores (its own cell if the range does not start there)."""
+    a = area(f.ref) if f.ref else None
+    return a if a is not None and a.r1 == row and a.c1 == col else Area(row, col, row, col)
 
 
 class Recalc:
@@ -204,21 +258,24 @@ class Recalc:
     (row, column) -> value), :attr:`result` (per formula cell) and :attr:`spills`."""
 
     def __init__(self, book: Book, functions: Mapping[str, Callable[..., Any]],
-                 progress: Callable[[int, int], None] | None = None):
+                 progress: Callable[[int, int], None] | None = None, limits: Limits = DEFAULTS):
         self.book = book
         self.functions = dict(functions)
         self.progress = progress
+        self.limits = limits
+        self.budget = limits.budget()
         self._sheet_numbers = {s.name.lower(): s.index for s in book.sheets if s.scan is not None}
         self._sheet_names = {s.name.lower() for s in book.sheets}
         self.templates = Templates()
         self._name_templates: dict = {}
-        self._name_targets: dict = {}
+        self.name_values: dict[tuple[tuple[int | None, str], int], Value] = {}  # (name, sheet using it) -> value
         n = len(book.sheets)
         self.cells: list[FormulaCell] = []
         self.at: list[dict[tuple[int, int], int]] = [{} for _ in range(n)]
         self.constants: list[dict] = [{} for _ in range(n)]
         self.stored: list[dict] = [{} for _ in range(n)]  # cached values inside stored array ranges
-        self.fixed: list[set] = [set() for _ in range(n)]  # cells of {=array} formula ranges: never spilled into
+        self.legacy: list[AreaIndex] = [AreaIndex() for _ in range(n)]  # {=array} formula ranges: never spilled into
+        self.legacy_cells = 0
         self._load()
         self._columns = self._column_index()
         self.values: list[dict] = []
@@ -229,21 +286,21 @@ class Recalc:
     # ---- reading -------------------------------------------------------------------
     def _load(self) -> None:
         dynamic = self.book.dynamic_cm
+        declared = [0]  # cells of the stored array ranges so far, over all sheets
         for sheet in self.book.sheets:
             scan = sheet.scan
             if scan is None:
                 continue
             s = sheet.index
+            arrays = self._array_ranges(sheet, declared)
             masters = {f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
-            arrays = []
-            members = _array_members(scan)
             for (row, col), f in scan.formulas.items():
                 if f.kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
                     if f.cached is not None:
                         self.constants[s][(row, col)] = f.cached
                     continue
-                if (row, col) in members:  # Excel's <f ca="1"/> marker in an array's range: a cell of the array
-                    self.stored[s][(row, col)] = f.cached
+                if f.kind == "normal" and not f.text and arrays.at(row, col) not in (None, (row, col)):
+                    self.stored[s][(row, col)] = f.cached  # Excel's <f ca="1"/> in a volatile array's range
                     continue
                 text, base = f.text, (row, col)
                 if f.kind == "shared" and not f.text:
@@ -259,23 +316,41 @@ class Recalc:
                 old = None
                 kind = "normal"
                 if f.kind == "array":
-                    old = area(f.ref) if f.ref else None
-                    old = old if old is not None and old.r1 == row and old.c1 == col else Area(row, col, row, col)
+                    old = _stored_range(f, row, col)
                     kind = "dynamic" if dynamic is not None and f.cm == dynamic else "legacy"
-                    arrays.append((old, kind))
+                    if kind == "legacy":
+                        self.legacy[s].add(old, (row, col))
+                        self.legacy_cells += old.shape[0] * old.shape[1]
                 self.at[s][(row, col)] = len(self.cells)
                 self.cells.append(FormulaCell(s, row, col, template, kind, old))
-            inside = set()
-            for a, kind in arrays:
-                cells = {(r, c) for r in range(a.r1, a.r2 + 1) for c in range(a.c1, a.c2 + 1)}
-                inside |= cells
-                if kind == "legacy":
-                    self.fixed[s] |= cells
+            self.legacy[s].freeze()
             for key, v in scan.values.items():
-                if key in inside:
+                if arrays.at(*key) is not None:
                     self.stored[s][key] = v
                 elif key not in self.at[s]:
                     self.constants[s][key] = v
+
+    def _array_ranges(self, sheet: Sheet, declared: list[int]) -> AreaIndex:
+        """The stored ranges of a sheet's array formulas (item: the anchor cell), counted against
+        the limit before any cell of them is visited; refused if two overlap."""
+        arrays = AreaIndex()
+        for (row, col), f in sheet.scan.formulas.items():
+            if f.kind != "array":
+                continue
+            a = _stored_range(f, row, col)
+            h, w = a.shape
+            declared[0] += h * w
+            if declared[0] > self.limits.spill_cells:
+                raise Refused(f"{quoted(sheet.name)}!{address(row, col)}: the array formula's range {a.text()} "
+                              f"({h * w:,} cells) brings the array ranges of the workbook to {declared[0]:,} cells, "
+                              f"over the limit of {self.limits.spill_cells:,} ({option('spill_cells')})")
+            arrays.add(a, (row, col))
+        try:
+            arrays.freeze()
+        except Overlap as exc:
+            first, second = (f"{quoted(sheet.name)}!{address(*anchor)}" for anchor in exc.args)
+            raise Refused(f"the array formulas at {first} and {second} have overlapping ranges") from None
+        return arrays
 
     def _column_index(self) -> list[dict[int, tuple[list[int], list[int]]]]:
         index: list[dict] = [{} for _ in self.book.sheets]
@@ -323,50 +398,61 @@ class Recalc:
             t = self._name_templates[key] = build(self.book.names[key], 1, 1)
         return t
 
-    def _targets_of_name(self, sheet: int, text: str, seen: frozenset = frozenset()) -> list[tuple[int, Area]]:
-        memo = (sheet, text)
-        if not seen and memo in self._name_targets:
-            return self._name_targets[memo]
-        key = self.resolve_name(sheet, text)
-        out: list[tuple[int, Area]] = []
-        if key is not None and key not in seen:
-            t = self.name_template(key)
-            for name, a in t.refs:
-                s = self.sheet_number(name, sheet)
-                if type(s) is int:
-                    out.append((s, a))
-            for other in t.names:
-                out += self._targets_of_name(sheet, other, seen | {key})
-        if not seen:  # results inside a loop of names are partial
-            self._name_targets[memo] = out
-        return out
+    def name_value(self, key: tuple[int | None, str], sheet: int, cell: tuple[int, int] | None = None) -> Value:
+        """The value of a defined name seen from ``sheet`` (by formula ``cell``), remembered for
+        the pass. The graph evaluates every name before the formulas that use it, so for a
+        formula this is a look-up; only a name whose value depends on the cell (ROW()) is
+        evaluated again for each cell that uses it (without a cell: :data:`_POSITIONAL`)."""
+        value = self.name_values.get((key, sheet), _UNSET)
+        if value is _UNSET:
+            value = self.name_values[(key, sheet)] = self._name(key, sheet, None)
+        if value is _POSITIONAL and cell is not None:
+            return self._name(key, sheet, cell)
+        return value
+
+    def _name(self, key: tuple[int | None, str], sheet: int, cell: tuple[int, int] | None) -> Value:
+        t = self.name_template(key)
+        if t.ast is None:
+            return t.error
+        ctx = _NameContext(self, sheet, cell)
+        value = value_of(t.ast, ctx)
+        return _POSITIONAL if ctx.positional and cell is None else value
 
     # ---- values ----------------------------------------------------------------------
-    def block(self, s: int, a: Area) -> np.ndarray:
+    def block(self, s: int, a: Area) -> np.ndarray | CellError:
         """The values of area ``a`` of sheet ``s`` as a 2-D object array (whole columns
-        and rows cut to the used range).
+        and rows cut to the used range), or the budget's error value.
 
         Blocks are kept for the pass: every formula cell inside an area is evaluated before
         any formula reading the area (the dependency order), so its values no longer change.
+        Each use is charged to the budget all the same (the formula goes through its cells),
+        and the blocks kept hold at most :data:`KEPT_BLOCK_CELLS` cells in all.
         """
         r2, c2 = a.r2, a.c2
         if r2 == MAX_ROW or c2 == MAX_COL:
             rows, cols = self.extent[s]
             r2, c2 = min(r2, max(rows, a.r1)), min(c2, max(cols, a.c1))
+        h, w = r2 - a.r1 + 1, c2 - a.c1 + 1
+        over = charge((h, w))
+        if over is not None:
+            return over
         key = (s, a.r1, a.c1, r2, c2)
         out = self._blocks.get(key)
         if out is None:
-            out = self._blocks[key] = self._read_block(s, a.r1, a.c1, r2, c2)
+            out = self._read_block(s, a.r1, a.c1, r2, c2)
+            if self._kept + h * w <= KEPT_BLOCK_CELLS:
+                self._blocks[key] = out
+                self._kept += h * w
         return out
 
     def _read_block(self, s: int, r1: int, c1: int, r2: int, c2: int) -> np.ndarray:
         a = Area(r1, c1, r2, c2)
         get = self.values[s].get
-        out = np.empty((r2 - a.r1 + 1, c2 - a.c1 + 1), dtype=object)
-        for i, r in enumerate(range(a.r1, r2 + 1)):
-            for j, c in enumerate(range(a.c1, c2 + 1)):
-                out[i, j] = get((r, c))
-        return out
+        h, w = r2 - a.r1 + 1, c2 - a.c1 + 1
+        columns = range(a.c1, c2 + 1)
+        # fromiter keeps each value as it is (a CellError is not unpacked) at a fifth of the cost of a loop
+        cells = (get((r, c)) for r in range(a.r1, r2 + 1) for c in columns)
+        return np.fromiter(cells, dtype=object, count=h * w).reshape(h, w)
 
     # ---- the dependency graph --------------------------------------------------------
     def _units(self, dissolved: set[int]) -> list[tuple[int, ...]]:
@@ -406,6 +492,7 @@ class Recalc:
         return True
 
     def _targets(self, unit: tuple[int, ...]) -> Iterator[tuple[int, Area]]:
+        """(sheet, area) of every reference of a unit (a column group: from its top to its bottom)."""
         first, last = self.cells[unit[0]], self.cells[unit[-1]]
         t = first.template
         for name, a in t.refs:
@@ -417,19 +504,14 @@ class Recalc:
             if top is None or bottom is None:
                 continue
             yield s, Area(top.r1, top.c1, max(top.r2, bottom.r2), max(top.c2, bottom.c2))
-        for name in t.names:
-            yield from self._targets_of_name(first.sheet, name)
 
-    def _graph(self, assumed: dict[int, Area]) -> tuple[list[tuple[int, ...]], list[list[int]], list[list[int]]]:
-        """Units, what each needs, and the components in evaluation order."""
-        covered: list[dict[tuple[int, int], int]] = [{} for _ in self.book.sheets]
-        spill_list: list[list[tuple[Area, int]]] = [[] for _ in self.book.sheets]
+    def _graph(self, assumed: dict[int, Area]) -> Graph:
+        """The dependency graph (see :class:`Graph`), components in evaluation order."""
+        spills = [AreaIndex() for _ in self.book.sheets]
         for fi, a in assumed.items():
-            s = self.cells[fi].sheet
-            spill_list[s].append((a, fi))
-            for r in range(a.r1, a.r2 + 1):
-                for c in range(a.c1, a.c2 + 1):
-                    covered[s][(r, c)] = fi
+            spills[self.cells[fi].sheet].add(a, fi)
+        for index in spills:
+            index.freeze()  # stored ranges were checked on reading; placed spills never overlap
         dissolved: set[int] = set()
         while True:
             units = self._units(dissolved)
@@ -437,35 +519,79 @@ class Recalc:
             for u, members in enumerate(units):
                 for fi in members:
                     unit_of[fi] = u
-            adj = []
+            graph = Graph(units, [], [], [])
+            node_of: dict[tuple, int] = {}
+            links = _Links(self.limits.dependencies, self, graph)
+
+            def node(extra: tuple) -> int:
+                n = node_of.get(extra)
+                if n is None:
+                    n = node_of[extra] = len(units) + len(graph.extras)
+                    graph.extras.append(extra)
+                return n
+
+            def refer(s: int, a: Area, needs: set[int]) -> None:
+                """What a reference to area ``a`` of sheet ``s`` needs."""
+                if a.single:
+                    self._formulas_in(s, a, unit_of, needs, links)
+                    anchor = spills[s].at(a.r1, a.c1)
+                    if anchor is not None:
+                        needs.add(unit_of[anchor])
+                else:
+                    links.spend(1)
+                    needs.add(node(("area", s, a[:4])))
+
+            def refer_names(names: tuple[str, ...], sheet: int, needs: set[int]) -> None:
+                for text in names:
+                    key = self.resolve_name(sheet, text)
+                    if key is not None:
+                        links.spend(1)
+                        needs.add(node(("name", key, sheet)))
+
             for u, members in enumerate(units):
-                needs = set()
+                needs: set[int] = set()
+                links.owner = u
                 for s, a in self._targets(members):
-                    self._formulas_in(s, a, unit_of, needs)
-                    if a.single:
-                        anchor = covered[s].get((a.r1, a.c1))
-                        if anchor is not None:
-                            needs.add(unit_of[anchor])
-                    else:
-                        for b, anchor in spill_list[s]:
-                            if a.meets(b):
-                                needs.add(unit_of[anchor])
-                adj.append(sorted(needs))
-            comps = components(adj)
-            looped = {fi for comp in comps if len(comp) > 1 or comp[0] in adj[comp[0]]
-                      for u in comp if len(units[u]) > 1 for fi in units[u]}
+                    refer(s, a, needs)
+                fc = self.cells[members[0]]
+                refer_names(fc.template.names, fc.sheet, needs)
+                graph.adj.append(sorted(needs))
+            for k, extra in enumerate(graph.extras):  # grows while it runs: names and ranges met on the way
+                needs = set()
+                links.owner = len(units) + k
+                if extra[0] == "area":
+                    _, s, corners = extra
+                    a = Area(*corners)
+                    self._formulas_in(s, a, unit_of, needs, links)
+                    for anchor in spills[s].meeting(a):
+                        links.spend(1)
+                        needs.add(unit_of[anchor])
+                else:
+                    _, key, sheet = extra
+                    t = self.name_template(key)
+                    for ref_sheet, a in t.refs:
+                        s = self.sheet_number(ref_sheet, sheet)
+                        if type(s) is int:
+                            refer(s, a, needs)
+                    refer_names(t.names, sheet, needs)
+                graph.adj.append(sorted(needs))
+            graph.comps.extend(components(graph.adj))
+            looped = {fi for comp in graph.comps if len(comp) > 1 or comp[0] in graph.adj[comp[0]]
+                      for u in comp if u < len(units) and len(units[u]) > 1 for fi in units[u]}
             if not looped:
-                return units, adj, comps
+                return graph
             dissolved |= looped  # a column evaluated at once cannot be part of a loop: take it cell by cell
 
-    def _formulas_in(self, s: int, a: Area, unit_of: list[int], needs: set[int]) -> None:
+    def _formulas_in(self, s: int, a: Area, unit_of: list[int], needs: set[int], links: _Links) -> None:
+        """Add the units of the formula cells in area ``a`` of sheet ``s``."""
         cols = self._columns[s]
         if a.c2 - a.c1 + 1 <= len(cols):
-            candidates = ((c, cols[c]) for c in range(a.c1, a.c2 + 1) if c in cols)
+            candidates = (cols[c] for c in range(a.c1, a.c2 + 1) if c in cols)
         else:
-            candidates = ((c, v) for c, v in cols.items() if a.c1 <= c <= a.c2)
-        for _, (rows, fis) in candidates:
+            candidates = (v for c, v in cols.items() if a.c1 <= c <= a.c2)
+        for rows, fis in candidates:
             lo, hi = bisect.bisect_left(rows, a.r1), bisect.bisect_right(rows, a.r2)
+            links.spend(hi - lo)  # counted before they are visited
             for k in range(lo, hi):
                 needs.add(unit_of[fis[k]])
 
@@ -475,7 +601,7 @@ class Recalc:
         assumed = {fi: fc.old_area for fi, fc in enumerate(self.cells) if fc.old_area is not None}
         graph = self._graph(assumed)
         for _ in range(MAX_PASSES):
-            self._evaluate(*graph, assumed)
+            self._evaluate(graph, assumed)
             actual = dict(self.spills)
             if actual == assumed:
                 return
@@ -488,10 +614,14 @@ class Recalc:
     def _reset(self, assumed: dict[int, Area]) -> None:
         self.values = [dict(c) for c in self.constants]
         self._blocks: dict[tuple[int, int, int, int, int], np.ndarray] = {}
+        self._kept = 0  # cells of the blocks kept
         self.claims: list[dict[tuple[int, int], int]] = [{} for _ in self.book.sheets]
         self.result = [None] * len(self.cells)
         self.spills = {}
         self.blocked = set()
+        self.name_values = {}
+        self.spill_left = self.limits.spill_cells - self.legacy_cells  # the stored {=array} ranges are filled anyway
+        self.budget.restart()
         self.extent = []
         for s in range(len(self.book.sheets)):
             keys = list(self.constants[s]) + list(self.at[s])
@@ -503,36 +633,89 @@ class Recalc:
         ext = self.extent[s]
         ext[0], ext[1] = max(ext[0], a.r2), max(ext[1], a.c2)
 
-    def _evaluate(self, units: list[tuple[int, ...]], adj: list[list[int]], comps: list[list[int]],
-                  assumed: dict[int, Area]) -> None:
-        self.graph = (units, adj, comps)  # the order the results come from, for tools that trace them
+    @property
+    def graph(self) -> tuple[list[tuple[int, ...]], list[list[int]], list[list[int]]]:
+        """(units, the units each needs, components) of the last pass, for tools that trace
+        results back: what a unit needs through ranges and names is listed as the units
+        behind them, so every node of this view is a unit."""
+        graph = self._graph_used
+        n = len(graph.units)
+        needs = []
+        for u in range(n):
+            found, seen, todo = set(), set(), list(graph.adj[u])
+            while todo:
+                v = todo.pop()
+                if v < n:
+                    found.add(v)
+                elif v not in seen:
+                    seen.add(v)
+                    todo += graph.adj[v]
+            needs.append(sorted(found))
+        comps = [[u for u in comp if u < n] for comp in graph.comps]
+        return graph.units, needs, [comp for comp in comps if comp]
+
+    def _evaluate(self, graph: Graph, assumed: dict[int, Area]) -> None:
+        self._graph_used = graph  # the order the results come from (see :attr:`graph`)
         self._reset(assumed)
         self._context = _Context(self)
         self._column = _Column(self)
+        units, adj = graph.units, graph.adj
         done, total, step = 0, len(self.cells), 0
-        for comp in comps:
-            if len(comp) > 1 or comp[0] in adj[comp[0]]:
-                self._loop(units, adj, comp)
-                done += len(comp)
-                continue
-            members = units[comp[0]]
-            if len(members) == 1:
-                self._cell(members[0])
-            else:
-                self._group(members)
-            done += len(members)
-            if self.progress is not None and done >= step:
-                self.progress(done, total)
-                step = done + 2000
+        with active(self.budget):
+            for comp in graph.comps:
+                if len(comp) > 1 or comp[0] in adj[comp[0]]:
+                    self._loop(graph, comp)
+                    done += sum(1 for u in comp if u < len(units))
+                    continue
+                if comp[0] >= len(units):
+                    extra = graph.extras[comp[0] - len(units)]
+                    if extra[0] == "name":  # a range needs no evaluation: it only orders
+                        self.budget.start()
+                        self.name_value(extra[1], extra[2])
+                    continue
+                members = units[comp[0]]
+                if len(members) == 1:
+                    self._cell(members[0])
+                else:
+                    self._group(members)
+                done += len(members)
+                if self.progress is not None and done >= step:
+                    self.progress(done, total)
+                    step = done + 2000
 
-    def _loop(self, units: list[tuple[int, ...]], adj: list[list[int]], comp: list[int]) -> None:
+    def _loop(self, graph: Graph, comp: list[int]) -> None:
+        """Every cell of a loop holds #CALC! naming it; so does every name on it."""
+        units = graph.units
         members = set(comp)
         shared = None
-        for u in sorted(comp, key=lambda u: self._sort_key(units[u][0])):
+        for u in sorted(comp, key=lambda u: self._node_key(graph, u)):
+            if u >= len(units) and graph.extras[u - len(units)][0] == "area":
+                continue
             if shared is None or len(comp) <= 200:  # beyond that, one loop names them all
-                path = cycle(adj, u, members)
-                shared = "circular reference: " + " -> ".join(self.where(units[v][0]) for v in path)
-            self._store(units[u][0], CellError(CALC, shared))
+                path = [v for v in cycle(graph.adj, u, members)
+                        if v < len(units) or graph.extras[v - len(units)][0] == "name"]
+                shared = "circular reference: " + " -> ".join(self.node_text(graph, v) for v in path)
+            if u < len(units):
+                self._store(units[u][0], CellError(CALC, shared))
+            else:
+                _, key, sheet = graph.extras[u - len(units)]
+                self.name_values[(key, sheet)] = CellError(CALC, shared)
+
+    def _node_key(self, graph: Graph, u: int) -> tuple:
+        """Cells in sheet order, then names, then ranges."""
+        if u < len(graph.units):
+            return (0,) + self._sort_key(graph.units[u][0])
+        extra = graph.extras[u - len(graph.units)]
+        return (1, extra[1][1], extra[2]) if extra[0] == "name" else (2, extra[1], extra[2])
+
+    def node_text(self, graph: Graph, u: int) -> str:
+        """A graph node as people name it: ``Sheet!A1``, ``the name Rate`` or ``Sheet!A1:B9``."""
+        if u < len(graph.units):
+            return self.where(graph.units[u][0])
+        extra = graph.extras[u - len(graph.units)]
+        if extra[0] == "name":
+            return f"the name {extra[1][1]}"
+        return f"{quoted(self.book.sheets[extra[1]].name)}!{Area(*extra[2]).text()}"
 
     def _sort_key(self, fi: int) -> tuple[int, int, int]:
         fc = self.cells[fi]
@@ -551,7 +734,8 @@ class Recalc:
             return
         ctx = self._context
         ctx.sheet, ctx.dr, ctx.dc, ctx.row, ctx.col = fc.sheet, fc.row - t.row, fc.col - t.col, fc.row, fc.col
-        self._store(fi, evaluate(t.ast, ctx))
+        self.budget.start()
+        self._store(fi, value_of(t.ast, ctx))
 
     def _group(self, members: tuple[int, ...]) -> None:
         first = self.cells[members[0]]
@@ -559,7 +743,8 @@ class Recalc:
         ctx = self._column
         n = len(members)
         ctx.sheet, ctx.dr, ctx.dc, ctx.n = first.sheet, first.row - t.row, first.col - t.col, n
-        v = evaluate(t.ast, ctx)
+        self.budget.start(n)
+        v = value_of(t.ast, ctx)
         if type(v) is np.ndarray:
             if v.shape != (n, 1):
                 column = None
@@ -600,23 +785,28 @@ class Recalc:
         a = Area(fc.row, fc.col, fc.row + h - 1, fc.col + w - 1)
         blocker = None
         if a.r2 > MAX_ROW or a.c2 > MAX_COL:
-            blocker = "the edge of the sheet"
+            blocker = "overwrite the edge of the sheet"
+        elif h * w > self.spill_left:
+            blocker = (f"bring the spilled cells of the workbook over the limit of {self.limits.spill_cells:,} "
+                       f"({option('spill_cells')})")
         else:
             s = fc.sheet
-            constants, formulas, claims, fixed = self.constants[s], self.at[s], self.claims[s], self.fixed[s]
+            constants, formulas, claims, legacy = self.constants[s], self.at[s], self.claims[s], self.legacy[s]
             for r in range(a.r1, a.r2 + 1):
                 for c in range(a.c1, a.c2 + 1):
                     key = (r, c)
-                    if key in constants or key in claims or key in fixed or (key in formulas and formulas[key] != fi):
-                        blocker = self.where(fi, r, c)
+                    if (key in constants or key in claims or (key in formulas and formulas[key] != fi)
+                            or (legacy and legacy.at(r, c) is not None)):
+                        blocker = "overwrite " + self.where(fi, r, c)
                         break
                 if blocker:
                     break
         if blocker:
-            error = CellError(SPILL, f"the {h}x{w} result would overwrite {blocker}")
+            error = CellError(SPILL, f"the {h}x{w} result would {blocker}")
             self.blocked.add(fi)
             self.values[fc.sheet][(fc.row, fc.col)] = self.result[fi] = error
             return
+        self.spill_left -= h * w
         self._place(fi, a, v)
 
     def _place(self, fi: int, a: Area, v: np.ndarray) -> None:

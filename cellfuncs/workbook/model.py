@@ -16,6 +16,7 @@ from xml.etree.ElementTree import Element
 
 from .package import Package, Refused
 from .sheetxml import MAX_FORMULAS, NAMESPACES, SheetScan, scan
+from .structure import CONTENT_TYPES, check_content_types, check_defined_name, check_relationship, check_sheet
 
 PACKAGE_RELS = "http://schemas.openxmlformats.org/package/2006/relationships"
 DOC_RELS = ("http://schemas.openxmlformats.org/officeDocument/2006/relationships",
@@ -50,9 +51,11 @@ def relationships(pkg: Package, part: str) -> list[Rel]:
     if name not in pkg:
         return []
     out = []
+    seen: set[str] = set()
     for el in pkg.xml(name):
         if el.tag != f"{{{PACKAGE_RELS}}}Relationship":
             continue
+        check_relationship(el, name, seen)
         external = el.get("TargetMode") == "External"
         target = el.get("Target", "")
         out.append(Rel(el.get("Id", ""), el.get("Type", "").rsplit("/", 1)[-1], target if external else part_of(part, target),
@@ -139,25 +142,30 @@ def dynamic_cm(root: Element) -> str | None:
     for block in _children(root, "cellMetadata"):
         for n, bk in enumerate(_children(block, "bk"), start=1):
             for rc in _children(bk, "rc"):
-                t, v = int(rc.get("t", "0")), int(rc.get("v", "-1"))
+                t, v = _integer(rc.get("t"), 0), _integer(rc.get("v"), -1)
                 if 1 <= t <= len(types) and types[t - 1] == DYNAMIC_TYPE and 0 <= v < len(dynamic_blocks) and dynamic_blocks[v]:
                     return str(n)
     return None
 
 
+def _integer(text: str | None, missing: int) -> int:
+    return int(text) if text is not None and text.isdigit() else missing
+
+
 def load(pkg: Package) -> Book:
     """Read every part recalculation needs; refuse what is not a workbook."""
-    if "[Content_Types].xml" not in pkg:
+    if CONTENT_TYPES not in pkg:
         raise Refused("no [Content_Types].xml: not an Office Open XML package")
     docs = [r for r in relationships(pkg, "") if r.kind == "officeDocument" and not r.external]
     if not docs or docs[0].target not in pkg:
         raise Refused("no workbook part in the package")
     wb_part = docs[0].target
+    check_content_types(pkg.xml(CONTENT_TYPES), wb_part)
     root = pkg.xml(wb_part)
     if root.tag not in _main("workbook"):
         raise Refused(f"{wb_part}: not a workbook")
     rels = {r.id: r for r in relationships(pkg, wb_part)}
-    parsed = {"_rels/.rels", wb_part, rels_part(wb_part)}
+    parsed = {"_rels/.rels", CONTENT_TYPES, wb_part, rels_part(wb_part)}
     strings: list[str] = []
     metadata_part = None
     cm = None
@@ -173,20 +181,26 @@ def load(pkg: Package) -> Book:
             parsed.add(r.target)
     budget = [MAX_FORMULAS]
     sheets = []
+    sheet_names: set[str] = set()
+    sheet_ids: set[str] = set()
     for block in _children(root, "sheets"):
         for n, el in enumerate(_children(block, "sheet")):
+            check_sheet(el, sheet_names, sheet_ids)
             rid = next((v for k, v in el.attrib.items() if k in tuple(f"{{{ns}}}id" for ns in DOC_RELS)), None)
             rel = rels.get(rid)
+            if rel is None:  # Excel could not open it either: nothing says where the sheet is
+                raise Refused(f"sheet {el.get('name')!r}: relationship {rid!r} missing from {rels_part(wb_part)}")
             part = rel.target if rel is not None and rel.kind == "worksheet" and not rel.external else None
             if part is not None and part not in pkg:
                 raise Refused(f"sheet {el.get('name')!r}: part {part} missing")
-            sheet_scan = scan(pkg.read(part), part, budget, strings) if part else None
+            sheet_scan = scan(pkg.utf8(part), part, budget, strings) if part else None
             if part:
                 parsed.add(part)
             sheets.append(Sheet(el.get("name", f"Sheet{n + 1}"), n, part, sheet_scan))
     names: dict[tuple[int | None, str], str] = {}
     for block in _children(root, "definedNames"):
         for el in _children(block, "definedName"):
+            check_defined_name(el, len(sheets))
             scope = el.get("localSheetId")
             key = (int(scope) if scope is not None and scope.isdigit() else None, el.get("name", "").upper())
             names[key] = (el.text or "").strip()

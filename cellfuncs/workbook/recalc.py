@@ -9,11 +9,13 @@
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass, field
 from typing import Callable
 
 from ..errors import CellError
 from .engine import Recalc
+from .limits import DEFAULTS, Limits
 from .model import load
 from .package import Package, Refused
 from .report import differences
@@ -27,6 +29,7 @@ class Outcome:
     errors: list[tuple[str, CellError]] = field(default_factory=list)
     differences: list[tuple[str, str, str]] = field(default_factory=list)
     written: str | None = None
+    unwritten: str | None = None  # why the output could not be written (the input is untouched)
 
 
 def pack_functions() -> dict[str, Callable]:
@@ -36,20 +39,50 @@ def pack_functions() -> dict[str, Callable]:
     return {name: entry.call for name, entry in FUNCTIONS.items()}
 
 
-def recalc_file(path: str, dest: str | None = None, check: bool = False, tolerance: float = 1e-9,
-                progress: Callable[[int, int], None] | None = None) -> Outcome:
-    """Recalculate the workbook at ``path``; write it to ``dest`` (which may be ``path``) if given.
+def in_place_target(path: str, split_links: bool = False) -> str:
+    """The file ``--in-place`` replaces for ``path``: the target of a symbolic link (replacing
+    the link would leave the target as it was); refused if other hard links share it, since
+    an atomic replace gives this name a new file and leaves them the old one."""
+    target = os.path.realpath(path)
+    try:
+        links = os.stat(target).st_nlink
+    except OSError:
+        return target  # opening it reports why
+    if links > 1 and not split_links:
+        raise Refused(f"{links} hard links share this file; replacing it would leave the other names with the old "
+                      "content (--split-hard-links replaces it anyway)")
+    return target
 
-    A refused file gives an Outcome with ``refused`` set and nothing written. Other
-    failures raise (the caller reports them as internal errors).
+
+def unwritable(error: OSError) -> str:
+    """An output-side operating-system error in words."""
+    reason = error.strerror or str(error) or type(error).__name__
+    where = error.filename if isinstance(error.filename, str) else None
+    return f"{reason} ({where})" if where else reason
+
+
+def recalc_file(path: str, dest: str | None = None, check: bool = False, tolerance: float = 1e-9,
+                progress: Callable[[int, int], None] | None = None, limits: Limits = DEFAULTS,
+                split_links: bool = False) -> Outcome:
+    """Recalculate the workbook at ``path``; write it to ``dest`` if given (``dest == path``:
+    in place, to the file :func:`in_place_target` names).
+
+    A refused file gives an Outcome with ``refused`` set and nothing written; an output the
+    operating system would not take (disk full, read-only, a folder in the way) one with
+    ``unwritten`` set. Other failures raise (the caller reports them as internal errors).
     """
     outcome = Outcome(path)
     pkg = None
     try:
+        if dest == path:
+            dest = in_place_target(path, split_links)
+        if dest is not None and os.path.isdir(dest):
+            outcome.unwritten = "the destination is a folder"
+            return outcome
         pkg = Package(path)
         book = load(pkg)
         pkg.validate(book.parsed)
-        engine = Recalc(book, pack_functions(), progress)
+        engine = Recalc(book, pack_functions(), progress, limits)
         engine.run()
         outcome.cells = len(engine.cells)
         outcome.errors = list(engine.error_cells())
@@ -60,8 +93,12 @@ def recalc_file(path: str, dest: str | None = None, check: bool = False, toleran
             from .zipout import write_package
 
             replaced, removed, added = plan(pkg, book, engine)
-            write_package(pkg, dest, replaced, removed, added)
-            outcome.written = dest
+            try:
+                write_package(pkg, dest, replaced, removed, added)
+            except OSError as exc:
+                outcome.unwritten = unwritable(exc)
+            else:
+                outcome.written = dest
     except Refused as exc:
         outcome.refused = str(exc)
     finally:

@@ -5,11 +5,14 @@ and a progress bar on a terminal.
 (True, False, False)
 >>> show(2.0), show(0.1), show(True), show("a\\tb"), show(None)
 ('2', '0.1', 'TRUE', 'a\\\\tb', '(none)')
+>>> print(escaped("one\\nrecalc: forged\\x1b[2K\\u2028"))
+one\\nrecalc: forged\\x1b[2K\\u2028
 """
 
 from __future__ import annotations
 
 import os
+import re
 import sys
 import time
 from typing import TextIO
@@ -35,6 +38,23 @@ def same(cached: object, computed: object, rel: float) -> bool:
     return tc is tv and cached == computed
 
 
+# Control characters (C0, DEL, C1) and the Unicode line and paragraph separators: a text from a
+# workbook shown with one of them could end its line and write one of its own (a forged summary)
+_UNSAFE = re.compile("[\\\\\x00-\x1f\x7f-\x9f\u2028\u2029]")
+_NAMED = {"\\": "\\\\", "\n": "\\n", "\r": "\\r", "\t": "\\t"}
+
+
+def escaped(text: str) -> str:
+    """``text`` safe to print on one line: backslashes doubled, control characters and line
+    separators written as escapes (``\\n``, ``\\x1b``, ``\\u2028``)."""
+    return _UNSAFE.sub(_escape, text)
+
+
+def _escape(m: re.Match) -> str:
+    ch = m.group()
+    return _NAMED.get(ch) or ("\\x%02x" % ord(ch) if ord(ch) < 256 else "\\u%04x" % ord(ch))
+
+
 def show(v: object) -> str:
     """A value as one field of a tab-separated line."""
     if v is None:
@@ -45,7 +65,7 @@ def show(v: object) -> str:
         return v.code
     if type(v) is float:
         return "%d" % v if v.is_integer() and abs(v) < 1e15 else repr(v)
-    return str(v).replace("\\", "\\\\").replace("\t", "\\t").replace("\n", "\\n").replace("\r", "\\r")
+    return escaped(str(v))
 
 
 def _shape(a: Area | None) -> str:
@@ -109,7 +129,7 @@ class Progress:
         part = done / total if total else 0.0
         filled = int(self.WIDTH * (self.index + part) / self.files)
         cells = f" {done}/{total} cells" if total else ""
-        self.stream.write(f"\r[{'#' * filled:<{self.WIDTH}}] {self.index + 1}/{self.files} {self.name}{cells}\x1b[K")
+        self.stream.write(f"\r[{'#' * filled:<{self.WIDTH}}] {self.index + 1}/{self.files} {escaped(self.name)}{cells}\x1b[K")
         self.stream.flush()
         self.shown = True
 

@@ -10,18 +10,22 @@ namespace prefixes cannot mislead them.
 >>> s = scan(xml, "sheet1.xml", [10])
 >>> s.values, s.formulas[(1, 2)].text, xml[s.cells[(1, 2)].start:s.cells[(1, 2)].end(xml)]
 ({(1, 1): 2.0}, 'A1*2', b'<c r="B1"><f>A1*2</f></c>')
+>>> print(scan(xml.replace(b"<v>2</v>", b"<v>NaN</v>"), "sheet1.xml", [10]).values[(1, 1)])
+#NUM! the stored number NaN is not a finite number
 """
 
 from __future__ import annotations
 
+import math
 import re
 from dataclasses import dataclass, field
 
-from ..errors import CODES, CellError
+from ..errors import CODES, NUM, CellError
 from .package import Refused, parse_xml
 from .refs import MAX_COL, MAX_ROW, area, cell
 
 NAMESPACES = ("http://schemas.openxmlformats.org/spreadsheetml/2006/main", "http://purl.oclc.org/ooxml/spreadsheetml/main")
+CELL_TYPES = ("b", "d", "e", "inlineStr", "n", "s", "str")  # the t attribute of a cell (ST_CellType)
 MAX_FORMULAS = 1_000_000
 MAX_CELLS = 5_000_000
 
@@ -104,6 +108,7 @@ class SheetScan:
     rows: dict[int, RowSpan] = field(default_factory=dict)
     sheet_data: Span | None = None
     dimension: tuple[int, str] | None = None  # (start offset, ref)
+    not_finite: list[tuple[int, int]] = field(default_factory=list)  # value cells storing NaN, INF, 1e999, ...
 
 
 class _Scanner:
@@ -155,7 +160,9 @@ class _Scanner:
                 self._dimension(pos, attrib.get("ref", ""))
         elif d == 1 and local == "row":
             r = attrib.get("r")
-            self.row_number = int(r) if r is not None and r.isdigit() else self.row_number + 1
+            if r is not None and not r.isdigit():
+                raise Refused(f"{self.out.part}: row number {r[:20]!r} is not a number")
+            self.row_number = int(r) if r is not None else self.row_number + 1
             if not 1 <= self.row_number <= MAX_ROW:
                 raise Refused(f"{self.out.part}: row {self.row_number} is beyond Excel's {MAX_ROW} rows")
             self.row = RowSpan(pos)
@@ -259,10 +266,14 @@ class _Scanner:
         out = self.out
         out.cells[key] = self.cell
         kind = self.cell_attrs.get("t", "n")
+        if kind not in CELL_TYPES:
+            raise Refused(f"{out.part}: cell type {kind[:20]!r} is not one of {', '.join(CELL_TYPES)}")
         value = self._value(kind, self.value_text)
         if self.f_attrs is None:
             if value is not None:
                 out.values[key] = value
+                if type(value) is CellError and kind not in ("e", "s", "str", "inlineStr"):
+                    out.not_finite.append(key)
             return
         f = self.f_attrs
         self.budget[0] -= 1
@@ -289,20 +300,22 @@ class _Scanner:
         if not text.strip():
             return None
         try:
-            return float(text)
+            x = float(text)
         except ValueError:
             raise Refused(f"{self.out.part}: cell value {text[:20]!r} is not a number") from None
+        if not math.isfinite(x):  # NaN, INF or an exponent beyond a double: no cell holds such a number
+            return CellError(NUM, f"the stored number {text.strip()[:20]} is not a finite number")
+        return x
 
     def close(self) -> SheetScan:
         return self.out
 
 
 def scan(data: bytes, part: str, budget: list[int], strings: list[str] | None = None) -> SheetScan:
-    """Read worksheet ``part``: values, formulas and element positions.
+    """Read worksheet ``part`` (UTF-8 bytes, see :meth:`.Package.utf8`): values, formulas and
+    element positions.
 
     ``budget`` is a one-element list holding how many formula cells may still be read.
     """
-    if data[:2] in (b"\xff\xfe", b"\xfe\xff") or re.match(rb"<\?xml[^>]*encoding=[\"'](?!utf-8)", data[:100], re.I):
-        raise Refused(f"{part}: not UTF-8 encoded")
     scanner = _Scanner(data, part, strings or [], budget)
     return parse_xml(data, part, scanner)

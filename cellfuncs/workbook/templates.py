@@ -25,9 +25,11 @@ from dataclasses import dataclass
 
 from ..errors import NAME, REF, CellError
 from ..formula import BUILTINS, Array, Call, FormulaSyntaxError, Name, Node, Ref, parse, walk
+from ..formula.budget import MAX_FORMULA_TEXT
 from .refs import MAX_COL, MAX_ROW, Area, area, column_number
 
-_OPAQUE = re.compile(r'"(?:[^"]|"")*"|\'(?:[^\']|\'\')*\'|\[[^\]]*\]')
+# A bracket ends at the next "[" too: a text of many unclosed "[" is then scanned once, not once per "["
+_OPAQUE = re.compile(r'"(?:[^"]|"")*"|\'(?:[^\']|\'\')*\'|\[[^\[\]]*\]')
 _BEFORE = r"(?<![A-Za-z0-9_.$\\])"
 _AFTER = r"(?![A-Za-z0-9_.(!\[\\])"
 _REFLIKE = re.compile(
@@ -35,7 +37,10 @@ _REFLIKE = re.compile(
     rf"|{_BEFORE}(\$?)([A-Za-z]{{1,3}}):(\$?)([A-Za-z]{{1,3}}){_AFTER}"
     rf"|{_BEFORE}(\$?)([0-9]{{1,7}}):(\$?)([0-9]{{1,7}}){_AFTER}"
 )
-_EXTERNAL = re.compile(r"'[^']*\[[^\]]*\](?:[^']|'')*'!|\[[^\]]*\][^'!\s(),+\-*/&=<>^;]*!")
+_EXTERNAL = re.compile(r"'[^'\[]*\[[^\[\]]*\](?:[^']|'')*'!|\[[^\[\]]*\][^'!\s(),+\-*/&=<>^;\[]*!")
+
+# Texts longer than this cannot parse (Excel's limit, with room for the file format's function prefixes)
+_LONGEST = 2 * MAX_FORMULA_TEXT
 
 # Built-ins that act element by element on every argument, so a column of cells may be
 # evaluated as one call on whole columns. Error-catching functions are left out: in one
@@ -137,6 +142,8 @@ def build(text: str, row: int, col: int) -> Template:
     try:
         ast = parse(text)
     except FormulaSyntaxError as exc:
+        if len(text) > _LONGEST:
+            return Template(None, CellError(NAME, f"the formula cannot be evaluated: {exc}"), row, col, (), (), False)
         return Template(None, _unparsed(text, exc), row, col, (), (), False)
     refs = tuple((n.sheet, area(n.ref)) for n in walk(ast) if isinstance(n, Ref))
     names = tuple(n.text for n in walk(ast) if isinstance(n, Name))
@@ -158,6 +165,8 @@ class Templates:
         self.by_shape: dict[str, Template | None] = {}  # None: the shape cannot be trusted
 
     def get(self, text: str, row: int, col: int) -> Template:
+        if len(text) > _LONGEST:  # refused by the parser: not worth a shape
+            return build(text, row, col)
         key, items = shape(text, row, col)
         template = self.by_shape.get(key, False)
         if template is False:

@@ -7,6 +7,8 @@ attributes (style), its formula and any extension, and gets its new cached value
 stores a dynamic array: ``<f t="array" ref="A1:B10">`` in the anchor, whose ``cm`` points
 at a cell-metadata record marking it dynamic (XLDAPR, ``fDynamic="1"``), and the values
 in every cell of the range. Cells of an old, larger spill are emptied (their style stays).
+A stored number that is not finite (``NaN``, ``INF``, ``1e999``) is read as #NUM! and
+written as #NUM!, so that no reader meets it as a number.
 """
 
 from __future__ import annotations
@@ -83,6 +85,7 @@ class _SheetPatch:
         at = engine.at[s]
         self.unshared = {scan.formulas[key].si for key in masters.values() if key in at and is_dynamic(engine, at[key])}
         self.bounds: Area | None = None
+        self.touched: set[tuple[int, int]] = set()  # cells already rewritten
 
     def build(self) -> bytes:
         engine, s, scan = self.engine, self.s, self.scan
@@ -100,6 +103,9 @@ class _SheetPatch:
                     k = (r, c)
                     if k != key and k not in engine.claims[s] and k not in engine.at[s]:
                         self._clear(k)
+        for key in scan.not_finite:  # read as #NUM!, so stored as #NUM!: no reader meets "NaN" as a number
+            if key not in self.touched:
+                self._value_cell(key, scan.values[key])
         self._insert_new_cells()
         self._dimension()
         return splice(self.data, self.edits)
@@ -124,6 +130,7 @@ class _SheetPatch:
                 + b"</%sc>" % p)
 
     def _replace(self, key: tuple[int, int], new: bytes | None) -> None:
+        self.touched.add(key)
         if new is not None:
             span = self.scan.cells[key]
             self.edits.append((span.start, span.end(self.data), new))
@@ -168,6 +175,7 @@ class _SheetPatch:
         self._replace(key, self._cell_bytes(key, value, b"", []))
 
     def _clear(self, key: tuple[int, int]) -> None:
+        self.touched.add(key)
         span = self.scan.cells.get(key)
         if span is None:
             return
@@ -288,7 +296,7 @@ class _PackageEdit:
         self.content_add: list[tuple[str, str]] = []
 
     def current(self, name: str) -> bytes:
-        return self.replaced.get(name) or self.pkg.read(name)
+        return self.replaced.get(name) or self.pkg.utf8(name)
 
     def relate(self, source: str, kind: str, target_rel: str, drop_kinds: set[str] = frozenset()) -> None:
         """Add a relationship of ``source`` (and drop those of ``drop_kinds``)."""
@@ -315,12 +323,12 @@ class _PackageEdit:
             if n == name:
                 self.added[i] = (n, data)
                 return
-        if data != self.pkg.read(name):
+        if data != self.pkg.utf8(name):
             self.replaced[name] = data
 
     def content_types(self) -> None:
         name = "[Content_Types].xml"
-        data = self.pkg.read(name)
+        data = self.pkg.utf8(name)
         existing = {e.attrib.get("PartName", "") for e in elements(data, name) if e.local == "Override"}
         add = [b'<%%sOverride PartName="%s" ContentType="%s"/>' % (attr(p), attr(t))
                for p, t in self.content_add if p not in existing]
@@ -353,7 +361,7 @@ def _metadata(edit: _PackageEdit, book: Book) -> bytes:
         edit.relate(book.workbook_part, "sheetMetadata", _relative(book.workbook_part, part))
         edit.content_add.append(("/" + part, _METADATA_TYPE))
         return b"1"
-    data = edit.pkg.read(part)
+    data = edit.pkg.utf8(part)
     els = elements(data, part)
     root = els[0]
     p = prefix(data, root)
@@ -414,7 +422,7 @@ def _custom_properties(edit: _PackageEdit) -> None:
         edit.content_add.append(("/" + part, _CUSTOM_TYPE))
         return
     part = rel.target
-    data = edit.pkg.read(part)
+    data = edit.pkg.utf8(part)
     els = [e for e in elements(data, part) if e.depth == 2 and e.local == "property"]
     p = prefix(data, elements(data, part)[0])
     by_name = {e.attrib.get("name"): e for e in els}
@@ -438,9 +446,9 @@ def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], se
     if any(is_dynamic(engine, fi) for fi in range(len(engine.cells))):
         cm = _metadata(edit, book)
     for sheet in book.sheets:
-        if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index]):
+        if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index] or sheet.scan.not_finite):
             continue
-        data = pkg.read(sheet.part)
+        data = pkg.utf8(sheet.part)
         new = _SheetPatch(data, sheet.scan, engine, sheet.index, cm).build()
         if new != data:
             edit.replaced[sheet.part] = new
@@ -452,4 +460,5 @@ def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], se
         edit.content_drop |= {"/" + c for c in chains}
     _custom_properties(edit)
     edit.content_types()
-    return edit.replaced, edit.removed, edit.added
+    replaced = {name: pkg.encoded(name, data) for name, data in edit.replaced.items()}  # UTF-16 parts stay UTF-16
+    return replaced, edit.removed, edit.added

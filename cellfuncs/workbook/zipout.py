@@ -1,12 +1,22 @@
 """Writing the package: untouched members copied as their stored (compressed) bytes,
 changed ones deflated anew, all into a temporary file that replaces the target in one
 step (``os.replace``), so an interrupted run leaves the old file as it was.
+
+The temporary file sits beside the target, hidden, and carries the host and process id
+(``.plant.xlsx.cellfuncs-HOST-PID-XXXX.tmp``): a run killed before it could remove its
+file leaves it behind, and a later run writing to the same target removes it once that
+process is gone (on this host; on Windows, where no process can be tested safely, it stays).
+
+>>> temporary_prefix("plant.xlsx").startswith(".plant.xlsx.cellfuncs-")
+True
 """
 
 from __future__ import annotations
 
 import os
+import re
 import shutil
+import socket
 import struct
 import tempfile
 import zipfile
@@ -73,11 +83,63 @@ def _entries(pkg: Package, replaced: dict[str, bytes], removed: set[str], added:
                      b""), payload
 
 
+def _host() -> str:
+    return re.sub(r"[^A-Za-z0-9]", "_", socket.gethostname())[:40] or "host"
+
+
+def _stem(name: str) -> str:
+    return "." + name[:100] + ".cellfuncs-" + _host() + "-"  # room in a file name of 255 characters
+
+
+def temporary_prefix(name: str) -> str:
+    """How the temporary files of this process for target file ``name`` begin."""
+    return f"{_stem(name)}{os.getpid()}-"
+
+
+def _alive(pid: int) -> bool:
+    if os.name != "posix" or pid <= 0:
+        return True  # no safe test: treat it as running and leave its file alone
+    try:
+        os.kill(pid, 0)  # signal 0 only asks whether the process exists
+    except ProcessLookupError:
+        return False
+    except OSError:  # it exists but belongs to someone else
+        return True
+    return True
+
+
+def remove_stale(folder: str, name: str) -> list[str]:
+    """Remove the temporary files left in ``folder`` for target ``name`` by processes of this
+    host that are gone; return their names."""
+    stem = _stem(name)
+    pattern = re.compile(re.escape(stem) + r"([0-9]+)-[A-Za-z0-9_]+\.tmp\Z")
+    removed = []
+    try:
+        entries = os.listdir(folder)
+    except OSError:
+        return removed
+    for entry in entries:
+        m = pattern.match(entry)
+        if m is not None and not _alive(int(m.group(1))):
+            try:
+                os.unlink(os.path.join(folder, entry))
+                removed.append(entry)
+            except OSError:
+                pass
+    return removed
+
+
 def write_package(pkg: Package, dest: str, replaced: dict[str, bytes], removed: set[str],
                   added: list[tuple[str, bytes]]) -> None:
-    """Write ``pkg`` with members ``replaced``, ``removed`` and ``added`` to ``dest``, atomically."""
+    """Write ``pkg`` with members ``replaced``, ``removed`` and ``added`` to ``dest``, atomically.
+
+    Operating-system errors of the output (disk full, read-only, no permission) propagate
+    as OSError, after the temporary file is removed; the target is never half written.
+    """
     folder = os.path.dirname(os.path.abspath(dest))
-    fd, tmp = tempfile.mkstemp(dir=folder, prefix="." + os.path.basename(dest) + ".", suffix=".tmp")
+    name = os.path.basename(dest)
+    remove_stale(folder, name)
+    fd, tmp = tempfile.mkstemp(dir=folder, prefix=temporary_prefix(name), suffix=".tmp")
     try:
         with os.fdopen(fd, "wb") as out:
             entries = []
