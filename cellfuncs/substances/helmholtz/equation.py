@@ -14,7 +14,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 from functools import lru_cache
 from importlib import resources
-from typing import NamedTuple
 
 import numpy as np
 
@@ -23,8 +22,26 @@ from . import schema
 from .terms import DERIVATIVES, IdealTerms, evaluate
 
 
+class _Derivatives:
+    """Expansivity and compressibility from (dp/dT)_rho and (dp/drho)_T, for State and Mechanical."""
+
+    rho: np.ndarray
+    dp_drho: np.ndarray
+    dp_dT: np.ndarray
+
+    @property
+    def alpha(self) -> np.ndarray:
+        """Cubic expansivity (1/v)(dv/dT)_p."""
+        return self.dp_dT / (self.rho * self.dp_drho)
+
+    @property
+    def kappa(self) -> np.ndarray:
+        """Isothermal compressibility -(1/v)(dv/dp)_T."""
+        return 1.0 / (self.rho * self.dp_drho)
+
+
 @dataclass(frozen=True)
-class State:
+class State(_Derivatives):
     """Molar properties at (T, rho); every field is an array of the broadcast shape."""
 
     T: np.ndarray  # K
@@ -45,18 +62,9 @@ class State:
     def v(self) -> np.ndarray:
         return 1.0 / self.rho
 
-    @property
-    def alpha(self) -> np.ndarray:
-        """Cubic expansivity (1/v)(dv/dT)_p."""
-        return self.dp_dT / (self.rho * self.dp_drho)
 
-    @property
-    def kappa(self) -> np.ndarray:
-        """Isothermal compressibility -(1/v)(dv/dp)_T."""
-        return 1.0 / (self.rho * self.dp_drho)
-
-
-class Mechanical(NamedTuple):
+@dataclass(frozen=True)
+class Mechanical(_Derivatives):
     """The residual-only properties at (T, rho): pressure, its derivatives, the residual Gibbs energy."""
 
     p: np.ndarray  # Pa
@@ -64,14 +72,6 @@ class Mechanical(NamedTuple):
     dp_dT: np.ndarray  # Pa/K
     g_density: np.ndarray  # J/mol: g - g_ideal_gas(T, rho) = RT (alphar + delta alphar_delta)
     rho: np.ndarray  # mol/m3
-
-    @property
-    def alpha(self) -> np.ndarray:
-        return self.dp_dT / (self.rho * self.dp_drho)
-
-    @property
-    def kappa(self) -> np.ndarray:
-        return 1.0 / (self.rho * self.dp_drho)
 
 
 class HelmholtzEquation:
