@@ -157,8 +157,15 @@ def _profile_argument(profile: str | None) -> str:
 
 
 def run_office(office: Office, arguments: list[str], timeout: float = 300) -> subprocess.CompletedProcess:
-    """Run office.py with LibreOffice's Python (the pack's own environment variables left out)."""
+    """Run office.py with LibreOffice's Python (the pack's own environment variables left out).
+
+    An activated virtual environment's bin folder leaves PATH too: with it first, LibreOffice's
+    start fails inside the extension manager (std::bad_alloc from the UNO bridge, seen with 7.4)."""
     environment = {k: v for k, v in os.environ.items() if k not in ("PYTHONHOME", "PYTHONPATH", "VIRTUAL_ENV")}
+    if sys.prefix != sys.base_prefix:
+        own = os.path.realpath(os.path.join(sys.prefix, "bin"))
+        environment["PATH"] = os.pathsep.join(
+            d for d in environment.get("PATH", "").split(os.pathsep) if d and os.path.realpath(d) != own)
     environment["CELLFUNCS_SOFFICE"] = office.soffice
     return subprocess.run([office.python, str(HERE / "office.py"), *arguments], capture_output=True, text=True,
                           timeout=timeout, env=environment)
