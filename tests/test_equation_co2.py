@@ -2,7 +2,7 @@
 tables computed with it, and the model's own consistency (one equation behind every fluid quantity).
 
 Span and Wagner, J. Phys. Chem. Ref. Data 25, 1509 (1996): Table 34 (saturation) and Table 35
-(single phase) print values computed with the equation itself, so the transcription must give them
+(single phase) print values computed with the equation itself, so the copied coefficients must give them
 to the printed digits. The values below were recalled from memory of those tables (marked so);
 the saturation values at 220 K and the single-phase values were checked against nothing else.
 """

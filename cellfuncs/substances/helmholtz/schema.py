@@ -7,7 +7,7 @@ publication prints it::
     reference = "R. Span, W. Wagner, J. Phys. Chem. Ref. Data 25, 1509 (1996), Tables 28, 31, 32"
     uncertainty = "density 0.03-0.05 % to 30 MPa and 523 K; ..."      # as the paper states it
     memory = true            # coefficients recalled from memory of the tables; the tests' check
-                             # values (the paper's own) decide whether the transcription ships
+                             # values (the paper's own) decide whether the copied coefficients ship
 
     [constants.reducing_temperature]     # Constant tables, as in the substance files: name, value,
     [constants.reducing_density]         # unit, uncertainty (optional), reference. The reducing
