@@ -20,6 +20,7 @@ import pytest
 
 from cellfuncs.cli import main
 from cellfuncs.workbook.limits import DEFAULTS, FIELDS, option
+from test_recalc import one_sheet as book  # the same one-sheet workbook the recalc tests build
 
 
 def cli(*args: str) -> tuple[int, str, str]:
@@ -27,17 +28,6 @@ def cli(*args: str) -> tuple[int, str, str]:
     with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
         code = main(["recalc", *args])
     return code, out.getvalue(), err.getvalue()
-
-
-def book(tmp_path: Path, cells: dict[str, object], name: str = "book.xlsx") -> Path:
-    wb = openpyxl.Workbook()
-    ws = wb.active
-    ws.title = "S"
-    for ref, value in cells.items():
-        ws[ref] = value
-    path = tmp_path / name
-    wb.save(path)
-    return path
 
 
 def value(path: Path, ref: str) -> object:
