@@ -201,7 +201,7 @@ def main(argv: Sequence[str] | None = None) -> int:
             from .workbook.command import limits_of, run
 
             return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance, limits_of(args),
-                       args.split_hard_links)
+                       args.split_hard_links, args.jobs, args.shard)
         if args.command == "units":
             return _units()
         if args.command == "excel-setup":

@@ -392,7 +392,8 @@ def test_whole_process_run_and_exit_status_for_error_cells(tmp_path):
     lines = done.stderr.splitlines()
     assert lines[0].startswith(f"recalc: {path}: S!A1: #NUM! ")
     assert lines[1].startswith(f"recalc: {path}: S!A2: #NUM! ")
-    assert re.fullmatch(r"recalc: 1 files, 2 cells, 2 errors, 0 differences, [0-9.]+ s", lines[-1])
+    assert re.fullmatch(r"recalc: 1 files, 2 cells, 2 errors, 0 differences, [0-9.]+ s; nothing written \(.*\)",
+                        lines[-1])
 
 
 # ---- interrupted writes ----------------------------------------------------------------
@@ -817,3 +818,50 @@ def test_existing_cell_metadata_gets_a_dynamic_array_record(tmp_path):
     assert '<c r="A1" cm="2"><f t="array" ref="A1:A2">' in sheet(path)
     assert contents(path)["[Content_Types].xml"].count(b"/xl/metadata.xml") == 1
     assert [values(path)[c].value for c in ("A1", "A2")] == [1, 2]
+
+
+# ---- many workbooks: folders, --jobs, --shard ---------------------------------------------
+SHIPPED = Path(__file__).resolve().parents[1] / "workbooks"
+
+
+def test_a_dry_run_says_nothing_was_written_and_how_to_write(tmp_path):
+    code, _, err = cli(str(plant(tmp_path)))
+    assert code == 0 and "nothing written" in err.splitlines()[-1] and "--out DIR or --in-place" in err
+
+
+def test_a_folder_stands_for_its_workbooks_in_all_subfolders_by_name(tmp_path):
+    from cellfuncs.workbook.command import workbook_list
+
+    for name in ("b/two.xlsx", "a/one.xlsm", "three.XLSX", "a/~$one.xlsm", "notes.txt"):
+        (tmp_path / name).parent.mkdir(exist_ok=True)
+        (tmp_path / name).write_bytes(b"")
+    assert workbook_list([str(tmp_path)]) == [str(tmp_path / n) for n in ("a/one.xlsm", "b/two.xlsx", "three.XLSX")]
+
+
+@pytest.mark.parametrize("shares", [1, 2, 3, 7])
+def test_shards_cover_the_list_once(shares):
+    from cellfuncs.workbook.command import workbook_list
+
+    files = [f"book{k}.xlsx" for k in range(10)]
+    parts = [workbook_list(files, (k, shares)) for k in range(1, shares + 1)]
+    assert sorted(sum(parts, [])) == sorted(files)
+    assert max(map(len, parts)) - min(map(len, parts)) <= 1  # equal shares
+
+
+@pytest.mark.parametrize("text", ["0/2", "3/2", "2", "a/b", "1/0"])
+def test_a_shard_outside_one_to_n_is_a_usage_error(text):
+    with pytest.raises(SystemExit) as stop, contextlib.redirect_stderr(io.StringIO()):
+        main(["recalc", "x.xlsx", "--shard", text])
+    assert stop.value.code == 2
+
+
+def test_parallel_jobs_write_what_one_job_writes(tmp_path):
+    """The shipped workbooks recalculated by two processes and by one: the same files, the same report."""
+    runs = {}
+    for jobs in ("1", "2"):
+        out = tmp_path / jobs
+        code, stdout, err = cli(str(SHIPPED), "--out", str(out), "--jobs", jobs)
+        runs[jobs] = (code, stdout, err.splitlines()[:-1], {p.name: stored(p) for p in sorted(out.iterdir())})
+        assert err.splitlines()[-1].startswith("recalc: 4 files, ")
+    assert runs["1"] == runs["2"]
+    assert not [p for p in tmp_path.rglob("*.tmp")]

@@ -14,13 +14,16 @@ import math
 import os
 import sys
 import time
-from typing import Sequence
+from typing import TYPE_CHECKING, Iterator, Sequence
 
 from ..formula.budget import MAX_FORMULA_TEXT, MAX_TEXT
 from .limits import DEFAULTS, FIELDS, Limits, option
 from .package import MAX_MEMBERS, MAX_RATIO, MAX_TOTAL, RATIO_FLOOR
 from .report import escaped
 from .sheetxml import MAX_CELLS, MAX_FORMULAS
+
+if TYPE_CHECKING:
+    from .recalc import Outcome
 
 MAX_LISTED = 200  # error cells listed per file; the count covers them all
 
@@ -95,9 +98,45 @@ def _count(text: str) -> int:
     return int(value)
 
 
+def _shard(text: str) -> tuple[int, int]:
+    """--shard K/N: whole numbers with 1 <= K <= N."""
+    k, slash, n = text.partition("/")
+    try:
+        share, shares = int(k), int(n)
+    except ValueError:
+        share = shares = 0
+    if not slash or not 1 <= share <= shares:
+        raise argparse.ArgumentTypeError(f"{text!r} is not K/N with 1 <= K <= N (for example 2/4)")
+    return share, shares
+
+
+WORKBOOK_SUFFIXES = (".xlsx", ".xlsm")
+
+
+def workbook_list(paths: Sequence[str], shard: tuple[int, int] | None = None) -> list[str]:
+    """The files a command line names: files as given, folders as their workbooks in all subfolders
+    (sorted by path, Excel's lock files ``~$…`` left out); with ``shard`` (K, N) every N-th from the K-th.
+    The order is fixed by the names alone, so N machines given the same list share it without overlap."""
+    files: list[str] = []
+    for path in paths:
+        if not os.path.isdir(path):
+            files.append(path)
+            continue
+        found = []
+        for folder, _, names in os.walk(path):
+            found += [os.path.join(folder, name) for name in names
+                      if name.lower().endswith(WORKBOOK_SUFFIXES) and not name.startswith("~$")]
+        files += sorted(found)
+    if shard is not None:
+        share, shares = shard
+        files = files[share - 1::shares]
+    return files
+
+
 def add_arguments(parser) -> None:
     """The options of ``cellfuncs recalc``."""
-    parser.add_argument("workbooks", nargs="+", metavar="WORKBOOK", help=".xlsx or .xlsm files")
+    parser.add_argument("workbooks", nargs="+", metavar="WORKBOOK",
+                        help=".xlsx or .xlsm files, or folders (their workbooks, in all subfolders, by name)")
     where = parser.add_mutually_exclusive_group()
     where.add_argument("--out", metavar="DIR", help="write DIR/<same file name> (DIR is created if missing)")
     where.add_argument("--in-place", action="store_true", help="replace each input (atomically)")
@@ -108,6 +147,11 @@ def add_arguments(parser) -> None:
     parser.add_argument("--split-hard-links", action="store_true",
                         help="with --in-place, replace a file that other hard links share too (they keep the old "
                              "content)")
+    parser.add_argument("--jobs", type=_count, default=None, metavar="N",
+                        help="recalculate N workbooks at a time, each in its own process (default: one per core)")
+    parser.add_argument("--shard", type=_shard, default=None, metavar="K/N",
+                        help="take only the K-th of N equal shares of the workbooks (every N-th, from the K-th), "
+                             "so that N machines share a list")
     limits = parser.add_argument_group("limits on the work a workbook may ask for")
     for name in FIELDS:
         default = getattr(DEFAULTS, name)
@@ -153,10 +197,44 @@ def _destinations(paths: Sequence[str], out: str | None, in_place: bool) -> list
     return dests
 
 
+def _recalc_one(job: tuple) -> tuple[Outcome | None, str | None]:
+    """One workbook, in this process or a worker: its outcome, or the text of an internal failure
+    (a bug: reported, and the run goes on with the next file)."""
+    from .recalc import recalc_file
+
+    path, dest, check, tolerance, limits, split_links, progress = job
+    try:
+        return recalc_file(path, dest, check, tolerance, progress, limits, split_links), None
+    except Exception as exc:
+        return None, f"{type(exc).__name__}: {exc}"
+
+
+def _outcomes(jobs: list[tuple], workers: int, progress) -> Iterator[tuple[Outcome | None, str | None]]:
+    """The outcomes in the order of the list. One worker: in this process, with the progress bar
+    counting cells; more: a pool of processes (temporary files carry the process id, so workers never
+    share one), the bar counting files as they finish."""
+    if workers == 1:
+        for index, job in enumerate(jobs):
+            progress.file(index, os.path.basename(job[0]))
+            yield _recalc_one(job[:-1] + (progress.update,))
+            progress.clear()
+        return
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(max_workers=workers) as pool:
+        for index, result in enumerate(pool.map(_recalc_one, jobs)):
+            progress.file(index, os.path.basename(jobs[index][0]))
+            progress.update(0, 0)
+            yield result
+        progress.clear()
+
+
 def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, check: bool = False,
-        tolerance: float = 1e-9, limits: Limits = DEFAULTS, split_links: bool = False) -> int:
-    """Recalculate ``paths``; print differences, errors and the summary; return the exit status."""
-    from .recalc import recalc_file, unwritable
+        tolerance: float = 1e-9, limits: Limits = DEFAULTS, split_links: bool = False, jobs: int | None = None,
+        shard: tuple[int, int] | None = None) -> int:
+    """Recalculate ``paths`` (files or folders; ``shard`` (K, N) keeps the K-th of N shares) with ``jobs``
+    processes (default: one per core); print differences, errors and the summary; return the exit status."""
+    from .recalc import unwritable
     from .report import Progress
 
     started = time.perf_counter()
@@ -164,6 +242,7 @@ def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, ch
         return _usage("--check never writes: leave out --out and --in-place")
     if not (tolerance >= 0.0 and math.isfinite(tolerance)):
         return _usage(f"--tolerance must be a finite number >= 0, not {tolerance}")
+    paths = workbook_list(paths, shard)
     dests = _destinations(paths, out, in_place)
     if isinstance(dests, str):
         return _usage(dests)
@@ -174,19 +253,16 @@ def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, ch
             print(f"cellfuncs recalc: cannot create the folder {escaped(out)}: {escaped(unwritable(exc))}",
                   file=sys.stderr)
             return 4
+    workers = max(1, min(jobs or os.cpu_count() or 1, len(paths)))
     progress = Progress(len(paths))
     status = cells = errors = diffs = 0
-    for index, (path, dest) in enumerate(zip(paths, dests)):
+    work = [(path, dest, check, tolerance, limits, split_links, None) for path, dest in zip(paths, dests)]
+    for path, (outcome, failure) in zip(paths, _outcomes(work, workers, progress)):
         shown = escaped(path)
-        progress.file(index, os.path.basename(path))
-        try:
-            outcome = recalc_file(path, dest, check, tolerance, progress.update, limits, split_links)
-        except Exception as exc:  # an internal failure: report it, go on with the next file
-            progress.clear()
-            print(f"recalc: {shown}: internal error: {type(exc).__name__}: {escaped(str(exc))}", file=sys.stderr)
+        if outcome is None:
+            print(f"recalc: {shown}: internal error: {escaped(failure)}", file=sys.stderr)
             status = max(status, 3)
             continue
-        progress.clear()
         if outcome.refused is not None:
             print(f"recalc: {shown}: refused: {escaped(outcome.refused)}", file=sys.stderr)
             status = max(status, 2)
@@ -207,6 +283,7 @@ def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, ch
             status = max(status, 4)
     sys.stdout.flush()
     seconds = time.perf_counter() - started
-    print(f"recalc: {len(paths)} files, {cells} cells, {errors} errors, {diffs} differences, {seconds:.2f} s",
+    dry = "" if check or out is not None or in_place else "; nothing written (a dry run: --out DIR or --in-place writes)"
+    print(f"recalc: {len(paths)} files, {cells} cells, {errors} errors, {diffs} differences, {seconds:.2f} s{dry}",
           file=sys.stderr)
     return status
