@@ -28,10 +28,10 @@ from cellfuncs.substances.general.bounds import FIELDS
 from cellfuncs.substances.general.consistency import check, check_published
 from cellfuncs.substances.general.definition import builtin_keys, load_builtin
 from cellfuncs.substances.general.model import GeneralSubstance
+from cellfuncs.substances.constants import R
 from cellfuncs.substances.result import ModelError
 
 ROOT = Path(__file__).resolve().parents[1]
-R = 8.314462618  # J/(mol K), CODATA 2018 (exact)
 # an invented substance for the checks below
 DEMO = {"name": "demo solvent Q", "molar_mass": (72.11, "g/mol"), "critical_temperature": (500.0, "K"),
         "critical_pressure": (5.0, "MPa"), "acentric_factor": 0.3}

@@ -31,6 +31,7 @@ import pytest
 
 from cellfuncs.data import constant
 from cellfuncs.errors import CellError
+from cellfuncs.substances.constants import R
 from cellfuncs.sheet.functions import (BOIL_PRESSURE, BOIL_TEMP, CRITICAL_POINT, MASS_DENSITY, MELT_TEMP, SUBSTANCE_INFO,
                                        TRIPLE_POINT)
 from cellfuncs.substances import ideal_gas
@@ -704,4 +705,4 @@ def test_user_defined_ideal_gas_rows_are_kept():
                                 "ideal_gas_cp.form": "polynomial", "ideal_gas_cp.a": "[4.0, 0.01]",
                                 "ideal_gas_cp.T_min": 200, "ideal_gas_cp.T_max": 1000})
     assert d.ideal_gas["a"] == [4.0, 0.01]
-    assert float(ideal_gas.cp0(d.ideal_gas, 300.0)) == pytest.approx(8.314462618 * 7.0)
+    assert float(ideal_gas.cp0(d.ideal_gas, 300.0)) == pytest.approx(R * 7.0)

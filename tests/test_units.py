@@ -324,3 +324,11 @@ def test_a_formula_in_common_units_does_not_import_pint():
             "print('pint' in sys.modules)")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
     assert done.stdout.strip() == "False", done.stdout + done.stderr
+
+
+def test_the_molar_gas_constant_is_the_product_of_the_defining_constants():
+    """CODATA 2018 (Tiesinga et al. 2021, Rev. Mod. Phys. 93, 025010) prints R = 8.314 462 618... J/(mol K),
+    exact; the pack derives it from N_A and k of the SI Brochure's Table 1 rather than typing it."""
+    from cellfuncs.substances.constants import R
+
+    assert R == pytest.approx(8.314462618, abs=5e-10)

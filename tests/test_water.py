@@ -45,10 +45,10 @@ from cellfuncs.sheet.functions import (
 )
 from cellfuncs.data import load
 from cellfuncs.substances.water import if97, if97_saturation
+from cellfuncs.substances.constants import R
 from cellfuncs.substances.water import model as water_model
 
 W = "water"
-R = 8.314462618  # J/(mol K), molar gas constant, CODATA 2018 (exact since the 2019 SI)
 TT, PT = 273.16, 611.657  # K, Pa: triple point, IAPWS R14-08(2011), section 2 (from memory of R14-08)
 TC, PC = 647.096, 22.064e6  # K, Pa: critical point, IAPWS R7-97(2012), eqs. (3), (4) (from memory of R7-97)
 ATM = 101325.0  # Pa, standard atmosphere, NIST SP 811 (2008), App. B.8, exact

@@ -31,7 +31,7 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from .general.peng_robinson import R
+from .constants import R
 from .result import BAD_ARGUMENT, ModelError
 
 T_REF = 298.15  # K, lower end of the enthalpy and entropy integrals

@@ -15,8 +15,10 @@ from typing import Any, Mapping
 
 import numpy as np
 
-_PRESSURE_UNITS = {"Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "bar": 1e5, "mmHg": 133.322387415, "torr": 101325 / 760,
-                   "atm": 101325.0}
+from .constants import P_STANDARD
+
+_PRESSURE_UNITS = {"Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "bar": 1e5, "mmHg": 133.322387415, "torr": P_STANDARD / 760,
+                   "atm": P_STANDARD}
 _TEMPERATURE_OFFSETS = {"K": 0.0, "degC": 273.15}
 
 

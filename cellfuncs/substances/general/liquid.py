@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .peng_robinson import R
+from ..constants import R
 
 # Thomson, Brobst and Hankinson (1982), Table 3 (from memory of the published table)
 _TAIT = dict(a=-9.070217, b=62.45326, d=-135.1102, f=4.79594, g=0.250047, h=1.14188, j=0.0861488, k=0.0344483)

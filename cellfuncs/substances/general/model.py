@@ -42,9 +42,10 @@ from ..phase_map import LINE_TOL, classify, state_table
 from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, fmt
 from .definition import Definition
 from .liquid import LiquidVolume
-from .peng_robinson import R, PengRobinson
+from ..constants import P_STANDARD, R
+from .peng_robinson import PengRobinson
 
-P0 = 101325.0  # Pa, the pressure of the chemical potential's reference state
+P0 = P_STANDARD  # Pa, the pressure of the chemical potential's reference state
 P_MAX = 100e6  # Pa, highest pressure the liquid and fluid estimates are used at
 VERTICAL_P_MAX = P_MAX  # Pa, top of a melting line taken as pressure-independent
 _LABELS, _STATE_PHASE = state_table(("solid",))

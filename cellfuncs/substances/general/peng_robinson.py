@@ -12,7 +12,8 @@ from __future__ import annotations
 
 import numpy as np
 
-R = 8.314462618  # J/(mol K), CODATA 2018 (exact)
+from ..constants import R
+
 _SQRT2 = np.sqrt(2.0)
 
 
