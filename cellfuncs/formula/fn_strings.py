@@ -22,6 +22,7 @@ from .budget import MAX_TEXT  # the most characters a cell holds
 from .coerce import to_bool, to_number, to_text
 from .evaluate import builtin
 from .fn_lookup import wildcard
+from .fn_text import texts
 from .nodes import Scalar
 
 
@@ -356,14 +357,10 @@ def textjoin(delimiter: Value, ignore_empty: Value, *values: Value) -> Scalar:
     for x in (d, skip):
         if type(x) is CellError:
             return x
-    parts = []
-    for v in values:
-        for x in v.flat if type(v) is np.ndarray else (v,):
-            t = to_text(x)
-            if type(t) is CellError:
-                return t
-            if t or not skip:
-                parts.append(t)
+    parts = texts(values)
+    if type(parts) is CellError:
+        return parts
+    parts = [t for t in parts if t or not skip]
     if sum(map(len, parts)) + len(d) * max(len(parts) - 1, 0) > MAX_TEXT:  # counted before the text is built
         return CellError(VALUE, f"the text is longer than {MAX_TEXT} characters")
     return d.join(parts)

@@ -24,6 +24,22 @@ from .numfmt import apply_format, general
 from .nodes import Scalar
 
 
+def texts(values: tuple[Value, ...]) -> list[str] | CellError:
+    """Every element of the arguments as text, arrays row by row; the first error met instead.
+
+    >>> texts((np.array([[1.0, 2.5]]), True, "a"))
+    ['1', '2.5', 'TRUE', 'a']
+    """
+    parts = []
+    for v in values:
+        for x in v.flat if type(v) is np.ndarray else (v,):
+            t = to_text(x)
+            if type(t) is CellError:
+                return t
+            parts.append(t)
+    return parts
+
+
 @builtin("CONCAT", 1, None)
 def concat(*values: Value) -> str | CellError:
     """All arguments as text joined, arrays element by element row by row.
@@ -31,16 +47,10 @@ def concat(*values: Value) -> str | CellError:
     >>> concat("a", None, 2.0)
     'a2'
     """
-    parts = []
-    length = 0
-    for v in values:
-        for x in v.flat if type(v) is np.ndarray else (v,):
-            t = to_text(x)
-            if type(t) is CellError:
-                return t
-            length += len(t)
-            parts.append(t)
-    return text_error(length) or "".join(parts)
+    parts = texts(values)
+    if type(parts) is CellError:
+        return parts
+    return text_error(sum(map(len, parts))) or "".join(parts)
 
 
 class _NumberFormat(NamedTuple):
