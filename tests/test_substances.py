@@ -774,3 +774,18 @@ def test_a_definition_naming_an_equation_must_agree_with_its_critical_point():
             r[1] = 101326.0
     result = BOIL_TEMP(np.array(rows, dtype=object), 1, "atm")
     assert isinstance(result, CellError) and result.code == VALUE and "critical_pressure" in result.reason
+
+
+def test_a_fixed_point_typed_to_two_decimals_is_the_fixed_point():
+    # carbon dioxide's triple point, 216.592 K (Span and Wagner 1996, J. Phys. Chem. Ref. Data 25, 1509,
+    # from memory), is -56.558 degC; engineers type -56.56 (2 mK below it) or 5.18 bar
+    tt, pt = TRIPLE_POINT("CO2", "T"), TRIPLE_POINT("CO2", "p")
+    assert LATENT_HEAT("CO2", "melt", -56.56, "degC") == LATENT_HEAT("CO2", "melt", tt)
+    assert LATENT_HEAT("CO2", "boil", -56.56, "degC") == LATENT_HEAT("CO2", "boil", tt)
+    assert BOIL_PRESSURE("CO2", -56.56, "degC") == pytest.approx(pt, rel=1e-12)
+    assert SUBLIME_TEMP("CO2", 5.18, "bar") == pytest.approx(tt, rel=1e-12)
+    assert BOIL_TEMP("CO2", 73.8, "bar") == pytest.approx(CRITICAL_POINT("CO2", "T"), rel=1e-12)  # pc 73.773 bar
+    # past the digits people type it stays an error: 8 mK, 0.2 %
+    assert isinstance(BOIL_PRESSURE("CO2", -56.566, "degC"), CellError)
+    assert isinstance(SUBLIME_PRESSURE("CO2", -56.55, "degC"), CellError)
+    assert isinstance(BOIL_TEMP("CO2", 73.9, "bar"), CellError)

@@ -38,7 +38,7 @@ import numpy as np
 from ...numerics import MonotoneInverse
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..lines import line_pressure
-from ..phase_map import LINE_TOL, classify, state_table
+from ..phase_map import LINE_TOL, classify, onto_ends, state_table
 from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, fmt
 from .definition import Definition
 from .liquid import LiquidVolume
@@ -274,6 +274,7 @@ class GeneralSubstance(Substance):
         return " and ".join(k for k in ("enthalpy_of_fusion", "solid_density") if k not in self.definition.values)
 
     def boil_pressure(self, T: np.ndarray) -> Result:
+        T = onto_ends(T, self.t_low if self.has_triple else None, self.tc)
         r = Result.like(T)
         r.flag(T < self.t_low * (1 - LINE_TOL), OUT_OF_RANGE,
                "{} K is below the " + self._low_name() + f" of {self.name} ({fmt(self.t_low)} K)", T,
@@ -287,8 +288,9 @@ class GeneralSubstance(Substance):
         return "triple-point temperature" if self.has_triple else "lowest temperature of the vapour-pressure line"
 
     def boil_temperature(self, p: np.ndarray) -> Result:
-        r = Result.like(p)
         p_low = self._p_low
+        p = onto_ends(p, p_low if self.has_triple else None, self._p_high, relative=True)
+        r = Result.like(p)
         r.flag(p < p_low * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the " + (
             "triple-point pressure" if self.has_triple else "lowest pressure of the vapour-pressure line")
                + f" of {self.name} ({fmt(p_low)} Pa)", p, see="sublime" if self.has_triple else "")
@@ -307,6 +309,7 @@ class GeneralSubstance(Substance):
                           f"taken as independent of pressure ({fmt(self.triple.temperature)} K); use MELT_TEMP")
             return r, SOLID
         lo, hi = self._melt_range
+        T = self.onto_line("melt", T)
         r.flag((T < lo * (1 - LINE_TOL)) | (T > hi * (1 + LINE_TOL)), OUT_OF_RANGE,
                "{} K is outside the melting line of " + f"{self.name} ({fmt(lo)} K to {fmt(hi)} K)", T)
         r.fill(self._p_melt(np.clip(T, lo, hi)))
@@ -327,6 +330,8 @@ class GeneralSubstance(Substance):
             self._missing(r, "melting", _NO_TRIPLE + " and no melting equation")
             return r, SOLID
         p_lo, p_hi = self._melt_p_range
+        p = onto_ends(p, self.triple.pressure if self.has_triple and p_lo == self.triple.pressure else None,
+                      relative=True)
         r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the melting line of "
                + f"{self.name} (from {fmt(p_lo)} Pa)", p, see="sublime" if self.has_triple else "")
         r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the melting line's range for "
@@ -340,6 +345,7 @@ class GeneralSubstance(Substance):
             self._missing(r, "solid-vapour", self._no_sublimation_reason())
             return r
         lo, hi = self._sub_range
+        T = onto_ends(T, high=hi)
         r.flag(T > hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the triple-point temperature of "
                + f"{self.name} ({fmt(hi)} K)", T, see="boil")
         r.flag(T < lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} K is below the sublimation line's range for "
@@ -364,6 +370,7 @@ class GeneralSubstance(Substance):
             return r
         lo, hi = self._sub_range
         p_lo, p_hi = self._p_sub_low, self.triple.pressure
+        p = onto_ends(p, high=p_hi, relative=True)
         r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of "
                + f"{self.name} ({fmt(p_hi)} Pa)", p, see="boil")
         r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the sublimation line's range for "
@@ -540,14 +547,28 @@ class GeneralSubstance(Substance):
         self._store(fields, sel, r, sub, v=np.full(t.shape, self.v_solid), g=g)
 
     # --- quantities this model derives by the Clapeyron equation ------------------------
+    def onto_line(self, boundary: str, T: np.ndarray) -> np.ndarray:
+        """``T`` with temperatures typed just past an end of the line (see TYPED_T) moved onto it."""
+        if boundary == "boil":
+            return onto_ends(T, self.t_low if self.has_triple else None, self.tc)
+        if not self.has_triple:
+            return T
+        tt = self.triple.temperature
+        # the melting line starts at the triple point (rising) or ends there (water-like, falling)
+        return onto_ends(T, high=tt) if boundary == "sublime" or self._melt_range[1] == tt else onto_ends(T, tt)
+
     def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
         """T * dV * dp/dT on the line, with the model's own volumes and line slope."""
+        T = self.onto_line(boundary, T)
         p, phases = self.line_pressure(boundary, T)
         step = 1e-5 * np.asarray(T, float)
         up, _ = self.line_pressure(boundary, T + step)
         down, _ = self.line_pressure(boundary, T - step)
-        slope = np.where(np.isfinite(up.values) & np.isfinite(down.values), (up.values - down.values) / (2 * step),
-                         np.where(np.isfinite(up.values), (up.values - p.values) / step, (p.values - down.values) / step))
+        # a step past an end gives NaN, or the end's own pressure where it lies within TYPED_T of a fixed point
+        has_up = np.isfinite(up.values) & (up.values != p.values)
+        has_down = np.isfinite(down.values) & (down.values != p.values)
+        slope = np.where(has_up & has_down, (up.values - down.values) / (2 * step),
+                         np.where(has_up, (up.values - p.values) / step, (p.values - down.values) / step))
         low, low_result = self.props(T, p.values, phases[0])
         high, high_result = self.props(T, p.values, phases[1])
         out = Result.joined(p, low_result, high_result)

@@ -225,7 +225,7 @@ class EquationSubstance(GeneralSubstance):
     def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
         """Boiling: h'' - h' from the equation; melting and sublimation: Clapeyron (general model)."""
         if boundary == "boil":
-            return Substance.latent_heat(self, boundary, T)
+            return Substance.latent_heat(self, boundary, self.onto_line(boundary, T))
         return super().latent_heat(boundary, T)
 
     def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
