@@ -14,7 +14,7 @@ import math
 import os
 import sys
 import time
-from typing import TYPE_CHECKING, Iterator, Sequence
+from typing import TYPE_CHECKING, Callable, Iterator, Sequence
 
 from ..formula.budget import MAX_FORMULA_TEXT, MAX_TEXT
 from .limits import DEFAULTS, FIELDS, Limits, option
@@ -197,12 +197,13 @@ def _destinations(paths: Sequence[str], out: str | None, in_place: bool) -> list
     return dests
 
 
-def _recalc_one(job: tuple) -> tuple[Outcome | None, str | None]:
+def _recalc_one(job: tuple, progress: Callable[[int, int], None] | None = None
+                ) -> tuple[Outcome | None, str | None]:
     """One workbook, in this process or a worker: its outcome, or the text of an internal failure
     (a bug: reported, and the run goes on with the next file)."""
     from .recalc import recalc_file
 
-    path, dest, check, tolerance, limits, split_links, progress = job
+    path, dest, check, tolerance, limits, split_links = job
     try:
         return recalc_file(path, dest, check, tolerance, progress, limits, split_links), None
     except Exception as exc:
@@ -216,7 +217,7 @@ def _outcomes(jobs: list[tuple], workers: int, progress) -> Iterator[tuple[Outco
     if workers == 1:
         for index, job in enumerate(jobs):
             progress.file(index, os.path.basename(job[0]))
-            yield _recalc_one(job[:-1] + (progress.update,))
+            yield _recalc_one(job, progress.update)
             progress.clear()
         return
     from concurrent.futures import ProcessPoolExecutor
@@ -256,7 +257,7 @@ def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, ch
     workers = max(1, min(jobs or os.cpu_count() or 1, len(paths)))
     progress = Progress(len(paths))
     status = cells = errors = diffs = 0
-    work = [(path, dest, check, tolerance, limits, split_links, None) for path, dest in zip(paths, dests)]
+    work = [(path, dest, check, tolerance, limits, split_links) for path, dest in zip(paths, dests)]
     for path, (outcome, failure) in zip(paths, _outcomes(work, workers, progress)):
         shown = escaped(path)
         if outcome is None:

@@ -37,12 +37,12 @@ import numpy as np
 
 from ...numerics import MonotoneInverse
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
+from ..constants import P_STANDARD, R
 from ..lines import line_pressure
 from ..phase_map import LINE_TOL, classify, onto_ends, state_table
 from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, fmt
 from .definition import Definition
 from .liquid import LiquidVolume
-from ..constants import P_STANDARD, R
 from .peng_robinson import PengRobinson
 
 P0 = P_STANDARD  # Pa, the pressure of the chemical potential's reference state
@@ -274,7 +274,7 @@ class GeneralSubstance(Substance):
         return " and ".join(k for k in ("enthalpy_of_fusion", "solid_density") if k not in self.definition.values)
 
     def boil_pressure(self, T: np.ndarray) -> Result:
-        T = onto_ends(T, self.t_low if self.has_triple else None, self.tc)
+        T = self.onto_line("boil", T)
         r = Result.like(T)
         r.flag(T < self.t_low * (1 - LINE_TOL), OUT_OF_RANGE,
                "{} K is below the " + self._low_name() + f" of {self.name} ({fmt(self.t_low)} K)", T,
@@ -289,7 +289,7 @@ class GeneralSubstance(Substance):
 
     def boil_temperature(self, p: np.ndarray) -> Result:
         p_low = self._p_low
-        p = onto_ends(p, p_low if self.has_triple else None, self._p_high, relative=True)
+        p = self.onto_line("boil", p, pressure=True)
         r = Result.like(p)
         r.flag(p < p_low * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the " + (
             "triple-point pressure" if self.has_triple else "lowest pressure of the vapour-pressure line")
@@ -330,8 +330,7 @@ class GeneralSubstance(Substance):
             self._missing(r, "melting", _NO_TRIPLE + " and no melting equation")
             return r, SOLID
         p_lo, p_hi = self._melt_p_range
-        p = onto_ends(p, self.triple.pressure if self.has_triple and p_lo == self.triple.pressure else None,
-                      relative=True)
+        p = self.onto_line("melt", p, pressure=True)
         r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the melting line of "
                + f"{self.name} (from {fmt(p_lo)} Pa)", p, see="sublime" if self.has_triple else "")
         r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the melting line's range for "
@@ -345,7 +344,7 @@ class GeneralSubstance(Substance):
             self._missing(r, "solid-vapour", self._no_sublimation_reason())
             return r
         lo, hi = self._sub_range
-        T = onto_ends(T, high=hi)
+        T = self.onto_line("sublime", T)
         r.flag(T > hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the triple-point temperature of "
                + f"{self.name} ({fmt(hi)} K)", T, see="boil")
         r.flag(T < lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} K is below the sublimation line's range for "
@@ -370,7 +369,7 @@ class GeneralSubstance(Substance):
             return r
         lo, hi = self._sub_range
         p_lo, p_hi = self._p_sub_low, self.triple.pressure
-        p = onto_ends(p, high=p_hi, relative=True)
+        p = self.onto_line("sublime", p, pressure=True)
         r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of "
                + f"{self.name} ({fmt(p_hi)} Pa)", p, see="boil")
         r.flag(p < p_lo * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the sublimation line's range for "
@@ -547,15 +546,21 @@ class GeneralSubstance(Substance):
         self._store(fields, sel, r, sub, v=np.full(t.shape, self.v_solid), g=g)
 
     # --- quantities this model derives by the Clapeyron equation ------------------------
-    def onto_line(self, boundary: str, T: np.ndarray) -> np.ndarray:
-        """``T`` with temperatures typed just past an end of the line (see TYPED_T) moved onto it."""
+    def onto_line(self, boundary: str, x: np.ndarray, pressure: bool = False) -> np.ndarray:
+        """Temperatures (or pressures) ``x`` typed just past an end of the line that is the triple or the
+        critical point (see TYPED_T and TYPED_P) moved onto that point; other ends stay as they are."""
+        triple = (self.triple.pressure if pressure else self.triple.temperature) if self.has_triple else None
         if boundary == "boil":
-            return onto_ends(T, self.t_low if self.has_triple else None, self.tc)
-        if not self.has_triple:
-            return T
-        tt = self.triple.temperature
-        # the melting line starts at the triple point (rising) or ends there (water-like, falling)
-        return onto_ends(T, high=tt) if boundary == "sublime" or self._melt_range[1] == tt else onto_ends(T, tt)
+            low, high = triple, (self._p_high if pressure else self.tc)
+        elif boundary == "sublime":
+            low, high = None, triple
+        elif pressure:
+            low, high = self._melt_p_range[0], None  # a melting line's pressure rises from the triple point
+        elif self._melt_range is not None and self._melt_range[1] == triple:
+            low, high = None, triple  # a melting line that leans back (water's) ends at the triple point
+        else:
+            low, high = triple, None
+        return onto_ends(x, low, high, relative=pressure)
 
     def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
         """T * dV * dp/dT on the line, with the model's own volumes and line slope."""
