@@ -789,3 +789,45 @@ def test_a_fixed_point_typed_to_two_decimals_is_the_fixed_point():
     assert isinstance(BOIL_PRESSURE("CO2", -56.566, "degC"), CellError)
     assert isinstance(SUBLIME_PRESSURE("CO2", -56.55, "degC"), CellError)
     assert isinstance(BOIL_TEMP("CO2", 73.9, "bar"), CellError)
+
+
+def test_water_fixed_points_typed_to_the_usual_digits_are_the_fixed_points():
+    # IAPWS-95 / R10-06 fixed points: triple 273.16 K, 611.657 Pa; critical 647.096 K (373.946 degC),
+    # 22.064 MPa. Typed as steam tables round them: 373.95 degC, 22.07 MPa, 0.6116 kPa, 611.7 Pa.
+    assert BOIL_PRESSURE("water", 373.95, "degC", "MPa") == pytest.approx(22.064, rel=1e-9)
+    assert BOIL_TEMP("water", 22.07, "MPa") == pytest.approx(647.096, rel=1e-9)
+    assert BOIL_TEMP("water", 0.6116, "kPa") == pytest.approx(273.16, rel=1e-9)
+    assert SUBLIME_TEMP("water", 611.7, "Pa") == pytest.approx(273.16, rel=1e-9)
+    assert LATENT_HEAT("water", "boil", 373.95, "degC") == pytest.approx(0.0, abs=1e-6)  # none at the critical point
+    # past those digits the lines end as before
+    assert isinstance(BOIL_PRESSURE("water", 374.0, "degC"), CellError)
+    assert isinstance(BOIL_TEMP("water", 0.61, "kPa"), CellError)
+
+
+def test_saturated_states_are_named_by_phase_given_the_temperature_or_the_pressure():
+    # IAPWS-IF97 steam tables (Wagner and Kretzschmar, International Steam Tables, 2008, from memory):
+    # saturated liquid at 100 degC 958.35 kg/m3; saturated vapour at 1 atm (99.97 degC) 0.5976 kg/m3
+    assert MASS_DENSITY("water", 100, None, "saturated liquid", "degC") == pytest.approx(958.35, abs=0.01)
+    assert MASS_DENSITY("water", None, 1, "saturated vapour", "degC", "atm") == pytest.approx(0.5976, abs=2e-4)
+    # the same state as the liquid asked for on the line itself
+    p_sat = BOIL_PRESSURE("water", 100, "degC")
+    assert MASS_DENSITY("water", 100, None, "Saturated Liquid", "degC") == MASS_DENSITY("water", 100, p_sat,
+                                                                                         "liquid", "degC")
+    # both given: they must agree to the digits people type
+    assert MASS_DENSITY("water", 100, 101.42, "saturated liquid", "degC", "kPa") == pytest.approx(958.35, abs=0.01)
+    off = MASS_DENSITY("water", 100, 1, "saturated liquid", "degC", "atm")
+    assert isinstance(off, CellError) and off.code == NUM and "not on the boiling line" in off.reason
+    neither = MASS_DENSITY("water", None, None, "saturated liquid")
+    assert isinstance(neither, CellError) and neither.code == VALUE
+    blank = MASS_DENSITY("water", None, 1, "liquid", "degC", "atm")
+    assert isinstance(blank, CellError) and blank.reason == "temperature is blank"
+    # a whole column of saturation temperatures, as a steam-table sheet lays it out
+    column = MASS_DENSITY("water", np.array([[20.0], [100.0], [200.0]]), "", "saturated liquid", "degC")
+    assert np.asarray(column, float).ravel() == pytest.approx([998.16, 958.35, 864.66], abs=0.02)
+    # liquid nitrogen to room-temperature gas, a cryogen release: about 1:680 at 15 degC and 1 atm
+    # (the figure of 694 quoted at 20 degC, common practice, scaled by 288.15/293.15)
+    ratio = EXPANSION_RATIO("nitrogen", None, 1, 15, 1, "saturated liquid", "gas", "degC", "atm")
+    assert ratio == pytest.approx(694 * 288.15 / 293.15, rel=0.01)
+    # at a typed triple point, carbon dioxide's saturated liquid is the triple-point liquid
+    assert MOLAR_VOLUME("CO2", -56.56, None, "saturated liquid", "degC") == pytest.approx(
+        MOLAR_VOLUME("CO2", TRIPLE_POINT("CO2", "T"), None, "saturated liquid"), rel=1e-12)

@@ -221,7 +221,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
             elif isinstance(item, CellError):
                 bad[index] = _named(item, name)
             elif item is None or (isinstance(item, str) and not item.strip()):
-                bad[index] = CellError(VALUE, f"{name} is blank")
+                bad[index] = _blank(name)
             else:
                 bad[index] = CellError(VALUE, f"{name} must be a number; got {shown(item)}")
     si = unit_.to_si(numbers)
@@ -241,6 +241,21 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
     if bad is not None:
         si = np.where(np.equal(bad, None), si, np.nan)
     return Arg(np.asarray(si, dtype=float), bad)
+
+
+def _blank(name: str) -> CellError:
+    return CellError(VALUE, f"{name} is blank")
+
+
+def blank_allowed(arg: Arg, allowed: np.ndarray, name: str) -> Arg:
+    """``arg`` with its blank elements accepted (as NaN) where ``allowed`` holds: a quantity the model
+    fills in (the pressure of a saturated state given by its temperature, for one)."""
+    if arg.errors is None:
+        return arg
+    errors = np.array(np.broadcast_to(arg.errors, np.broadcast_shapes(arg.errors.shape, np.shape(allowed))))
+    blank = _blank(name)
+    errors[np.asarray(np.frompyfunc(blank.__eq__, 1, 1)(errors), dtype=bool) & allowed] = None
+    return Arg(arg.si, None if np.equal(errors, None).all() else errors)
 
 
 def integer_count(value: Any, name: str, low: int, high: int) -> int:

@@ -18,7 +18,7 @@ import numpy as np
 from .. import units
 from ..errors import NA, VALUE, CellError
 from ..substances import names
-from ..substances.base import SOLID, Substance, boundary_code
+from ..substances.base import SATURATED_LIQUID, SATURATED_VAPOR, SOLID, Substance, boundary_code
 from ..substances.result import Result
 from . import cells
 from .cells import Arg, CallError, model_call
@@ -205,11 +205,22 @@ def STABLE_PHASE(substance, temperature, pressure, t_unit=None, p_unit=None):
     return cells.result_cells(sub.stable_phase(t.si, p.si), (t, p))
 
 
+def _phase_state(sub: Substance, temperature, pressure, phase, t_unit, p_unit,
+                 names: tuple[str, str, str] = ("temperature", "pressure", "phase")) -> tuple[Arg, Arg, Arg]:
+    """Temperature, pressure and phase of a state: a saturated phase needs only one of the two."""
+    ph = cells.phases(phase, names[2], sub)
+    t, p = _temperature(sub, temperature, t_unit, names[0]), _pressure(sub, pressure, p_unit, names[1])
+    saturated = np.isin(ph.si, (SATURATED_LIQUID, SATURATED_VAPOR))
+    if saturated.any():
+        t, p = cells.blank_allowed(t, saturated, names[0]), cells.blank_allowed(p, saturated, names[1])
+    cells.shape_of(t, p, ph)
+    return t, p, ph
+
+
 def _phase_property(method: str, kind: units.Kind, unit_name: str, substance, temperature, pressure, phase,
                     t_unit, p_unit, out_unit, convert=None) -> Any:
-    sub, t, p = _state(substance, temperature, pressure, t_unit, p_unit)
-    ph = cells.phases(phase, "phase", sub)
-    cells.shape_of(t, p, ph)
+    sub = cells.substance(substance)
+    t, p, ph = _phase_state(sub, temperature, pressure, phase, t_unit, p_unit)
     result = getattr(sub, method)(t.si, p.si, ph.si)
     if convert is not None:
         result.fill(convert(result.values))
@@ -224,7 +235,7 @@ def MOLAR_VOLUME(substance, temperature, pressure, phase=None, t_unit=None, p_un
     substance: name of the substance, e.g. "water"
     temperature: temperature
     pressure: absolute pressure
-    phase: "liquid", "vapor" (or "vapour", "gas"), "solid", a label from STABLE_PHASE, or blank
+    phase: "liquid", "vapor", "solid", a STABLE_PHASE label, "saturated liquid" (T or p blank), ..., or blank
     t_unit: unit of temperature, default K
     p_unit: unit of pressure, default Pa
     v_unit: unit of the result, default m3/mol (also L/mol, cm3/mol, m3/kg)
@@ -244,7 +255,7 @@ def MASS_DENSITY(substance, temperature, pressure, phase=None, t_unit=None, p_un
     substance: name of the substance, e.g. "water"
     temperature: temperature
     pressure: absolute pressure
-    phase: "liquid", "vapor", "solid", a label from STABLE_PHASE, or blank
+    phase: "liquid", "vapor", "solid", a STABLE_PHASE label, "saturated vapor" (T or p blank), ..., or blank
     t_unit: unit of temperature, default K
     p_unit: unit of pressure, default Pa
     rho_unit: unit of the result, default kg/m3 (also g/cm3, lb/ft3, mol/L)
@@ -342,9 +353,8 @@ def EXPANSION_RATIO(substance, t_from, p_from, t_to, p_to, phase_from=None, phas
     1.0341
     """
     sub = cells.substance(substance)
-    t1, t2 = _temperature(sub, t_from, t_unit, "t_from"), _temperature(sub, t_to, t_unit, "t_to")
-    p1, p2 = _pressure(sub, p_from, p_unit, "p_from"), _pressure(sub, p_to, p_unit, "p_to")
-    ph1, ph2 = cells.phases(phase_from, "phase_from", sub), cells.phases(phase_to, "phase_to", sub)
+    t1, p1, ph1 = _phase_state(sub, t_from, p_from, phase_from, t_unit, p_unit, ("t_from", "p_from", "phase_from"))
+    t2, p2, ph2 = _phase_state(sub, t_to, p_to, phase_to, t_unit, p_unit, ("t_to", "p_to", "phase_to"))
     args = (t1, p1, t2, p2, ph1, ph2)
     cells.shape_of(*args)
     return cells.result_cells(sub.expansion_ratio(t1.si, p1.si, t2.si, p2.si, ph1.si, ph2.si), args)

@@ -15,14 +15,17 @@ from typing import NamedTuple
 
 import numpy as np
 
+from .line_ends import TYPED_P, onto_ends
 from .props import Props
-from .result import BAD_ARGUMENT, NOT_AVAILABLE, ModelError, Result
+from .result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
 
 # Phase codes. Solids count up from SOLID: SOLID + k is the substance's k-th solid.
 STABLE = 0  # "the stable phase at this state"
 LIQUID = 1
 VAPOR = 2
 FLUID = 3  # the one fluid phase above the critical temperature
+SATURATED_LIQUID = 4  # liquid on the boiling line, at the given temperature or pressure
+SATURATED_VAPOR = 5
 SOLID = 10
 
 BOUNDARIES = ("boil", "melt", "sublime")
@@ -35,6 +38,9 @@ _FLUID_WORDS = {
     "fluid": FLUID,
     "supercritical fluid": FLUID,
     "supercritical": FLUID,
+    "saturated liquid": SATURATED_LIQUID,
+    "saturated vapor": SATURATED_VAPOR,
+    "saturated vapour": SATURATED_VAPOR,
 }
 
 
@@ -137,6 +143,8 @@ class Substance:
         """
         T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
         r = Result(np.full(T.shape, np.nan))
+        if ((phase == SATURATED_LIQUID) | (phase == SATURATED_VAPOR)).any():
+            T, p, phase = self._saturated(T, p, phase, r)
         blank = phase == STABLE
         if blank.any():
             state = self._classify(T, p)
@@ -166,6 +174,37 @@ class Substance:
                     methods[int(code)](T[sel], p[sel], sel, r, fields)
         missing = np.full(T.shape, np.nan)
         return Props(**{name: fields.get(name, missing) for name in Props._fields}), r
+
+    def _saturated(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray, r: Result):
+        """(T, p, phase) with the saturated states put on the boiling line as liquid or vapour.
+
+        A saturated state is given by its temperature or by its pressure (the other NaN); given both,
+        they must lie on the line within what a typed value rounds away (line_ends.TYPED_P).
+        """
+        sat = (phase == SATURATED_LIQUID) | (phase == SATURATED_VAPOR)
+        by_t, by_p = sat & ~np.isnan(T), sat & np.isnan(T) & ~np.isnan(p)
+        r.flag(sat & np.isnan(T) & np.isnan(p), BAD_ARGUMENT,
+               "a saturated state needs its temperature or its pressure")
+        T, p = T.copy(), p.copy()
+        if by_t.any():
+            T[by_t] = self.onto_line("boil", T[by_t])
+            line = self.boil_pressure(T[by_t])
+            self._report(r, by_t, line)
+            given = p[by_t]
+            off = ~np.isnan(given) & ~(np.abs(given - line.values) <= TYPED_P * line.values)
+            sub = Result(np.full(given.shape, np.nan))
+            sub.flag(off, OUT_OF_RANGE, lambda tt, qq, qs: f"{fmt(tt)} K and {fmt(qq)} Pa is not on the boiling "
+                     f"line of {self.name} ({fmt(qs)} Pa at this temperature): give the temperature or the pressure "
+                     "of a saturated state, not both", T[by_t], given, line.values)
+            self._report(r, by_t, sub)
+            p[by_t] = line.values
+        if by_p.any():
+            p[by_p] = self.onto_line("boil", p[by_p], pressure=True)
+            line = self.boil_temperature(p[by_p])
+            self._report(r, by_p, line)
+            T[by_p] = line.values
+        phase = np.where(sat, np.where(phase == SATURATED_LIQUID, LIQUID, VAPOR), phase)
+        return T, p, phase
 
     @staticmethod
     def _put(fields: dict, sel: np.ndarray, part, values: dict) -> None:
@@ -209,7 +248,8 @@ class Substance:
             return SOLID
         if key in lowered:
             return SOLID + lowered.index(key)
-        names = ", ".join(['"liquid"', '"vapor"', '"gas"', '"supercritical fluid"', '"solid"'] + [f'"{s}"' for s in self.solids if s != "solid"])
+        names = ", ".join(['"liquid"', '"vapor"', '"gas"', '"supercritical fluid"', '"saturated liquid"',
+                           '"saturated vapor"', '"solid"'] + [f'"{s}"' for s in self.solids if s != "solid"])
         raise ModelError(BAD_ARGUMENT, f"unknown phase '{word}' for {self.name}; use one of {names}")
 
     # --- quantities derived from the above ---------------------------------------------
@@ -270,8 +310,19 @@ class Substance:
         out.fill(b / a if field == "v" else b - a)
         return out
 
+    def onto_line(self, boundary: str, x: np.ndarray, pressure: bool = False) -> np.ndarray:
+        """Temperatures (or pressures) ``x`` typed just past an end of the line that is the triple or the
+        critical point (line_ends.TYPED_T and TYPED_P) moved onto that point; other ends stay as they are.
+        A melting line's temperature ends are the model's to say: this one leaves them as typed."""
+        triple, critical = (self.triple.pressure, self.critical.pressure) if pressure else \
+            (self.triple.temperature, self.critical.temperature)
+        low, high = {"boil": (triple, critical), "sublime": (None, triple),
+                     "melt": (triple if pressure else None, None)}[boundary]
+        return onto_ends(x, low, high, relative=pressure)
+
     def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
         """Enthalpy of melting, boiling or sublimation at T (J/mol), from the phases' own formulations."""
+        T = self.onto_line(boundary, T)
         p, phases = self.line_pressure(boundary, T)
         return self._across(p, T, p.values, phases, "h")
 

@@ -194,6 +194,7 @@ class Water(Substance):
 
     # --- boundaries -------------------------------------------------------------------
     def boil_pressure(self, T: np.ndarray) -> Result:
+        T = self.onto_line("boil", T)
         r = Result.like(T)
         r.flag(T < TT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_t"], T, see="sublime")
         r.flag(T > TC * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_critical_t"], T)
@@ -201,6 +202,7 @@ class Water(Substance):
         return r
 
     def boil_temperature(self, p: np.ndarray) -> Result:
+        p = self.onto_line("boil", p, pressure=True)
         r = Result.like(p)
         r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_p"], p, see="sublime")
         r.flag(p > PC * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_critical_p"], p)
@@ -224,6 +226,7 @@ class Water(Substance):
         return r, codes
 
     def melt_temperature(self, p: np.ndarray) -> tuple[Result, np.ndarray]:
+        p = self.onto_line("melt", p, pressure=True)
         r = Result.like(p)
         r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_p"], p, see="sublime")
         r.flag(p > _MELT_P_TOP * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_ice_vii"], p)
@@ -233,6 +236,7 @@ class Water(Substance):
         return r, SOLID + np.maximum(index, 0)
 
     def sublime_pressure(self, T: np.ndarray) -> Result:
+        T = self.onto_line("sublime", T)
         r = Result.like(T)
         r.flag(T > TT * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_triple_t"], T, see="boil")
         r.flag(T < _SUB_T_MIN * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_sublimation_t"], T)
@@ -240,6 +244,7 @@ class Water(Substance):
         return r
 
     def sublime_temperature(self, p: np.ndarray) -> Result:
+        p = self.onto_line("sublime", p, pressure=True)
         r = Result.like(p)
         r.flag(p > PT * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_triple_p"], p, see="boil")
         r.flag(p < _SUB_P_MIN, OUT_OF_RANGE, MESSAGES["below_sublimation_p"], p)
