@@ -686,12 +686,12 @@ def bad_items(name: str, position: int):
     """Bad elements for an argument, with the words its error must hold."""
     arg = list(inspect.signature(FUNCTIONS[name].call).parameters)[position]
     if "phase" in arg:
-        return arg, [(3.5, f"{arg} must be a phase word"), (CellError(NA, "upstream"), f"{arg}: upstream"),
+        return arg, [(3.5, f"{arg} must be a phase word"), (CellError(NA, "upstream"), "upstream"),
                      ("plasma", "unknown phase")]
     items = [("abc", f"{arg} must be a number"), (None, f"{arg} is blank"), ("  ", f"{arg} is blank"),
              (np.nan, f"{arg} is not a finite number"), (np.inf, f"{arg} is not a finite number"),
-             (True, f"{arg} must be a number"), (CellError("#DIV/0!", ""), f"{arg}: #DIV/0!"),
-             (CellError(NUM, "upstream"), f"{arg}: upstream"), (-5.0, f"{arg} -5 is at or below")]
+             (True, f"{arg} must be a number"), (CellError("#DIV/0!", ""), f"{arg} is #DIV/0!"),
+             (CellError(NUM, "upstream"), "upstream"), (-5.0, f"{arg} -5 is at or below")]
     return arg, items
 
 

@@ -9,6 +9,7 @@ the rest of an array.
 from __future__ import annotations
 
 import math
+import re
 import reprlib
 from functools import lru_cache
 from typing import Any, Mapping, NamedTuple
@@ -33,15 +34,41 @@ class CallError(Exception):
 
 
 class Arg(NamedTuple):
-    """A numeric argument in SI, with the error of each element that is not usable (or None)."""
+    """A numeric argument in SI, with the error of each element that is not usable (or None), and the unit
+    the caller stated it in (a kind and the caller's text), in which messages about it speak."""
 
     si: np.ndarray
     errors: np.ndarray | None
+    said: tuple[units.Kind, Any] | None = None
 
 
-def cell_error(problem: Problem, direction: str = "") -> CellError:
-    """The cell error for a model problem; ``direction`` ("TEMP"/"PRESSURE") names a function to try."""
-    reason = problem.reason
+# Model messages quote temperatures and pressures in SI, as "<number> K" or "<number> Pa" (kPa, MPa, GPa);
+# the sheet layer restates them in the units the caller typed.
+_QUOTED = re.compile(r"(?<![\w.])(-?\d+(?:\.\d*)?(?:e[+-]?\d+)?) (K|Pa|kPa|MPa|GPa)(?![\w/*^(])")
+_QUOTED_UNITS = {"K": (units.TEMPERATURE, 1.0), "Pa": (units.PRESSURE, 1.0), "kPa": (units.PRESSURE, 1e3),
+                 "MPa": (units.PRESSURE, 1e6), "GPa": (units.PRESSURE, 1e9)}
+
+
+def restated(reason: str, said: Mapping[units.Kind, str]) -> str:
+    """A model's message with its temperatures and pressures in the caller's units (``said``: kind -> text).
+
+    >>> restated("3.01013e+07 Pa is above the critical pressure (22.064 MPa)", {units.PRESSURE: "barg"})
+    '300 barg is above the critical pressure (219.629 barg)'
+    """
+    def one(match: re.Match) -> str:
+        kind, scale = _QUOTED_UNITS[match.group(2)]
+        text = said.get(kind)
+        if text is None:
+            return match.group(0)
+        return f"{fmt(units.conversion(text, kind).from_si(float(match.group(1)) * scale))} {text}"
+
+    return _QUOTED.sub(one, reason) if said else reason
+
+
+def cell_error(problem: Problem, direction: str = "", said: Mapping[units.Kind, str] | None = None) -> CellError:
+    """The cell error for a model problem; ``direction`` ("TEMP"/"PRESSURE") names a function to try, ``said``
+    the units the caller typed (see :func:`restated`)."""
+    reason = restated(problem.reason, said) if said else problem.reason
     if problem.see and direction:
         reason += f"; use {_SEE[problem.see]}_{direction}"
     return CellError(_CODES[problem.kind], reason)
@@ -61,8 +88,9 @@ def shown(value: Any) -> str:
 
 
 def _named(error: CellError, name: str) -> CellError:
-    """An error value that came in as an argument: its code kept, its reason naming the argument."""
-    return CellError(error.code, f"{name}: {error.reason or error.code}")
+    """An error value that came in as an argument: passed on as it is, as Excel does (its reason speaks of
+    the call that made it); a bare code says which argument brought it."""
+    return error if error.reason else CellError(error.code, f"{name} is {error.code}")
 
 
 def substance(value: Any) -> Substance:
@@ -196,16 +224,18 @@ def as_array(value: Any, depth: int = 0) -> np.ndarray:
     return _element(value)
 
 
-def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -> Arg:
+def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "",
+           said: tuple[units.Kind, Any] | None = None) -> Arg:
     """A numeric argument converted to SI.
 
     ``absolute`` names the quantity ("temperature", "pressure") when values must be
-    positive in SI (absolute temperature and pressure).
+    positive in SI (absolute temperature and pressure); ``said`` is the unit as the caller
+    gave it (kind, text), for the messages.
     """
     if type(value) is float or type(value) is int:  # the common scalar case, kept quick
         value = _float(value)
         if math.isfinite(value) and (not absolute or unit_.to_si(value) > 0):
-            return Arg(np.array(unit_.to_si(value)), None)
+            return Arg(np.array(unit_.to_si(value)), None, said)
     array = as_array(value)
     if array.dtype.kind in "fiu":
         numbers = array.astype(float)
@@ -240,7 +270,7 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "") -
         bad = None
     if bad is not None:
         si = np.where(np.equal(bad, None), si, np.nan)
-    return Arg(np.asarray(si, dtype=float), bad)
+    return Arg(np.asarray(si, dtype=float), bad, said)
 
 
 def _blank(name: str) -> CellError:
@@ -255,7 +285,7 @@ def blank_allowed(arg: Arg, allowed: np.ndarray, name: str) -> Arg:
     errors = np.array(np.broadcast_to(arg.errors, np.broadcast_shapes(arg.errors.shape, np.shape(allowed))))
     blank = _blank(name)
     errors[np.asarray(np.frompyfunc(blank.__eq__, 1, 1)(errors), dtype=bool) & allowed] = None
-    return Arg(arg.si, None if np.equal(errors, None).all() else errors)
+    return Arg(arg.si, None if np.equal(errors, None).all() else errors, arg.said)
 
 
 def integer_count(value: Any, name: str, low: int, high: int) -> int:
@@ -301,10 +331,12 @@ def shape_of(*args: Arg) -> tuple[int, ...]:
         raise CallError(VALUE, f"array shapes {shapes} do not match") from None
 
 
-def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: str = "") -> Any:
+def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: str = "",
+                 said: tuple[units.Kind, Any] | None = None) -> Any:
     """The cell value(s) of a model result.
 
-    Argument errors come first (the first argument's), then the model's problems.
+    Argument errors come first (the first argument's), then the model's problems, whose messages speak
+    the units of the arguments (and ``said``, the result's unit).
     ``scale`` converts SI values to the requested unit (a callable); text results pass as they are.
     A 0-d result is returned as a scalar.
     """
@@ -321,8 +353,9 @@ def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: s
     if result.problems is not None:
         problems = np.broadcast_to(result.problems, shape)
         converted = np.full(shape, None, dtype=object)
+        voice = _voice(args, said)
         for index in indices(~np.equal(problems, None)):
-            converted[index] = cell_error(problems[index], direction)
+            converted[index] = cell_error(problems[index], direction, voice)
         errors = _first(errors, converted)
     if errors is None:
         if shape == ():
@@ -336,6 +369,15 @@ def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: s
         value = out[()]
         return value if isinstance(value, (str, CellError)) else float(value)
     return out
+
+
+def _voice(args: tuple[Arg, ...], said: tuple[units.Kind, Any] | None) -> dict[units.Kind, str]:
+    """The units the caller typed, by kind: the arguments' first, then the result's."""
+    voice: dict[units.Kind, str] = {}
+    for pair in [a.said for a in args] + [said]:
+        if pair is not None and isinstance(pair[1], str) and pair[1].strip() and pair[0] not in voice:
+            voice[pair[0]] = pair[1].strip()
+    return voice
 
 
 def cell_value(value: Any) -> Any:

@@ -28,17 +28,18 @@ _T, _P = units.TEMPERATURE, units.PRESSURE
 
 
 def _temperature(sub: Substance, value: Any, t_unit: Any, name: str = "temperature") -> Arg:
-    return cells.number(value, name, cells.unit(t_unit, "t_unit", _T), absolute="temperature")
+    return cells.number(value, name, cells.unit(t_unit, "t_unit", _T), absolute="temperature", said=(_T, t_unit))
 
 
 def _pressure(sub: Substance, value: Any, p_unit: Any, name: str = "pressure") -> Arg:
-    return cells.number(value, name, cells.unit(p_unit, "p_unit", _P), absolute="pressure")
+    return cells.number(value, name, cells.unit(p_unit, "p_unit", _P), absolute="pressure", said=(_P, p_unit))
 
 
 def _out(sub: Substance, result: Result, args: tuple[Arg, ...], unit_text: Any, unit_name: str, kind: units.Kind,
          direction: str = "") -> Any:
     conversion = cells.unit(unit_text, unit_name, kind)
-    return cells.result_cells(result, args, cells.from_si(conversion, sub.molar_mass), direction)
+    return cells.result_cells(result, args, cells.from_si(conversion, sub.molar_mass), direction,
+                              (kind, unit_text))
 
 
 def _line(sub: Substance, boundary: str, which: str, x: Arg, solid: int | None = None) -> Result:

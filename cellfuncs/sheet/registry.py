@@ -101,7 +101,8 @@ def sheet_function(fn: Callable[..., Any]) -> Callable[..., Any]:
 
 def cell_call(call: Callable[..., Any]) -> Callable[..., Any]:
     """The function as a cell path calls it (xlwings in Excel): ranges arrive as 2-D lists, and the result is
-    a number, a text or a 2-D list of them, an error value given as its text (``#NUM! reason``).
+    a number, a text or a 2-D list of them, an error value given as its text (``#NUM! reason``), no text
+    longer than Excel takes.
 
     An argument or a result of more than two dimensions is #VALUE!: a range has rows and columns only
     (the Python API keeps numpy's n-dimensional broadcasting).
@@ -127,10 +128,23 @@ def cell_call(call: Callable[..., Any]) -> Callable[..., Any]:
                 return str(CellError(CALC, "the result is an empty array"))
             if value.ndim < 2:
                 value = value.reshape((1, -1) if value.ndim else (1, 1))
-            return [[str(v) if isinstance(v, CellError) else v for v in row] for row in value.tolist()]
-        return str(value) if isinstance(value, CellError) else value
+            return [[_fitted(v) for v in row] for row in value.tolist()]
+        return _fitted(value)
 
     return cell
+
+
+EXCEL_TEXT_LIMIT = 255  # characters: xlwings hands Excel a longer text from a function as #VALUE!
+
+
+def _fitted(value: Any) -> Any:
+    """A cell value as the cell path hands it on: an error as its text, a text cut to what Excel takes
+    (the whole text stays with the Python function and the command line)."""
+    if isinstance(value, CellError):
+        value = str(value)
+    if isinstance(value, str) and len(value) > EXCEL_TEXT_LIMIT:
+        return value[: EXCEL_TEXT_LIMIT - 1] + "…"
+    return value
 
 
 def _for_excel(call: Callable[..., Any]) -> Callable[..., Any]:
