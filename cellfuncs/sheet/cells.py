@@ -53,7 +53,7 @@ def restated(reason: str, said: Mapping[units.Kind, str]) -> str:
     """A model's message with its temperatures and pressures in the caller's units (``said``: kind -> text).
 
     >>> restated("3.01013e+07 Pa is above the critical pressure (22.064 MPa)", {units.PRESSURE: "barg"})
-    '300 barg is above the critical pressure (219.629 barg)'
+    '300 barg is above the critical pressure (219.627 barg)'
     """
     def one(match: re.Match) -> str:
         kind, scale = _QUOTED_UNITS[match.group(2)]
