@@ -125,7 +125,7 @@ def test_the_tabulated_vapour_pressure_is_the_equations_to_1e_9():
     # the table interpolates between nodes; a direct Newton solution at 400 other temperatures
     co2 = lookup(CO2)
     T = np.linspace(216.6, 304.12, 400)
-    start = starting_densities(co2.equation, T, co2._published_p_boil(T), 1.0 / co2.liquid.saturated(T))
+    start = starting_densities(co2.equation, T, co2.boil_pressure_estimate(T), 1.0 / co2.liquid.saturated(T))
     p, _, _ = equilibrium(co2.equation, T, *start)
     assert np.all(np.isfinite(p))
     assert np.max(np.abs(co2.saturation.pressure(T) / p - 1.0)) < 1e-9

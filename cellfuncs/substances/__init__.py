@@ -64,14 +64,17 @@ def _build(key: str) -> Substance:
 
 
 def _model(definition) -> Substance:
-    """The model of a definition: its equation of state's when it names one, else the general model."""
+    """The model of a definition: its equation of state's when it names one, else the reference
+    fluid's equation mapped onto the general model's lines (helmholtz/corresponding.py)."""
     from .general.model import GeneralSubstance
+    from .helmholtz.corresponding import MappedSubstance, applies
     from .helmholtz.equation import equation
     from .helmholtz.substance import EquationSubstance
 
     if definition.equation:
         return EquationSubstance(definition, equation(definition.equation))
-    return GeneralSubstance(definition)
+    estimate = GeneralSubstance(definition)
+    return MappedSubstance(definition, estimate) if applies(estimate) else estimate
 
 
 def names() -> list[str]:
@@ -121,5 +124,9 @@ def define(fields: Mapping[str, Any]) -> Substance:
     """A user-defined substance from field -> value or (value, unit); see general/definition.py."""
     from .general.consistency import check, check_published
     from .general.definition import Definition
+    from .general.model import GeneralSubstance
 
-    return check(_model(check_published(Definition.from_fields(fields))))
+    definition = check_published(Definition.from_fields(fields))
+    if not definition.equation:
+        check(GeneralSubstance(definition))  # its lines first: the mapped equation reproduces them
+    return check(_model(definition))

@@ -124,14 +124,43 @@ class GeneralSubstance(Substance):
             lo = max(self._boil.get("T_min", 0.0), tt or 0.0)
             hi = min(self._boil.get("T_max", self.tc), self.tc)
             self._boil_range = (lo, hi)
-            self._match_lo = float(line_pressure(self._boil, lo) / self._corresponding(np.array(lo)))
-            self._match_hi = float(line_pressure(self._boil, hi) / self._corresponding(np.array(hi)))
             # where the line stops short of the triple point, the data's triple-point pressure is
             # the other end to match (ranges are quoted in whole kelvins: a shorter gap is rounding)
             pt = self.definition.values.get("triple_point_pressure")
-            self._match_tt = (float(pt / self._corresponding(np.array(tt))) if tt and pt and lo - tt > 1.0
-                              else self._match_lo)
+            at_lo = self._published_ratio(lo, +1.0)
+            at_tt = float(np.log(pt / self._corresponding(np.array(tt)))) if tt and pt and lo - tt > 1.0 else at_lo[0]
+            self._below = self._continuation(lo, tt or lo, at_lo, at_tt)
+            self._above = self._continuation(hi, self.tc, self._published_ratio(hi, -1.0), 0.0)
         self.t_low = tt if tt else (self._boil.get("T_min") if self._boil else 0.3 * self.tc)
+
+    def _published_ratio(self, T: float, inward: float) -> tuple[float, float]:
+        """ln(p_published / p_corresponding) at an end T of the published line and its slope, by a
+        one-sided second-order difference into the line's range (``inward`` = +1 above T, -1 below)."""
+        h = inward * 1e-4 * T
+        ratio = [float(np.log(line_pressure(self._boil, T + k * h) / self._corresponding(np.array(T + k * h))))
+                 for k in (0, 1, 2)]
+        return ratio[0], (-3.0 * ratio[0] + 4.0 * ratio[1] - ratio[2]) / (2.0 * h)
+
+    def _continuation(self, end: float, far: float, at_end: tuple[float, float], at_far: float) -> tuple[float, ...]:
+        """(end, d, m, c) of ln(p / p_corresponding) = d + m x + c x^2, x = T - end, past a published
+        end: the published line's value and slope at the end (no kink for the fluid's equation to
+        ring on) and the ratio ``at_far`` at the far end (the triple or the critical point).
+        Where that bends the line back (a published line ending a fraction of a kelvin below a
+        critical temperature it does not share), the ratio goes straight to ``at_far`` instead."""
+        d, m = at_end
+        span = far - end
+        if not span:
+            return end, d, m, 0.0
+        c = (at_far - d - m * span) / (span * span)
+        T = end + np.linspace(0.0, span, 64)
+        x = T - end
+        if np.all(np.diff(np.log(self._corresponding(T)) + m * x + c * x * x) * np.sign(span) > 0.0):
+            return end, d, m, c
+        return end, d, (at_far - d) / span, 0.0
+
+    def boil_pressure_estimate(self, T: np.ndarray) -> np.ndarray:
+        """This model's vapour pressure (Pa), from the triple point to the critical point, as an array."""
+        return GeneralSubstance._p_boil(self, T)
 
     def _corresponding(self, T: np.ndarray) -> np.ndarray:
         return self.pc * np.exp(_lee_kesler(T / self.tc, self._omega_line))
@@ -143,16 +172,17 @@ class GeneralSubstance(Substance):
         lo, hi = self._boil_range
         if np.all((T >= lo) & (T <= hi)):  # the usual case: the published line alone
             return line_pressure(self._boil, T)
+        # continue past the published ends by corresponding states, matched in value and slope at
+        # the ends, reaching the critical pressure at the critical temperature above the top and
+        # the data's triple-point pressure at the triple point below the bottom
         cs = self._corresponding(T)
         published = line_pressure(self._boil, np.clip(T, lo, hi))
-        # continue past the published ends by corresponding states, matched at the ends and
-        # blended to reach the critical pressure at the critical temperature above the top and
-        # the data's triple-point pressure at the triple point below the bottom
-        weight = np.clip((T - hi) / max(self.tc - hi, 1e-12), 0.0, 1.0)
-        above = cs * (self._match_hi + (1.0 - self._match_hi) * weight)
-        weight = np.clip((lo - T) / max(lo - self.t_low, 1e-12), 0.0, 1.0)
-        below = cs * self._match_lo * (self._match_tt / self._match_lo) ** weight  # even in ln p
-        return np.where(T < lo, below, np.where(T > hi, above, published))
+
+        def continued(end, d, m, c):
+            x = T - end
+            return cs * np.exp(d + m * x + c * x * x)
+
+        return np.where(T < lo, continued(*self._below), np.where(T > hi, continued(*self._above), published))
 
     @cached_property
     def _p_low(self) -> float:

@@ -77,13 +77,14 @@ def equilibrium(eq: HelmholtzEquation, T: np.ndarray, dl: np.ndarray, dv: np.nda
                     break
                 step_l, step_v = np.where(bad, 0.5 * step_l, step_l), np.where(bad, 0.5 * step_v, step_v)
                 new_l, new_v = a + step_l, b + step_v
+            bad = ~((new_l > 1.0) & (new_v > 0.0) & (new_v < 1.0))
             # Newton converges quadratically: after a step below 1e-9 the pair is at rounding level
             # (near the critical point rounding keeps later steps near 1e-12, so do not wait for less)
-            done = (np.abs(step_l) <= 1e-9 * a) & (np.abs(step_v) <= 1e-9 * b)
+            done = (np.abs(step_l) <= 1e-9 * a) & (np.abs(step_v) <= 1e-9 * b) & ~bad
             dl[active], dv[active] = new_l, new_v
             d_l[active[done]], d_v[active[done]] = new_l[done], new_v[done]
             converged[active[done]] = True
-            active = active[~done]
+            active = active[~done & ~bad]  # a step that cannot be kept on its side gives up
     p, _ = eq.pressure(T, d_v * eq.rhoc)
     ok = converged & (d_l - d_v > 1e-6)  # not the trivial solution delta' = delta''
     return (np.where(ok, p, np.nan), np.where(ok, d_l * eq.rhoc, np.nan), np.where(ok, d_v * eq.rhoc, np.nan))

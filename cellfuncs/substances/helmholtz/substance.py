@@ -59,15 +59,15 @@ class EquationSubstance(GeneralSubstance):
         A user definition whose vapour-pressure line or liquid density is far from the equation's
         can leave Newton's method without a start; that is the definition's fault, said as such."""
         try:
-            return saturation.Saturation(self.equation, self.t_low, self._published_p_boil,
-                                         lambda T: 1.0 / self.liquid.saturated(T))
+            return saturation.Saturation(self.equation, self.t_low, self.boil_pressure_estimate, self.liquid_density_guess)
         except ArithmeticError:
             raise ModelError(BAD_ARGUMENT, f"the phase equilibrium of the equation of state '{self.equation.key}' "
                              "could not be started from this definition's vapour-pressure line and liquid density; "
                              "give the equation's own (paste SUBSTANCE_INFO of the built-in)") from None
 
-    def _published_p_boil(self, T: np.ndarray) -> np.ndarray:
-        return GeneralSubstance._p_boil(self, T)
+    def liquid_density_guess(self, T: np.ndarray) -> np.ndarray:
+        """Saturated liquid density (mol/m3) to start the phase equilibrium from."""
+        return 1.0 / self.liquid.saturated(T)
 
     def _p_boil(self, T: np.ndarray) -> np.ndarray:
         return self.saturation.pressure(T)
@@ -80,8 +80,7 @@ class EquationSubstance(GeneralSubstance):
             self.triple = FixedPoint(np.nan, np.nan)
             return
         T = np.array([float(tt)])
-        start = saturation.starting_densities(self.equation, T, self._published_p_boil(T),
-                                              1.0 / self.liquid.saturated(T))
+        start = saturation.starting_densities(self.equation, T, self.boil_pressure_estimate(T), self.liquid_density_guess(T))
         p, self._rho_l_triple, _ = saturation.equilibrium(self.equation, T, *start)
         self.triple = FixedPoint(float(tt), float(p[0]))
 
@@ -224,9 +223,26 @@ class EquationSubstance(GeneralSubstance):
     # --- quantities from the equation's enthalpies ----------------------------------------
     def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
         """Boiling: h'' - h' from the equation; melting and sublimation: Clapeyron (general model)."""
-        if boundary == "boil":
-            return Substance.latent_heat(self, boundary, self.onto_line(boundary, T))
-        return super().latent_heat(boundary, T)
+        if boundary != "boil":
+            return super().latent_heat(boundary, T)
+        T = self.onto_line(boundary, T)
+        p, _ = self.line_pressure(boundary, T)
+        out = Result.joined(p)
+        with np.errstate(invalid="ignore"):
+            out.fill(self._boiling_enthalpy(np.asarray(T, float), p.values))
+        return out
+
+    def _boiling_enthalpy(self, T: np.ndarray, p: np.ndarray) -> np.ndarray:
+        """h'' - h' (J/mol) at T and its vapour pressure p from the residual part alone: the ideal-gas
+        part is the same in both phases at one temperature, so a substance without an ideal-gas heat
+        capacity has its enthalpy of boiling too."""
+        eq = self.equation
+        rho = np.concatenate([self._density(T, p, VAPOR).ravel(), self._density(T, p, LIQUID).ravel()])
+        tt = np.concatenate([T.ravel(), T.ravel()])
+        r = eq.residual(tt, rho, ("t", "d"))
+        h = eq.R * tt * (r["t"] + r["d"])
+        n = T.size
+        return (h[:n] - h[n:]).reshape(T.shape)
 
     def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
         """Vapour fraction after liquid at (T1, p1) is let down at constant enthalpy to p2.

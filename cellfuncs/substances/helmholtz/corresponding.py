@@ -1,0 +1,88 @@
+"""The model of a substance without its own equation of state: its fluid mapped onto the reference
+fluid's equation (mapped.py), its lines and solid as in the general model.
+
+The general model of the same definition is built first: its vapour-pressure line (the published
+equation, continued by Lee and Kesler's) and its saturated liquid volume (the anchored Rackett
+equation) are what the mapping reproduces.
+
+>>> from cellfuncs.substances import lookup
+>>> butane = lookup("n-butane")
+>>> butane.equation.title
+'corresponding-states mapping of n-butane onto the Lemmon, McLinden and Wagner (2009) reference equation of state for propane'
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+
+from ..general.definition import Definition
+from ..general.model import GeneralSubstance
+from ..result import BAD_ARGUMENT, NOT_AVAILABLE, ModelError, Result
+from .mapped import REFERENCE_FLUID, MappedEquation
+from .saturation import Saturation
+from .substance import EquationSubstance
+
+# The reference fluid's phase equilibrium is tabulated for the mapping down to this temperature,
+# 25 K below propane's triple point (an extrapolation of its equation, smooth there): the alcohols'
+# shape factor theta reaches 1.4, so their triple points (ethanol 0.31 Tc) map below propane's own.
+_REFERENCE_T_LOW = 60.0  # K
+
+
+# Quantum fluids stay with the general model: their reduced properties depart from a classical
+# reference's as their de Boer parameter grows, which shows as a markedly negative acentric
+# factor (helium-4 -0.39, hydrogen -0.22; neon, -0.04, still maps well).
+_QUANTUM_OMEGA = -0.1
+
+
+def applies(estimate: GeneralSubstance) -> bool:
+    """Whether a substance's fluid is mapped onto the reference fluid (not a quantum fluid)."""
+    return estimate.omega > _QUANTUM_OMEGA
+
+
+@lru_cache(maxsize=1)
+def _reference() -> tuple[EquationSubstance, Saturation]:
+    from .. import lookup
+
+    ref = lookup(REFERENCE_FLUID)
+    return ref, Saturation(ref.equation, _REFERENCE_T_LOW, ref.boil_pressure_estimate, ref.liquid_density_guess)
+
+
+class MappedSubstance(EquationSubstance):
+    """An EquationSubstance whose equation is the reference fluid's, mapped by shape factors."""
+
+    equation: MappedEquation
+
+    def __init__(self, definition: Definition, estimate: GeneralSubstance):
+        reference, table = _reference()
+        try:
+            equation = MappedEquation(
+                definition.name, estimate.name, estimate.tc, estimate.pc, estimate.molar_mass, estimate.t_low,
+                estimate.boil_pressure_estimate, lambda T: 1.0 / estimate.liquid.saturated(T), definition.ideal_gas,
+                reference.equation, table)
+        except ArithmeticError as e:
+            raise ModelError(BAD_ARGUMENT, f"{e}: the definition's vapour-pressure line and liquid density are "
+                             f"beyond what corresponding states with {REFERENCE_FLUID} can represent; check boil.*, "
+                             "liquid_density and the critical point") from None
+        super().__init__(definition, equation)
+
+    def liquid_density_guess(self, T: np.ndarray) -> np.ndarray:
+        return self.equation.saturated_liquid(T)
+
+    def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
+        """As EquationSubstance's where the data give an ideal-gas heat capacity: a let-down moves
+        between temperatures, so it needs the ideal-gas part the residual part leaves out."""
+        if self.equation.caloric:
+            return super().flash_fraction(T1, p1, p2)
+        out = Result(np.full(np.broadcast(T1, p1, p2).shape, np.nan))
+        out.flag(True, NOT_AVAILABLE, f"{self.name} has no ideal-gas heat capacity in its data (ideal_gas_cp.*), "
+                 "which the enthalpies of a let-down need")
+        return out
+
+    def _models(self) -> dict[str, tuple[str, str]]:
+        models = super()._models()
+        line = GeneralSubstance._models(self)["boil"][0]
+        models["boil"] = (f"{line}, reproduced by the mapped equation's phase equilibrium",
+                          models["boil"][1])
+        return models
