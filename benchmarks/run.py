@@ -65,6 +65,10 @@ EQUATION_CALLS = {
     "STABLE_PHASE propane": ('STABLE_PHASE("propane", 25, 5, "degC", "bar")', None),
     "MOLAR_VOLUME propane": ('MOLAR_VOLUME("propane", 25, 5, "", "degC", "bar", "L/mol")', 200),
     "MASS_DENSITY propane": ('MASS_DENSITY("propane", 25, 15, "liquid", "degC", "bar")', None),
+    # substances without their own equation: propane's mapped by corresponding states
+    "BOIL_TEMP ammonia": ('BOIL_TEMP("ammonia", 5, "bar", "degC")', None),
+    "MOLAR_VOLUME ammonia": ('MOLAR_VOLUME("ammonia", 10, 20, "liquid", "degC", "bar", "L/mol")', None),
+    "MASS_DENSITY n-butane": ('MASS_DENSITY("n-butane", 180, 20, "", "degC", "bar")', None),
 }
 
 
