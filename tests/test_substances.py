@@ -637,7 +637,7 @@ def test_a_minimal_definition_names_the_data_it_lacks():
         assert is_error(value, NA, "my hexane", "triple_point_temperature")
     assert is_error(TRIPLE_POINT(HEXANE, "P"), NA, "triple point")
     assert is_error(STABLE_PHASE(HEXANE, 100, ATM), NUM, "lowest temperature of the vapour-pressure line")
-    assert is_error(FLASH_FRACTION(HEXANE, 330, 1e6, ATM), NA, "ideal-gas heat capacity")
+    assert is_error(FLASH_FRACTION(HEXANE, 330, 1e6, ATM), NA, "liquid heat capacity")
     assert is_error(SUBSTANCE_INFO(HEXANE, "molar_mass_source"), NA, "no source")
 
 

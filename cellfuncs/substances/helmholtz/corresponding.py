@@ -19,7 +19,7 @@ import numpy as np
 
 from ..general.definition import Definition
 from ..general.model import GeneralSubstance
-from ..result import BAD_ARGUMENT, NOT_AVAILABLE, ModelError, Result
+from ..result import BAD_ARGUMENT, ModelError, Result
 from .mapped import REFERENCE_FLUID, MappedEquation
 from .saturation import Saturation
 from .substance import EquationSubstance
@@ -71,14 +71,12 @@ class MappedSubstance(EquationSubstance):
         return self.equation.saturated_liquid(T)
 
     def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
-        """As EquationSubstance's where the data give an ideal-gas heat capacity: a let-down moves
-        between temperatures, so it needs the ideal-gas part the residual part leaves out."""
+        """As EquationSubstance's where the data give an ideal-gas heat capacity (a let-down moves
+        between temperatures, so it needs the ideal-gas part); without one, the general model's
+        estimate from the data's liquid heat capacity, with the equation's enthalpy of boiling."""
         if self.equation.caloric:
             return super().flash_fraction(T1, p1, p2)
-        out = Result(np.full(np.broadcast(T1, p1, p2).shape, np.nan))
-        out.flag(True, NOT_AVAILABLE, f"{self.name} has no ideal-gas heat capacity in its data (ideal_gas_cp.*), "
-                 "which the enthalpies of a let-down need")
-        return out
+        return GeneralSubstance.flash_fraction(self, T1, p1, p2)
 
     def _models(self) -> dict[str, tuple[str, str]]:
         models = super()._models()
