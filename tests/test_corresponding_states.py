@@ -1,5 +1,5 @@
 """The corresponding-states mapping (substances/helmholtz/mapped.py) checked against the project's
-reference equations of state, whose transcriptions tests/test_equation_*.py verify against their
+reference equations of state, which tests/test_equation_*.py check against their
 publications' tables: the substance's own data (critical point, published vapour-pressure line,
 liquid density) are mapped onto propane as for any substance without an equation, and the result
 is compared with the reference equation of the same substance."""

@@ -55,7 +55,7 @@ from .saturation import Saturation
 REFERENCE_FLUID = "propane"  # long liquid range (Tr from 0.23), a reference equation to 1000 MPa
 _BLEND_FROM = 0.85  # reduced temperature where ln phi starts to fade to zero at the critical point
 _NODES = 128  # fitted temperatures, uniform in sqrt(1 - T/Tc)
-_P_BLEND_FROM = 0.95  # reduced temperature from where the vapour pressure joins the reference's at Tc
+_P_BLEND_FROM = 0.95  # reduced temperature from where a line's miss of the critical pressure is taken out
 _T_MAX = 1000.0  # K, the lowest upper temperature limit of a mapped equation
 _DAMPING = 0.3  # width in ln(Tc/T) of the shape factors' continuation above Tc (about 1.35 Tc)
 
