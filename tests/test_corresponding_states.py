@@ -93,3 +93,26 @@ def test_toluene_liquid_compressibility_and_expansivity_are_the_handbooks():
 
     assert ISOTHERMAL_COMPRESSIBILITY("toluene", 25, 1, "", "degC", "atm", "1/MPa") == pytest.approx(0.9e-3, rel=0.05)
     assert THERMAL_EXPANSIVITY("toluene", 25, 1, "", "degC", "atm") == pytest.approx(1.07e-3, rel=0.05)
+
+
+@pytest.mark.parametrize("tau, delta", [(0.6, 2.5), (0.9, 1.8), (0.95, 0.05), (1.1, 1.0), (1.6, 0.4)])
+def test_the_mapped_derivatives_are_those_of_the_mapped_energy(tau, delta):
+    # the chain-rule derivatives (mapped.py docstring) against central differences of alphar itself
+    eq = lookup("ammonia").equation
+    # tau = Tc/T from 0.6 (supercritical, the shape factors' continuation) to 1.6 (liquid range)
+    T, rho = eq.Tc / tau * np.ones(1), delta * eq.rhoc * np.ones(1)
+    r = eq.residual(T, rho)
+    ln_tau, ln_delta = np.log(eq.Tc / T), np.log(rho / eq.rhoc)
+
+    def a(dl_tau=0.0, dl_delta=0.0):
+        return eq.residual(eq.Tc / np.exp(ln_tau + dl_tau), eq.rhoc * np.exp(ln_delta + dl_delta), ("a",))["a"]
+
+    h = 1e-5
+    t = (a(h) - a(-h)) / (2 * h)  # tau alphar_tau = d alphar / d ln tau
+    d = (a(0, h) - a(0, -h)) / (2 * h)
+    tt = (a(h) - 2 * a() + a(-h)) / h**2 - t  # tau^2 alphar_tautau
+    dt = (a(h, h) - a(h, -h) - a(-h, h) + a(-h, -h)) / (4 * h * h)
+    assert r["t"] == pytest.approx(t, rel=1e-6, abs=1e-9)
+    assert r["d"] == pytest.approx(d, rel=1e-6, abs=1e-9)
+    assert r["tt"] == pytest.approx(tt, rel=1e-4, abs=1e-6)
+    assert r["dt"] == pytest.approx(dt, rel=1e-4, abs=1e-6)

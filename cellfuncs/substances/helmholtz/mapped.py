@@ -82,25 +82,26 @@ class ShapeFactor:
         self._at0 = [float(self._spline(0.0, k)) for k in range(2)]
         self._top = [float(self._spline(self._s_top, k)) for k in range(2)]
 
-    def __call__(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """f, df/ds and d2f/ds2 at s."""
+    def __call__(self, s: np.ndarray, order: int = 2) -> tuple[np.ndarray, ...]:
+        """f, df/ds and d2f/ds2 at s, up to the derivative ``order`` (the density solver wants f alone)."""
         inside = np.clip(s, 0.0, self._s_top)
-        f, f1, f2 = (self._spline(inside, k) for k in range(3))
+        zero = np.zeros(np.shape(s))
+        f, f1, f2 = (self._spline(inside, k) if k <= order else zero for k in range(3))
         # above Tc: f0 + f1 y exp(-(y/y0)^2), y = s < 0: value and slope carried on, not the
         # curvature, which the near-critical fit makes large (ln theta'' about -25 at Tc for
         # methane: carried on, theta would fall to 0.76 by 1.2 Tc and densities be 30 % off)
         y = np.minimum(s, 0.0)
         c0, c1 = self._at0
         e = np.exp(-(y / _DAMPING) ** 2)
-        de = -2.0 * y / _DAMPING**2 * e
-        dde = (4.0 * y * y / _DAMPING**4 - 2.0 / _DAMPING**2) * e
-        hot = s < 0.0
-        f = np.where(hot, c0 + c1 * y * e, f)
-        f1 = np.where(hot, c1 * (e + y * de), f1)
-        f2 = np.where(hot, c1 * (2.0 * de + y * dde), f2)
-        cold = s > self._s_top
-        f = np.where(cold, self._top[0] + self._top[1] * (s - self._s_top), f)
-        return f, np.where(cold, self._top[1], f1), np.where(cold, 0.0, f2)
+        de = -2.0 * y / _DAMPING**2 * e  # de/dy
+        dde = (4.0 * y * y / _DAMPING**4 - 2.0 / _DAMPING**2) * e  # d2e/dy2
+        hot, cold = s < 0.0, s > self._s_top
+        f = np.where(cold, self._top[0] + self._top[1] * (s - self._s_top), np.where(hot, c0 + c1 * y * e, f))
+        if order >= 1:
+            f1 = np.where(cold, self._top[1], np.where(hot, c1 * (e + y * de), f1))
+        if order >= 2:
+            f2 = np.where(cold, 0.0, np.where(hot, c1 * (2.0 * de + y * dde), f2))
+        return f, f1, f2
 
 
 class MappedEquation(HelmholtzEquation):
@@ -131,7 +132,6 @@ class MappedEquation(HelmholtzEquation):
         self.T_min = T_low
         self.T_max = max(ref.T_max * Tc / ref.Tc, _T_MAX)
         self.p_max = max(10.0 * pc, 100e6)
-        self.constants = {}
         self._fit(T_low, pc, p_sat, rho_sat, reference_saturation)
 
     @staticmethod
@@ -197,8 +197,9 @@ class MappedEquation(HelmholtzEquation):
     def residual(self, T, rho, want=("a", "d", "dd", "t", "tt", "dt")) -> dict:
         T = np.asarray(T, dtype=float)
         s = np.log(self.Tc / T)
-        lt, lt1, lt2 = self._theta(s)
-        lp, lp1, lp2 = self._phi(s)
+        order = 2 if "tt" in want else 1 if ("t" in want or "dt" in want) else 0
+        lt, lt1, lt2 = self._theta(s, order)
+        lp, lp1, lp2 = self._phi(s, order)
         u = np.exp(lt + s)  # theta tau
         w = np.exp(lp) * np.asarray(rho, dtype=float) / self.rhoc  # phi delta
         need = sorted({k for name in want for k in _NEEDS[name]})

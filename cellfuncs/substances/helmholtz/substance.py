@@ -32,7 +32,7 @@ from functools import cached_property
 
 import numpy as np
 
-from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, Substance
+from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint
 from ..general.definition import Definition
 from ..general.model import P0, GeneralSubstance
 from ..phase_map import LINE_TOL
@@ -59,7 +59,8 @@ class EquationSubstance(GeneralSubstance):
         A user definition whose vapour-pressure line or liquid density is far from the equation's
         can leave Newton's method without a start; that is the definition's fault, said as such."""
         try:
-            return saturation.Saturation(self.equation, self.t_low, self.boil_pressure_estimate, self.liquid_density_guess)
+            return saturation.Saturation(self.equation, self.t_low, self.boil_pressure_estimate,
+                                         self.liquid_density_guess)
         except ArithmeticError:
             raise ModelError(BAD_ARGUMENT, f"the phase equilibrium of the equation of state '{self.equation.key}' "
                              "could not be started from this definition's vapour-pressure line and liquid density; "
@@ -80,7 +81,8 @@ class EquationSubstance(GeneralSubstance):
             self.triple = FixedPoint(np.nan, np.nan)
             return
         T = np.array([float(tt)])
-        start = saturation.starting_densities(self.equation, T, self.boil_pressure_estimate(T), self.liquid_density_guess(T))
+        start = saturation.starting_densities(self.equation, T, self.boil_pressure_estimate(T),
+                                              self.liquid_density_guess(T))
         p, self._rho_l_triple, _ = saturation.equilibrium(self.equation, T, *start)
         self.triple = FixedPoint(float(tt), float(p[0]))
 
