@@ -327,3 +327,22 @@ TEXT_FORMATS = [  # Microsoft's TEXT and number-format examples (from memory of 
 @pytest.mark.parametrize("formula, expected", TEXT_FORMATS)
 def test_text_formats(formula, expected):
     assert compute(formula) == expected
+
+
+def test_sheet_sheets_and_subtotal_without_a_workbook():
+    # engine contract: without a workbook there is no sheet and no reference to total
+    assert compute("=SHEET()").code == "#VALUE!" and compute("=SHEETS()").code == "#VALUE!"
+    assert compute("=SUBTOTAL(9, {1,2})").code == "#VALUE!"  # Excel: SUBTOTAL takes references only
+    assert compute("=SUBTOTAL(12, 1)").code == "#VALUE!"
+
+
+def test_sheet_and_sheets_reproduce_excels_values():
+    """IronCalc's SHEET/SHEETS test sheet (../shared/excel-reference), values Excel stored;
+    tests/test_tables.py checks SUBTOTAL( on tables the same way."""
+    from test_tables import _reference
+
+    from cellfuncs.workbook import conformance
+
+    name = "ironcalc/xlsx_tests_calc_tests_INFORMATION_SHEET_SHEETS.xlsx"
+    score = conformance.score_workbook(_reference(name), "ironcalc")
+    assert score.tally.reproduced == score.tally.comparable > 0, score.failed

@@ -1,5 +1,5 @@
 """Built-in functions about references and array shapes: ROW, COLUMN, ROWS, COLUMNS,
-CHOOSE, TRANSPOSE.
+SHEET, SHEETS, CHOOSE, TRANSPOSE.
 
 ROW and COLUMN need the reference itself, not its values: the evaluation context answers
 ``bounds(sheet, ref)`` (first row, first column, last row, last column) and ``position()``
@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import VALUE, CellError
+from ..errors import NA, VALUE, CellError
 from .arrays import Value, as_array, map_values
 from .coerce import to_number
 from .evaluate import Context, builtin, evaluate
@@ -74,6 +74,44 @@ def _size(name: str, axis: int) -> None:
 
 _size("ROWS", 0)
 _size("COLUMNS", 1)
+
+
+@builtin("SHEET", 0, 1, lazy=True)
+def sheet(context: Context, node: Node | None = None) -> Value:
+    """The position of a sheet in the workbook (1 for the first): of the formula's own sheet,
+    of a reference's sheet, or of the sheet a text names (#N/A if none does).
+
+    >>> from cellfuncs.formula import compute
+    >>> compute("=SHEET()").code
+    '#VALUE!'
+    """
+    position = getattr(context, "sheet_position", None)
+    if position is None:
+        return CellError(VALUE, "the formula has no workbook")
+    if node is None or type(node) is Missing:
+        found = position(None)
+    elif type(node) is Ref:
+        found = position(node.sheet)
+    else:
+        v = evaluate(node, context)
+        if type(v) is CellError:
+            return v
+        found = position(v) if type(v) is str else None
+    return CellError(NA, "SHEET takes a reference or the name of a sheet") if found is None else float(found)
+
+
+@builtin("SHEETS", 0, 1, lazy=True)
+def sheets(context: Context, node: Node | None = None) -> Value:
+    """How many sheets a reference spans (1), or without one how many the workbook has."""
+    count = getattr(context, "sheet_count", None)
+    if count is None:
+        return CellError(VALUE, "the formula has no workbook")
+    if node is None or type(node) is Missing:
+        return float(count())
+    if type(node) is Ref:
+        return 1.0
+    v = evaluate(node, context)
+    return v if type(v) is CellError else CellError(VALUE, "SHEETS takes a reference")
 
 
 @builtin("CHOOSE", 2, 255, lazy=True)

@@ -147,6 +147,7 @@ class WorkbookScore:
     missing: Counter = field(default_factory=Counter)
     causes: Counter = field(default_factory=Counter)
     volatile: int = 0
+    failed: list[tuple[str, str, object, object]] = field(default_factory=list)  # (cell, formula, Excel's, ours)
 
 
 def _called(formula_text: str) -> list[str]:
@@ -256,6 +257,9 @@ def _compared(engine: Recalc, fi: int) -> Iterator[tuple[object, object]]:
                 yield stored.get((r, c)), values.get((r, c))
 
 
+_FAILED_KEPT = 200  # cells listed per workbook by --cells
+
+
 def score_workbook(path: Path, source: str) -> WorkbookScore:
     """Recalculate one workbook and score its comparable cells; a refusal or an internal
     failure scores the cells the manifest lists as not reproduced (the caller's job)."""
@@ -306,6 +310,8 @@ def score_workbook(path: Path, source: str) -> WorkbookScore:
                     if name in category:
                         score.missing[name] += 1
                 score.causes[_cause(engine, fi, cached, computed, functions, missing, upstream)] += 1
+                if len(score.failed) < _FAILED_KEPT:
+                    score.failed.append((engine.where(fi), texts[fi] or "", cached, computed))
     return score
 
 
@@ -362,7 +368,7 @@ class Report:
         out += [f'"{k[9:]}" = {v}' for k, v in sorted(down.items()) if k.startswith("category:")]
         return "\n".join(out) + "\n"
 
-    def lines(self, top: int = 40, per_workbook: bool = False) -> Iterator[str]:
+    def lines(self, top: int = 40, per_workbook: bool = False, cells: bool = False) -> Iterator[str]:
         volatile = sum(w.volatile for w in self.workbooks)
         yield "\t".join(["conformance", str(self.folder), f"{len(self.workbooks)} workbooks",
                          f"{len(self.left_out)} left out", f"{volatile} volatile cells left out",
@@ -387,6 +393,10 @@ class Report:
         if per_workbook:
             for w in sorted(self.workbooks, key=lambda w: (w.source, w.file)):
                 yield _row("workbook", f"{w.source}/{w.file}", w.tally)
+        if cells:
+            for w in sorted(self.workbooks, key=lambda w: (w.source, w.file)):
+                for where, formula, cached, computed in w.failed[:top]:
+                    yield f"cell\t{w.source}/{w.file}\t{where}\t={formula}\t{cached!s}\t{computed!s}"[:400]
 
 
 _FLOORS_HEADER = """\
@@ -439,6 +449,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--workbooks", action="store_true", help="also list each workbook's score")
     parser.add_argument("--top", type=int, default=40, metavar="N", help="missing built-ins and causes listed (40)")
     parser.add_argument("--only", action="append", metavar="TEXT", help="score only files whose name contains TEXT")
+    parser.add_argument("--cells", action="store_true", help="also list up to N cells each workbook gets wrong")
     parser.add_argument("--floors", action="store_true", help="print the scores as tests/data/conformance_floors.toml")
     args = parser.parse_args(argv)
     folder = Path(args.folder) if args.folder else default_folder()
@@ -449,7 +460,7 @@ def main(argv: list[str] | None = None) -> int:
     if args.floors:
         print(report.floors(), end="")
         return 0
-    for line in report.lines(args.top, args.workbooks):
+    for line in report.lines(args.top, args.workbooks, args.cells):
         print(line)
     return 0
 

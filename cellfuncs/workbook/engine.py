@@ -39,7 +39,7 @@ from typing import Any, Callable, Iterator, Mapping, NamedTuple
 import numpy as np
 
 from ..errors import CALC, NA, NAME, REF, SPILL, CellError
-from ..formula import Value, value_of
+from ..formula import Call, Value, value_of, walk
 from ..formula.budget import active, charge
 from .areas import AreaIndex, Overlap
 from .graph import components, cycle
@@ -48,6 +48,7 @@ from .model import Book, Sheet
 from .package import Refused
 from .refs import MAX_COL, MAX_ROW, Area, address, area, shifted
 from .sheetxml import FormulaXml
+from .tables import Tables
 from .templates import Template, Templates, build
 
 MAX_PASSES = 4
@@ -143,6 +144,17 @@ class _Context:
         """The formula cell's row and column (for ROW() and COLUMN())."""
         return self.row, self.col
 
+    def sheet_position(self, name: str | None) -> int | None:
+        """The 1-based position of sheet ``name`` in the workbook (None: the formula's own
+        sheet), chart sheets counted; None if there is no such sheet."""
+        if name is None:
+            return self.sheet + 1
+        sheet = self.engine.book.sheet(name)
+        return None if sheet is None else sheet.index + 1
+
+    def sheet_count(self) -> int:
+        return len(self.engine.book.sheets)
+
     def bounds(self, sheet: str | None, ref: str) -> tuple[int, int, int, int] | CellError:
         """First row, first column, last row, last column of a reference (for ROW, ROWS, ...)."""
         found = self._area(sheet, ref)
@@ -150,6 +162,28 @@ class _Context:
             return found
         a = found[1]
         return a.r1, a.c1, a.r2, a.c2
+
+    def left_out(self, sheet: str | None, ref: str, hidden: bool) -> np.ndarray | None:
+        """The cells of a reference that SUBTOTAL leaves out (True): SUBTOTAL and AGGREGATE
+        formulas, rows filtered out, and with ``hidden`` every hidden row; None when there
+        are none."""
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return None
+        s, a = found
+        subtotals = self.engine.subtotal_cells()[s]
+        rows = self.engine.hidden_rows(s, filtered_only=not hidden)
+        if not subtotals and not rows:
+            return None
+        r2, c2 = self.engine.clipped(s, a)
+        mask = np.zeros((r2 - a.r1 + 1, c2 - a.c1 + 1), dtype=bool)
+        for r, c in subtotals:
+            if a.r1 <= r <= r2 and a.c1 <= c <= c2:
+                mask[r - a.r1, c - a.c1] = True
+        for r in rows:
+            if a.r1 <= r <= r2:
+                mask[r - a.r1, :] = True
+        return mask
 
     def reference(self, sheet: str | None, ref: str) -> Value:
         found = self._area(sheet, ref)
@@ -267,6 +301,8 @@ class Recalc:
         self._sheet_numbers = {s.name.lower(): s.index for s in book.sheets if s.scan is not None}
         self._sheet_names = {s.name.lower() for s in book.sheets}
         self.templates = Templates()
+        self.tables = Tables(book.tables)
+        self._subtotal_cells: list[set[tuple[int, int]]] | None = None
         self._name_templates: dict = {}
         self.name_values: dict[tuple[tuple[int | None, str], int], Value] = {}  # (name, sheet using it) -> value
         n = len(book.sheets)
@@ -309,9 +345,9 @@ class Recalc:
                 if text is None:
                     template = Template(None, CellError(REF, "a shared formula whose first cell is missing"),
                                         row, col, (), (), False)
-                elif base == (row, col):
-                    template = self.templates.get(text, row, col)
-                else:  # a shared formula's other cells: the first cell's text, moved
+                else:  # a shared formula's other cells take the first cell's text, moved
+                    if self.tables.mentioned(text):
+                        text = self.tables.translate(text, s, *base)
                     template = self.templates.get(text, *base)
                 old = None
                 kind = "normal"
@@ -395,7 +431,10 @@ class Recalc:
     def name_template(self, key: tuple[int | None, str]) -> Template:
         t = self._name_templates.get(key)
         if t is None:
-            t = self._name_templates[key] = build(self.book.names[key], 1, 1)
+            text = self.book.names[key]
+            if self.tables.mentioned(text):
+                text = self.tables.translate(text, key[0] or 0, None, None)
+            t = self._name_templates[key] = build(text, 1, 1)
         return t
 
     def name_value(self, key: tuple[int | None, str], sheet: int, cell: tuple[int, int] | None = None) -> Value:
@@ -428,10 +467,7 @@ class Recalc:
         Each use is charged to the budget all the same (the formula goes through its cells),
         and the blocks kept hold at most :data:`KEPT_BLOCK_CELLS` cells in all.
         """
-        r2, c2 = a.r2, a.c2
-        if r2 == MAX_ROW or c2 == MAX_COL:
-            rows, cols = self.extent[s]
-            r2, c2 = min(r2, max(rows, a.r1)), min(c2, max(cols, a.c1))
+        r2, c2 = self.clipped(s, a)
         h, w = r2 - a.r1 + 1, c2 - a.c1 + 1
         over = charge((h, w))
         if over is not None:
@@ -444,6 +480,41 @@ class Recalc:
                 self._blocks[key] = out
                 self._kept += h * w
         return out
+
+    def clipped(self, s: int, a: Area) -> tuple[int, int]:
+        """The last row and column of area ``a``, whole columns and rows cut to the used range."""
+        r2, c2 = a.r2, a.c2
+        if r2 == MAX_ROW or c2 == MAX_COL:
+            rows, cols = self.extent[s]
+            r2, c2 = min(r2, max(rows, a.r1)), min(c2, max(cols, a.c1))
+        return r2, c2
+
+    def hidden_rows(self, s: int, filtered_only: bool) -> set[int]:
+        """The hidden rows of sheet ``s``; with ``filtered_only`` only those inside a filter's
+        range (the sheet's or a table's), which are the rows a filter hides."""
+        scan = self.book.sheets[s].scan
+        if not filtered_only or not scan.hidden_rows:
+            return scan.hidden_rows
+        spans = [(t.area.r1, t.area.r2) for t in self.book.tables if t.sheet == s and t.filtered]
+        sheet_filter = area(scan.filter_area) if scan.filter_area else None
+        if sheet_filter is not None:
+            spans.append((sheet_filter.r1, sheet_filter.r2))
+        return {r for r in scan.hidden_rows if any(r1 <= r <= r2 for r1, r2 in spans)}
+
+    def subtotal_cells(self) -> list[set[tuple[int, int]]]:
+        """Per sheet, the cells whose formulas call SUBTOTAL or AGGREGATE (found on first use)."""
+        if self._subtotal_cells is None:
+            calls: dict[int, bool] = {}
+            self._subtotal_cells = [set() for _ in self.book.sheets]
+            for fc in self.cells:
+                t = fc.template
+                found = calls.get(id(t))
+                if found is None:
+                    found = calls[id(t)] = t.ast is not None and any(
+                        type(n) is Call and n.name in ("SUBTOTAL", "AGGREGATE") for n in walk(t.ast))
+                if found:
+                    self._subtotal_cells[fc.sheet].add((fc.row, fc.col))
+        return self._subtotal_cells
 
     def _read_block(self, s: int, r1: int, c1: int, r2: int, c2: int) -> np.ndarray:
         a = Area(r1, c1, r2, c2)

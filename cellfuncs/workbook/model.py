@@ -16,6 +16,7 @@ from xml.etree.ElementTree import Element
 
 from .package import Package, Refused
 from .sheetxml import MAX_FORMULAS, NAMESPACES, SheetScan, scan
+from .tables import Table, read_table
 from .structure import CONTENT_TYPES, check_content_types, check_defined_name, check_relationship, check_sheet
 
 PACKAGE_RELS = "http://schemas.openxmlformats.org/package/2006/relationships"
@@ -79,6 +80,7 @@ class Book:
     metadata_part: str | None
     dynamic_cm: str | None  # the cm value that marks a dynamic array, if the file has one
     parsed: set[str] = field(default_factory=set)  # parts read here (the rest are only validated)
+    tables: list[Table] = field(default_factory=list)
 
     def sheet(self, name: str) -> Sheet | None:
         lowered = name.lower()
@@ -181,6 +183,7 @@ def load(pkg: Package) -> Book:
             parsed.add(r.target)
     budget = [MAX_FORMULAS]
     sheets = []
+    tables: list[Table] = []
     sheet_names: set[str] = set()
     sheet_ids: set[str] = set()
     for block in _children(root, "sheets"):
@@ -196,6 +199,7 @@ def load(pkg: Package) -> Book:
             sheet_scan = scan(pkg.utf8(part), part, budget, strings) if part else None
             if part:
                 parsed.add(part)
+                tables += _tables(pkg, part, n, el.get("name", ""), parsed)
             sheets.append(Sheet(el.get("name", f"Sheet{n + 1}"), n, part, sheet_scan))
     names: dict[tuple[int | None, str], str] = {}
     for block in _children(root, "definedNames"):
@@ -204,4 +208,17 @@ def load(pkg: Package) -> Book:
             scope = el.get("localSheetId")
             key = (int(scope) if scope is not None and scope.isdigit() else None, el.get("name", "").upper())
             names[key] = (el.text or "").strip()
-    return Book(wb_part, sheets, names, metadata_part, cm, parsed)
+    return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables)
+
+
+def _tables(pkg: Package, part: str, sheet: int, sheet_name: str, parsed: set[str]) -> list[Table]:
+    """The tables (list objects) placed on a worksheet, from its table parts."""
+    out = []
+    for rel in relationships(pkg, part):
+        if rel.kind == "table" and not rel.external and rel.target in pkg:
+            table = read_table(pkg.xml(rel.target), sheet, sheet_name)
+            parsed.add(rel.target)
+            parsed.add(rels_part(part))
+            if table is not None:
+                out.append(table)
+    return out

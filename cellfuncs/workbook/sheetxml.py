@@ -109,6 +109,8 @@ class SheetScan:
     sheet_data: Span | None = None
     dimension: tuple[int, str] | None = None  # (start offset, ref)
     not_finite: list[tuple[int, int]] = field(default_factory=list)  # value cells storing NaN, INF, 1e999, ...
+    hidden_rows: set[int] = field(default_factory=set)
+    filter_area: str | None = None  # the sheet's autoFilter range: its hidden rows are filtered out
 
 
 class _Scanner:
@@ -135,6 +137,7 @@ class _Scanner:
         self.f_attrs: dict | None = None
         self.f_text = ""
         self.first = True
+        self.filter_ref: str | None = None
 
     def bind(self, parser) -> None:
         self.expat = parser.parser
@@ -156,8 +159,12 @@ class _Scanner:
             if local == "sheetData" and self.depth == 2:
                 self.data_depth = self.depth
                 self.out.sheet_data = Span(pos)
-            elif local == "dimension" and self.depth == 2:
-                self._dimension(pos, attrib.get("ref", ""))
+            elif self.depth == 2:  # an autoFilter's range counts once a filterColumn shows it filters
+                self.filter_ref = attrib.get("ref") if local == "autoFilter" else None
+                if local == "dimension":
+                    self._dimension(pos, attrib.get("ref", ""))
+            elif local == "filterColumn" and self.depth == 3 and self.filter_ref:
+                self.out.filter_area = self.filter_ref
         elif d == 1 and local == "row":
             r = attrib.get("r")
             if r is not None and not r.isdigit():
@@ -167,6 +174,8 @@ class _Scanner:
                 raise Refused(f"{self.out.part}: row {self.row_number} is beyond Excel's {MAX_ROW} rows")
             self.row = RowSpan(pos)
             self.out.rows[self.row_number] = self.row
+            if attrib.get("hidden") in ("1", "true"):
+                self.out.hidden_rows.add(self.row_number)
             self.col = 0
         elif d == 2 and local == "c":
             self._cell_start(pos, attrib)
