@@ -346,3 +346,9 @@ def test_sheet_and_sheets_reproduce_excels_values():
     name = "ironcalc/xlsx_tests_calc_tests_INFORMATION_SHEET_SHEETS.xlsx"
     score = conformance.score_workbook(_reference(name), "ironcalc")
     assert score.tally.reproduced == score.tally.comparable > 0, score.failed
+
+
+def test_indirect_and_offset_without_a_workbook():
+    """tests/test_references.py checks them in workbooks (Microsoft's examples)."""
+    assert compute('=INDIRECT("A1")').code == "#REF!"  # engine contract: no workbook, no cells
+    assert compute("=OFFSET({1,2},1,1)").code == "#VALUE!"  # Excel: OFFSET needs a reference

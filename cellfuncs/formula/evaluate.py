@@ -75,12 +75,18 @@ _UNSET = object()
 @dataclass(frozen=True, slots=True)
 class Builtin:
     """A built-in function: ``fn`` takes evaluated values (None for a missing argument),
-    or, when ``lazy``, the context followed by the unevaluated argument nodes."""
+    or, when ``lazy``, the context followed by the unevaluated argument nodes.
+
+    A function that can return a reference (INDIRECT, OFFSET, INDEX) also has ``reference``:
+    called as a lazy function, it returns the :class:`Ref` (anchored, so it moves with no
+    formula) or :class:`Name` it stands for, an error, or None when the call gives a value
+    rather than a reference (INDEX of an array); ``fn`` then gives that value."""
 
     fn: Callable[..., Value]
     min_args: int
     max_args: int | None  # None: any number
     lazy: bool = False
+    reference: Callable[..., Node | CellError | None] | None = None
 
 
 BUILTINS: dict[str, Builtin] = {}
@@ -102,6 +108,104 @@ def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = Fa
         return fn
 
     return register
+
+
+def reference_builtin(name: str, min_args: int, max_args: int, value: Callable[..., Value] | None = None,
+                      inside_first: bool = False) -> Callable:
+    """Register the decorated lazy function as the reference form of built-in ``name``;
+    ``value`` (lazy too) gives the value when the reference form returns None. With
+    ``inside_first`` the reference lies inside the first argument's (INDEX), so when that is
+    written as a reference the recalculation order already holds its cells."""
+
+    def register(fn: Callable[..., Node | CellError | None]) -> Callable:
+        def evaluated(context: Context, *nodes: Node) -> Value:
+            found = fn(context, *nodes)
+            if found is None:
+                return value(context, *nodes) if value is not None else CellError(VALUE, f"{name} needs a reference")
+            if type(found) is CellError:
+                return found
+            if inside_first and type(found) is Ref and type(nodes[0]) in (Ref, Name):
+                return context.reference(found.sheet, found.ref)
+            return dereference(found, context)
+
+        BUILTINS[name] = Builtin(evaluated, min_args, max_args, True, fn)
+        return fn
+
+    return register
+
+
+def reference_of(node: Node, context: Context) -> Ref | Name | CellError | None:
+    """The reference an argument stands for: a reference as written, a defined name, the
+    reference a function returns (``OFFSET(A1,1,0)``) or a range between two of them
+    (``A1:INDEX(B:B,3)``); None for an argument that gives a value."""
+    kind = type(node)
+    if kind is Ref or kind is Name:
+        return node
+    if kind is Call:
+        spec = BUILTINS.get(node.name)
+        if spec is None or spec.reference is None:
+            return None
+        count = len(node.args)
+        if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
+            return _arity_error(node.name, spec, count)
+        return spec.reference(context, *node.args)
+    if kind is Binary and node.op == ":":
+        return _range_between(node, context)
+    return None
+
+
+def _range_between(node: Binary, context: Context) -> Ref | CellError:
+    """``left:right``: the smallest area holding both references (on one sheet)."""
+    ends = []
+    for side in (node.left, node.right):
+        found = reference_of(side, context)
+        if type(found) is Name:
+            found = _name_reference(found, context)
+        if found is None:
+            return CellError(VALUE, "the range operator ':' joins references, not values")
+        if type(found) is CellError:
+            return found
+        ends.append(found)
+    bounds = getattr(context, "bounds", None)
+    if bounds is None:
+        return CellError(REF, "the formula has no workbook")
+    (left, right), sheets = ends, {e.sheet for e in ends} - {None}
+    if len(sheets) > 1:
+        return CellError(VALUE, "the range operator ':' joins references on one sheet")
+    corners = [bounds(e.sheet, e.ref) for e in ends]
+    for c in corners:
+        if type(c) is CellError:
+            return c
+    (r1, c1, r2, c2), (s1, t1, s2, t2) = corners
+    return anchored(next(iter(sheets), None), min(r1, s1), min(c1, t1), max(r2, s2), max(c2, t2))
+
+
+def _name_reference(name: Name, context: Context) -> Ref | CellError | None:
+    find = getattr(context, "name_reference", None)
+    return find(name.text) if find is not None else None
+
+
+def anchored(sheet: str | None, r1: int, c1: int, r2: int, c2: int) -> Ref:
+    """The reference to rows r1..r2 and columns c1..c2, every part anchored (``$A$1:$B$2``)."""
+    first = f"${_letters(c1)}${r1}"
+    return Ref(sheet, first if (r1, c1) == (r2, c2) else f"{first}:${_letters(c2)}${r2}")
+
+
+def _letters(col: int) -> str:
+    out = ""
+    while col:
+        col, rest = divmod(col - 1, 26)
+        out = chr(65 + rest) + out
+    return out
+
+
+def dereference(found: Ref | Name, context: Context) -> Value:
+    """The values a reference found while evaluating stands for; the workbook context is told
+    (``read_found``) so that its recalculation order can take the cells into account."""
+    if type(found) is Name:
+        return context.name(found.text)
+    read = getattr(context, "read_found", None)
+    return read(found.sheet, found.ref) if read is not None else context.reference(found.sheet, found.ref)
 
 
 def _arity_error(name: str, spec: Builtin, count: int) -> CellError:
@@ -163,10 +267,17 @@ def _charge_call(args: list) -> CellError | None:
     return charge(shape)
 
 
+def _binary(node: Binary, context: Context) -> Value:
+    if node.op == ":":
+        found = _range_between(node, context)
+        return found if type(found) is CellError else dereference(found, context)
+    # both sides even after an error on the left: an array on the right still shapes the result
+    return BINARY[node.op](evaluate(node.left, context), evaluate(node.right, context))
+
+
 _EVALUATORS: dict[type, Callable[[Any, Context], Value]] = {
     Literal: lambda n, c: n.value,
-    # both sides even after an error on the left: an array on the right still shapes the result
-    Binary: lambda n, c: BINARY[n.op](evaluate(n.left, c), evaluate(n.right, c)),
+    Binary: _binary,
     Call: _call,
     Ref: lambda n, c: c.reference(n.sheet, n.ref),
     Unary: lambda n, c: UNARY[n.op](evaluate(n.operand, c)),
@@ -207,6 +318,18 @@ def compute(formula: str, context: Context | None = None) -> Value:
     return value_of(parse(formula), SimpleContext() if context is None else context)
 
 
+def is_reference(node: Node) -> bool:
+    """Whether an argument is written as a reference (so an aggregate takes only the numbers
+    of its cells): a reference, a defined name, a reference function or a range operator."""
+    kind = type(node)
+    if kind is Ref or kind is Name:
+        return True
+    if kind is Call:
+        spec = BUILTINS.get(node.name)
+        return spec is not None and spec.reference is not None
+    return kind is Binary and node.op == ":"
+
+
 def collect(
     context: Context,
     nodes: tuple[Node, ...],
@@ -228,7 +351,7 @@ def collect(
     out = []
     for node in nodes:
         v = evaluate(node, context)
-        if type(v) is np.ndarray or type(node) is Ref or type(node) is Name:
+        if type(v) is np.ndarray or is_reference(node):
             for x in v.flat if type(v) is np.ndarray else (v,):
                 if type(x) is CellError:
                     return x

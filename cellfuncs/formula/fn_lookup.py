@@ -15,8 +15,9 @@ import numpy as np
 from ..errors import NA, REF, VALUE, CellError
 from .arrays import Value, as_array, map_values, shape_text
 from .coerce import compare, to_bool, to_number, to_text
-from .evaluate import builtin
-from .nodes import Scalar
+from .evaluate import Context, anchored, builtin, evaluate, reference_builtin
+from .fn_reference import found_reference
+from .nodes import Missing, Node, Ref, Scalar
 
 _ABSENT = object()  # an argument left out, as opposed to an empty one (None)
 
@@ -51,7 +52,6 @@ def _take(a: np.ndarray, row: Scalar, column: Scalar, whole: bool) -> Value:
     return part[0, 0] if part.size == 1 else part
 
 
-@builtin("INDEX", 2, 3)
 def index(array: Value, row: Value, column: Value = _ABSENT) -> Value:
     """The element at ``row``, ``column`` (1-based; 0 takes the whole row or column).
 
@@ -69,6 +69,56 @@ def index(array: Value, row: Value, column: Value = _ABSENT) -> Value:
     if type(row) is np.ndarray or type(column) is np.ndarray:
         return map_values(lambda r, c: _take(a, r, c, whole=False), row, column)
     return _take(a, row, column, whole=True)
+
+
+def _index_value(context: Context, *nodes: Node) -> Value:
+    values = [None if type(n) is Missing else evaluate(n, context) for n in nodes[:3]]
+    if len(nodes) == 4:
+        n = evaluate(nodes[3], context)
+        if type(n) is np.ndarray or to_number(n) != 1.0:
+            return CellError(REF, "INDEX of an array has only area 1")
+    return index(*values)
+
+
+@reference_builtin("INDEX", 2, 4, value=_index_value, inside_first=True)
+def index_reference(context: Context, array: Node, row: Node, column: Node | None = None,
+                    area: Node | None = None) -> Ref | CellError | None:
+    """INDEX of a reference is a reference (``A1:INDEX(B:B, 3)``, ``ROW(INDEX(…))``): the cell,
+    or with 0 the whole row or column, of the reference. Of an array, or with arrays of row
+    or column numbers, it is a value (None here)."""
+    found = found_reference(context, array)
+    if found is None or type(found) is CellError:
+        return found
+    if area is not None and type(area) is not Missing:
+        n = evaluate(area, context)
+        n = CellError(VALUE, "INDEX takes one area number") if type(n) is np.ndarray else to_number(n)
+        if type(n) is CellError:
+            return n
+        if int(n) != 1:
+            return CellError(REF, f"the reference has no area {int(n)}")
+    bounds = getattr(context, "bounds", None)
+    if bounds is None:  # no workbook: the values the context gives
+        return None
+    b = bounds(found.sheet, found.ref)
+    if type(b) is CellError:
+        return b
+    r1, c1, r2, c2 = b
+    h, w = r2 - r1 + 1, c2 - c1 + 1
+    row_v = 0.0 if type(row) is Missing else evaluate(row, context)
+    col_v = _ABSENT if column is None else (0.0 if type(column) is Missing else evaluate(column, context))
+    if type(row_v) is np.ndarray or type(col_v) is np.ndarray:
+        return None
+    if col_v is _ABSENT:
+        row_v, col_v = (1.0, row_v) if h == 1 else (row_v, 0.0)
+    r = _position(row_v, h, "row")
+    if type(r) is CellError:
+        return r
+    c = _position(col_v, w, "column")
+    if type(c) is CellError:
+        return c
+    top, bottom = (r1, r2) if r == 0 else (r1 + r - 1, r1 + r - 1)
+    left, right = (c1, c2) if c == 0 else (c1 + c - 1, c1 + c - 1)
+    return anchored(found.sheet, top, left, bottom, right)
 
 
 class Wildcard:

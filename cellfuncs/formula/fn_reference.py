@@ -1,9 +1,11 @@
 """Built-in functions about references and array shapes: ROW, COLUMN, ROWS, COLUMNS,
-SHEET, SHEETS, CHOOSE, TRANSPOSE.
+SHEET, SHEETS, INDIRECT, OFFSET, CHOOSE, TRANSPOSE.
 
 ROW and COLUMN need the reference itself, not its values: the evaluation context answers
 ``bounds(sheet, ref)`` (first row, first column, last row, last column) and ``position()``
-(the formula's own cell). A context without a workbook has neither: #VALUE!.
+(the formula's own cell). A context without a workbook has neither: #VALUE!. INDIRECT and
+OFFSET return references (see :func:`.reference_builtin`), so ``ROW(OFFSET(A1,2,0))`` and
+``SUM(INDIRECT("B2"):INDIRECT("B6"))`` work as in Excel.
 
 >>> from cellfuncs.formula import compute
 >>> compute("=ROWS({1,2;3,4;5,6})"), compute("=CHOOSE(2, \\"a\\", \\"b\\")"), compute("=TRANSPOSE({1,2})").tolist()
@@ -12,22 +14,41 @@ ROW and COLUMN need the reference itself, not its values: the evaluation context
 
 from __future__ import annotations
 
+import re
+
 import numpy as np
 
-from ..errors import NA, VALUE, CellError
+from ..errors import NA, REF, VALUE, CellError
 from .arrays import Value, as_array, map_values
-from .coerce import to_number
-from .evaluate import Context, builtin, evaluate
-from .nodes import Missing, Node, Ref
+from .coerce import to_bool, to_number, to_text
+from .evaluate import Context, anchored, builtin, evaluate, reference_builtin, reference_of
+from .nodes import Missing, Name, Node, Ref
+from .parser import FormulaSyntaxError, parse
+
+_R1C1 = re.compile(r"R(\[-?\d+\]|\d+)?C(\[-?\d+\]|\d+)?\Z")
+_MAX_ROW, _MAX_COL = 1048576, 16384
+
+
+def found_reference(context: Context, node: Node) -> Ref | CellError | None:
+    """The reference an argument is written as or evaluates to (a defined name that is one
+    reference included); None when it gives a value."""
+    found = reference_of(node, context)
+    if type(found) is Name:
+        find = getattr(context, "name_reference", None)
+        found = find(found.text) if find is not None else None
+    return found
 
 
 def _bounds(context: Context, node: Node) -> tuple[int, int, int, int] | CellError:
-    if type(node) is not Ref:
+    found = found_reference(context, node)
+    if found is None:
         return CellError(VALUE, "the argument must be a reference")
+    if type(found) is CellError:
+        return found
     bounds = getattr(context, "bounds", None)
     if bounds is None:
         return CellError(VALUE, "the formula has no workbook")
-    return bounds(node.sheet, node.ref)
+    return bounds(found.sheet, found.ref)
 
 
 def _here(context: Context) -> tuple[int, int] | CellError:
@@ -60,7 +81,7 @@ _numbering("COLUMN", 1)
 
 def _size(name: str, axis: int) -> None:
     def fn(context: Context, node: Node) -> Value:
-        if type(node) is Ref:
+        if found_reference(context, node) is not None:
             b = _bounds(context, node)
             return b if type(b) is CellError else float(b[axis + 2] - b[axis] + 1)
         v = evaluate(node, context)
@@ -90,8 +111,10 @@ def sheet(context: Context, node: Node | None = None) -> Value:
         return CellError(VALUE, "the formula has no workbook")
     if node is None or type(node) is Missing:
         found = position(None)
-    elif type(node) is Ref:
-        found = position(node.sheet)
+    elif (ref := found_reference(context, node)) is not None:
+        found = ref if type(ref) is CellError else position(ref.sheet)
+        if type(found) is CellError:
+            return found
     else:
         v = evaluate(node, context)
         if type(v) is CellError:
@@ -108,10 +131,135 @@ def sheets(context: Context, node: Node | None = None) -> Value:
         return CellError(VALUE, "the formula has no workbook")
     if node is None or type(node) is Missing:
         return float(count())
-    if type(node) is Ref:
-        return 1.0
+    ref = found_reference(context, node)
+    if ref is not None:
+        return ref if type(ref) is CellError else 1.0
     v = evaluate(node, context)
     return v if type(v) is CellError else CellError(VALUE, "SHEETS takes a reference")
+
+
+def _anchored_text(ref: str) -> str:
+    """An A1 reference with every row and column anchored, so it moves with no formula."""
+    return re.sub(r"(?<![\d$])(\d+)", r"$\1", re.sub(r"(?<![A-Z$])([A-Z]{1,3})", r"$\1", ref))
+
+
+def _r1c1(text: str, context: Context) -> str | CellError:
+    """An R1C1 reference (``R2C3``, ``R[-1]C``, ``R1C1:R2C2``) as A1, relative parts counted
+    from the formula's cell."""
+    here = getattr(context, "position", None)
+    row, col = here() if here is not None else (1, 1)
+    corners = []
+    for part in text.upper().split(":"):
+        m = _R1C1.match(part)
+        if m is None or len(corners) == 2:
+            return CellError(REF, f"{text} is not an R1C1 reference")
+        r = row if m.group(1) is None else (row + int(m.group(1)[1:-1]) if m.group(1)[0] == "[" else int(m.group(1)))
+        c = col if m.group(2) is None else (col + int(m.group(2)[1:-1]) if m.group(2)[0] == "[" else int(m.group(2)))
+        if not (1 <= r <= _MAX_ROW and 1 <= c <= _MAX_COL):
+            return CellError(REF, f"{text} is off the sheet")
+        corners.append((r, c))
+    (r1, c1), (r2, c2) = corners[0], corners[-1]
+    return anchored(None, min(r1, r2), min(c1, c2), max(r1, r2), max(c1, c2)).ref
+
+
+@reference_builtin("INDIRECT", 1, 2)
+def indirect(context: Context, text_node: Node, style_node: Node | None = None) -> Ref | CellError:
+    """The reference a text names: ``"B2"``, ``"'Data sheet'!A1:C3"``, a defined name, or with
+    FALSE as the second argument an R1C1 reference (``"R[-1]C"``).
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=INDIRECT("A1")').code, compute('=INDIRECT("1+1")').code
+    ('#REF!', '#REF!')
+    """
+    text = evaluate(text_node, context)
+    if type(text) is CellError:
+        return text
+    if type(text) is np.ndarray:
+        return CellError(VALUE, "INDIRECT takes one text")
+    if type(text) is not str:
+        text = to_text(text)
+    a1 = True
+    if style_node is not None and type(style_node) is not Missing:
+        style = evaluate(style_node, context)
+        style = CellError(VALUE, "INDIRECT's style is one value") if type(style) is np.ndarray else to_bool(style)
+        if type(style) is CellError:
+            return style
+        a1 = style
+    written = text.strip()
+    sheet, local = None, written
+    if "!" in written:
+        sheet, _, local = written.rpartition("!")
+        if sheet.startswith("'") and sheet.endswith("'") and len(sheet) > 1:
+            sheet = sheet[1:-1].replace("''", "'")
+    if not a1:
+        local = _r1c1(local, context)
+        if type(local) is CellError:
+            return local
+        return Ref(sheet, local)
+    try:
+        node = parse("=" + ((_quote(sheet) + "!") if sheet else "") + local) if written else None
+    except FormulaSyntaxError:
+        node = None
+    if type(node) is Ref:
+        return Ref(node.sheet, _anchored_text(node.ref))
+    if type(node) is Name:  # a defined name counts when it is a reference
+        find = getattr(context, "name_reference", None)
+        found = find(node.text) if find is not None else None
+        if found is not None:
+            return found
+    return CellError(REF, f"{text!r} does not name a reference")
+
+
+def _quote(sheet: str) -> str:
+    return "'" + sheet.replace("'", "''") + "'"
+
+
+@reference_builtin("OFFSET", 3, 5)
+def offset(context: Context, base: Node, rows: Node, cols: Node, height: Node | None = None,
+           width: Node | None = None) -> Ref | CellError:
+    """The reference ``rows`` down and ``cols`` right of a reference, ``height`` rows by
+    ``width`` columns (by default the base's size); off the sheet it is #REF!.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute("=OFFSET({1,2},1,1)").code
+    '#VALUE!'
+    """
+    found = found_reference(context, base)
+    if found is None:
+        return CellError(VALUE, "OFFSET's first argument must be a reference")
+    if type(found) is CellError:
+        return found
+    bounds = getattr(context, "bounds", None)
+    if bounds is None:
+        return CellError(VALUE, "the formula has no workbook")
+    b = bounds(found.sheet, found.ref)
+    if type(b) is CellError:
+        return b
+    r1, c1, r2, c2 = b
+    numbers = []
+    for node, default in ((rows, 0.0), (cols, 0.0), (height, float(r2 - r1 + 1)), (width, float(c2 - c1 + 1))):
+        if node is None or type(node) is Missing:
+            numbers.append(default)
+            continue
+        v = evaluate(node, context)
+        if type(v) is np.ndarray:
+            return CellError(VALUE, "OFFSET takes single numbers for its offsets and size")
+        x = to_number(v)
+        if type(x) is CellError:
+            return x
+        numbers.append(float(int(x)))
+    down, right, h, w = (int(x) for x in numbers)
+    if h == 0 or w == 0:
+        return CellError(REF, "OFFSET's height and width must not be 0")
+    top, left = r1 + down, c1 + right
+    bottom, last = top + h - 1 if h > 0 else top, left + w - 1 if w > 0 else left
+    if h < 0:
+        top, bottom = top + h + 1, top
+    if w < 0:
+        left, last = left + w + 1, left
+    if top < 1 or left < 1 or bottom > _MAX_ROW or last > _MAX_COL:
+        return CellError(REF, "OFFSET's result is off the sheet")
+    return anchored(found.sheet, top, left, bottom, last)
 
 
 @builtin("CHOOSE", 2, 255, lazy=True)

@@ -25,6 +25,7 @@ from ..errors import VALUE, CellError
 from .arrays import Value, as_array
 from .coerce import to_number
 from .evaluate import BUILTINS, Context, builtin, evaluate
+from .fn_reference import found_reference
 from .nodes import Name, Node, Ref
 
 SUBTOTAL_FUNCTIONS = ("AVERAGE", "COUNT", "COUNTA", "MAX", "MIN", "PRODUCT", "STDEV", "STDEVP", "SUM", "VAR", "VARP")
@@ -52,11 +53,11 @@ def reduce_as(name: str, context: Context, values: list[Value]) -> Value:
     return BUILTINS[name].fn(given, *(Name(f"\x00{k}") for k in range(len(values))))
 
 
-def kept(context: Context, node: Ref, hidden: bool) -> Value:
-    """The values of reference ``node`` with the cells a subtotal leaves out made blank."""
+def kept(context: Context, node: Node, ref: Ref, hidden: bool) -> Value:
+    """The values of argument ``node`` (reference ``ref``) with the cells a subtotal leaves out blank."""
     v = evaluate(node, context)
     left_out = getattr(context, "left_out", None)
-    mask = left_out(node.sheet, node.ref, hidden) if left_out is not None else None
+    mask = left_out(ref.sheet, ref.ref, hidden) if left_out is not None else None
     if mask is None or not mask.any():
         return v
     out = as_array(v).copy()
@@ -66,7 +67,10 @@ def kept(context: Context, node: Ref, hidden: bool) -> Value:
 
 @builtin("SUBTOTAL", 2, 255, lazy=True)
 def subtotal(context: Context, code_node: Node, *nodes: Node) -> Value:
-    code = to_number(evaluate(code_node, context))
+    given = evaluate(code_node, context)
+    if type(given) is np.ndarray:
+        return CellError(VALUE, "SUBTOTAL takes one function number")
+    code = to_number(given)
     if type(code) is CellError:
         return code
     number = int(code)
@@ -76,11 +80,10 @@ def subtotal(context: Context, code_node: Node, *nodes: Node) -> Value:
         return CellError(VALUE, f"SUBTOTAL's function number {code:g} is not 1-11 or 101-111")
     values = []
     for node in nodes:
-        if type(node) is not Ref:
-            v = evaluate(node, context)
-            if type(node) is Name and type(v) is np.ndarray:
-                values.append(v)
-                continue
+        ref = found_reference(context, node)
+        if type(ref) is CellError:
+            return ref
+        if ref is None:
             return CellError(VALUE, "SUBTOTAL takes references to cells")
-        values.append(kept(context, node, hidden))
+        values.append(kept(context, node, ref, hidden))
     return reduce_as(SUBTOTAL_FUNCTIONS[base - 1], context, values)

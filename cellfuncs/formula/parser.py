@@ -22,7 +22,8 @@ from ..errors import parse_error_text
 from .budget import MAX_FORMULA_TEXT
 from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary, children
 
-_INFIX = {"=": 1, "<>": 1, "<": 1, ">": 1, "<=": 1, ">=": 1, "&": 2, "+": 3, "-": 3, "*": 4, "/": 4, "^": 5}
+_INFIX = {"=": 1, "<>": 1, "<": 1, ">": 1, "<=": 1, ">=": 1, "&": 2, "+": 3, "-": 3, "*": 4, "/": 4, "^": 5,
+          ":": 9}  # the range operator binds tightest: A1:INDEX(B:B,3)*2
 _PREFIX_POWER = 6  # above ^: Excel negates before raising to a power
 _PREFIXES = ("_XLFN.", "_XLWS.")
 # Deeper trees would exhaust Python's recursion while evaluating; Excel itself allows
@@ -225,6 +226,17 @@ class _Parser:
         return -value.value if sign == "-" else value.value
 
 
+def _split_range_operator(t) -> list[tuple[str, str, str]]:
+    """The tokenizer keeps a range operator next to a function or reference in one token
+    (``A1:INDEX(``, ``:OFFSET(``, ``:B5``): split it off as an infix ``:``."""
+    if t.type == "FUNC" and t.subtype == "OPEN" and ":" in t.value and not t.value.startswith("'"):
+        left, _, fn = t.value.rpartition(":")
+        return ([(left, "OPERAND", "RANGE")] if left else []) + [(":", "OPERATOR-INFIX", ""), (fn, "FUNC", "OPEN")]
+    if t.type == "OPERAND" and t.subtype == "RANGE" and t.value.startswith(":") and len(t.value) > 1:
+        return [(":", "OPERATOR-INFIX", ""), (t.value[1:], "OPERAND", "RANGE")]
+    return [(t.value, t.type, t.subtype)]
+
+
 def _tokens(formula: str) -> list[_Tok]:
     from openpyxl.formula.tokenizer import Tokenizer  # lazy: openpyxl takes ~0.1 s to import
 
@@ -239,8 +251,9 @@ def _tokens(formula: str) -> list[_Tok]:
         if t.type == "WHITE-SPACE":
             spaced = True
             continue
-        out.append(_Tok(t.value, t.type, t.subtype, spaced))
-        spaced = False
+        for value, type_, subtype in _split_range_operator(t):
+            out.append(_Tok(value, type_, subtype, spaced))
+            spaced = False
     return out
 
 

@@ -39,7 +39,7 @@ from typing import Any, Callable, Iterator, Mapping, NamedTuple
 import numpy as np
 
 from ..errors import CALC, NA, NAME, REF, SPILL, CellError
-from ..formula import Call, Value, value_of, walk
+from ..formula import Call, Ref, Value, value_of, walk
 from ..formula.budget import active, charge
 from .areas import AreaIndex, Overlap
 from .graph import components, cycle
@@ -162,6 +162,28 @@ class _Context:
             return found
         a = found[1]
         return a.r1, a.c1, a.r2, a.c2
+
+    def read_found(self, sheet: str | None, ref: str) -> Value:
+        """The values of a reference found while evaluating (INDIRECT, OFFSET, A1:INDEX(…)),
+        which the dependency order may not have seen: the engine notes it (see :meth:`Recalc.found_read`)."""
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return found
+        self.engine.found_read(*found)
+        return self.reference(sheet, ref)
+
+    def name_reference(self, text: str) -> Ref | None:
+        """The reference a defined name stands for when it is one reference (``=Data!$A$1:$A$9``)."""
+        key = self.engine.resolve_name(self.sheet, text)
+        if key is None:
+            return None
+        ast = self.engine.name_template(key).ast
+        if type(ast) is not Ref:
+            return None
+        sheet = ast.sheet
+        if sheet is None:
+            sheet = self.engine.book.sheets[key[0] if key[0] is not None else self.sheet].name
+        return Ref(sheet, ast.ref)
 
     def left_out(self, sheet: str | None, ref: str, hidden: bool) -> np.ndarray | None:
         """The cells of a reference that SUBTOTAL leaves out (True): SUBTOTAL and AGGREGATE
@@ -303,6 +325,10 @@ class Recalc:
         self.templates = Templates()
         self.tables = Tables(book.tables)
         self._subtotal_cells: list[set[tuple[int, int]]] | None = None
+        # references found while evaluating, by formula cell: (sheet, area corners); kept across passes
+        self.found: dict[int, set[tuple[int, tuple[int, int, int, int]]]] = {}
+        self.found_new = False
+        self.current: int | None = None  # the formula cell being evaluated
         self._name_templates: dict = {}
         self.name_values: dict[tuple[tuple[int | None, str], int], Value] = {}  # (name, sheet using it) -> value
         n = len(book.sheets)
@@ -481,6 +507,26 @@ class Recalc:
                 self._kept += h * w
         return out
 
+    def found_read(self, s: int, a: Area) -> None:
+        """Note that the formula cell being evaluated read area ``a`` of sheet ``s`` through a
+        reference found while evaluating. If the area holds formula cells the order did not
+        put first, the next pass orders them (see :meth:`run`)."""
+        if self.current is None:
+            return
+        key = (s, a[:4])
+        seen = self.found.setdefault(self.current, set())
+        if key in seen:
+            return
+        seen.add(key)
+        if self._has_formulas(s, a):
+            self.found_new = True
+
+    def _has_formulas(self, s: int, a: Area) -> bool:
+        for c, (rows, _) in self._columns[s].items():
+            if a.c1 <= c <= a.c2 and bisect.bisect_left(rows, a.r1) < bisect.bisect_right(rows, a.r2):
+                return True
+        return False
+
     def clipped(self, s: int, a: Area) -> tuple[int, int]:
         """The last row and column of area ``a``, whole columns and rows cut to the used range."""
         r2, c2 = a.r2, a.c2
@@ -624,6 +670,9 @@ class Recalc:
                 links.owner = u
                 for s, a in self._targets(members):
                     refer(s, a, needs)
+                for fi in members:
+                    for s, corners in self.found.get(fi, ()):
+                        refer(s, Area(*corners), needs)
                 fc = self.cells[members[0]]
                 refer_names(fc.template.names, fc.sheet, needs)
                 graph.adj.append(sorted(needs))
@@ -668,13 +717,15 @@ class Recalc:
 
     # ---- evaluation --------------------------------------------------------------------
     def run(self) -> None:
-        """Evaluate every formula; repeat while spills land where the order did not expect them."""
+        """Evaluate every formula; repeat while spills land, or references found while evaluating
+        read formula cells, where the order did not expect them."""
         assumed = {fi: fc.old_area for fi, fc in enumerate(self.cells) if fc.old_area is not None}
         graph = self._graph(assumed)
         for _ in range(MAX_PASSES):
+            self.found_new = False
             self._evaluate(graph, assumed)
             actual = dict(self.spills)
-            if actual == assumed:
+            if actual == assumed and not self.found_new:
                 return
             assumed = actual
             again = self._graph(assumed)
@@ -806,7 +857,10 @@ class Recalc:
         ctx = self._context
         ctx.sheet, ctx.dr, ctx.dc, ctx.row, ctx.col = fc.sheet, fc.row - t.row, fc.col - t.col, fc.row, fc.col
         self.budget.start()
-        self._store(fi, value_of(t.ast, ctx))
+        self.current = fi
+        value = value_of(t.ast, ctx)
+        self.current = None
+        self._store(fi, value)
 
     def _group(self, members: tuple[int, ...]) -> None:
         first = self.cells[members[0]]
