@@ -1,6 +1,6 @@
-"""The design workbooks (workbooks/*.xlsx): their script rebuilds them byte for byte, their
-stored values pass ``cellfuncs recalc --check``, and changing an input moves the results
-that depend on it.
+"""The design workbooks (workbooks/*.xlsx): their script rebuilds them byte for byte but for
+the last digits of a number (which numpy releases may move), their stored values pass
+``cellfuncs recalc --check``, and changing an input moves the results that depend on it.
 
 Expected directions come from the physics of each sheet (a warmer header reading has more
 superheat; a bigger room dilutes the same gas more; less warming gives a smaller pressure
@@ -41,10 +41,27 @@ def test_the_script_builds_exactly_the_committed_workbooks():
     assert sorted(p.name for p in FOLDER.glob("*.xlsx")) == sorted(NAMES)
 
 
+_NUMBER = re.compile(rb"<v>(-?[0-9][0-9.eE+-]*)</v>")
+
+
+def _numbers_apart(made: bytes, kept: bytes) -> list[tuple[bytes, bytes]]:
+    """The stored numbers of two parts that differ by more than floating-point noise, or the
+    whole parts when they differ elsewhere. Solvers and numpy's vectorised functions may move
+    the last one or two digits from one numpy release to the next; a number that moves more
+    is a change."""
+    if _NUMBER.sub(b"", made) != _NUMBER.sub(b"", kept):
+        return [(made, kept)]
+    return [(a, b) for a, b in zip(_NUMBER.findall(made), _NUMBER.findall(kept))
+            if not math.isclose(float(a), float(b), rel_tol=1e-12, abs_tol=1e-300)]
+
+
 @pytest.mark.parametrize("name", NAMES)
 def test_each_workbook_rebuilds_byte_for_byte(rebuilt, name):
-    assert (rebuilt / name).read_bytes() == (FOLDER / name).read_bytes(), (
-        f"workbooks/{name} differs from what workbooks/build.py makes: run python3 workbooks/build.py")
+    made, kept = zipfile.ZipFile(rebuilt / name), zipfile.ZipFile(FOLDER / name)
+    assert made.namelist() == kept.namelist()
+    apart = {m: _numbers_apart(made.read(m), kept.read(m)) for m in made.namelist()}
+    apart = {m: d[:3] for m, d in apart.items() if d}
+    assert not apart, f"workbooks/{name} differs from what workbooks/build.py makes: run python3 workbooks/build.py"
 
 
 def test_recalc_check_passes_on_every_committed_workbook():
@@ -117,7 +134,7 @@ def test_cryogen_a_longer_room_holds_more_oxygen_after_the_same_release(tmp_path
     assert after[0] == pytest.approx(2 * before[0], rel=1e-12)  # room volume
     assert after[1] > before[1] and after[2] > before[2]  # oxygen after the nitrogen and the argon release
     assert after[3] == pytest.approx(2 * before[3], rel=1e-12)  # the largest safe release scales with the room
-    assert after[4] == before[4]  # the gas released does not depend on the room
+    assert after[4] == pytest.approx(before[4], rel=1e-12)  # the gas released does not depend on the room
 
 
 def test_frost_less_warming_gives_a_smaller_pressure_rise(tmp_path):
