@@ -37,6 +37,10 @@ DECLARATION = '<?xml version="1.0" encoding="{}" standalone="yes"?>\n'
 
 
 def _cell(ref: str, value: object) -> str:
+    """A cell; a key such as ``B1:C1`` is a legacy array formula over that range (the key's
+    first cell holds it), which is evaluated whole, without implicit intersection."""
+    if ":" in ref:
+        return f'<c r="{ref.split(":")[0]}"><f t="array" ref="{ref}">{escape(value[1:])}</f></c>'
     if isinstance(value, str) and value.startswith("="):
         return f'<c r="{ref}"><f>{escape(value[1:])}</f></c>'
     if isinstance(value, str):
@@ -52,7 +56,7 @@ def sheet_xml(cells: dict[str, object] | str) -> str:
     else:
         rows: dict[int, list[str]] = {}
         for ref, value in cells.items():
-            row = int("".join(ch for ch in ref if ch.isdigit()))
+            row = int("".join(ch for ch in ref.split(":")[0] if ch.isdigit()))
             rows.setdefault(row, []).append(_cell(ref, value))
         data = "".join(f'<row r="{r}">{"".join(cs)}</row>' for r, cs in sorted(rows.items()))
     return f'<worksheet xmlns="{MAIN}"><sheetData>{data}</sheetData></worksheet>'
@@ -122,13 +126,13 @@ def dynamic_range_bomb(folder: Path) -> Path:
 
 def broadcast_bomb(folder: Path) -> Path:
     """A whole column times a whole row: 100,000 x 16,384 elements from three stored cells."""
-    return write(folder / "broadcast.xlsx", {"C5": "=SUM(A:A+1:1)", "A100000": 1, "XFD1": 2, "D5": "=6*7"})
+    return write(folder / "broadcast.xlsx", {"C5:C5": "=SUM(A:A+1:1)", "A100000": 1, "XFD1": 2, "D5": "=6*7"})
 
 
 def function_broadcast_bomb(folder: Path) -> Path:
     """A pack function given a whole column and a whole row."""
     return write(folder / "function_broadcast.xlsx",
-                 {"A5": '=SUM(MASS_DENSITY("water",B:B,2:2))', "B100000": 300, "XFD2": 1e5, "D5": "=6*7"})
+                 {"A5:A5": '=SUM(MASS_DENSITY("water",B:B,2:2))', "B100000": 300, "XFD2": 1e5, "D5": "=6*7"})
 
 
 def range_read_bomb(folder: Path) -> Path:
@@ -221,7 +225,7 @@ def utf16_parts(folder: Path) -> Path:
     the relationships and content types are edited on writing."""
     every = ["[Content_Types].xml", "_rels/.rels", "xl/workbook.xml", "xl/_rels/workbook.xml.rels",
              "xl/worksheets/sheet1.xml", "xl/calcChain.xml"]
-    return write(folder / "utf16.xlsx", {"A1": 2, "A2": "=A1*21", "A3": "=\"caf\u00e9 \"&A2", "B1": "={1,2}"},
+    return write(folder / "utf16.xlsx", {"A1": 2, "A2": "=A1*21", "A3": "=\"caf\u00e9 \"&A2", "B1:C1": "={1,2}"},
                  encodings={name: "UTF-16" for name in every}, calc_chain=True)
 
 

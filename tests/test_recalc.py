@@ -31,6 +31,7 @@ import cellfuncs
 from cellfuncs.cli import main
 from cellfuncs.workbook import package as package_module
 from cellfuncs.workbook import sheetxml
+from cellfuncs.workbook.authoring import mark_spills, save, spill
 from cellfuncs.workbook.package import Package
 
 PRESSURES = [1.0, 2.0, 5.0, 10.0, 20.0]  # bar
@@ -81,14 +82,19 @@ def values(path: Path, sheet_name: str | None = None) -> openpyxl.worksheet.work
     return wb[sheet_name] if sheet_name else wb.active
 
 
-def one_sheet(tmp_path: Path, cells: dict[str, object], name: str = "book.xlsx") -> Path:
+def one_sheet(tmp_path: Path, cells: dict[str, object], name: str = "book.xlsx", spills: tuple[str, ...] = ()) -> Path:
+    """A workbook of one sheet "S"; the formulas of ``spills`` are written as spilling formulas
+    (dynamic arrays, with cellfuncs.workbook.authoring), the others as plain (legacy) formulas."""
     wb = openpyxl.Workbook()
     ws = wb.active
     ws.title = "S"
     for ref, value in cells.items():
-        ws[ref] = value
+        if ref in spills:
+            spill(ws, ref, value)
+        else:
+            ws[ref] = value
     path = tmp_path / name
-    wb.save(path)
+    save(wb, path)
     return path
 
 
@@ -579,7 +585,8 @@ def test_legacy_array_formula_fills_its_range(tmp_path):
 
 # ---- spills ------------------------------------------------------------------------------
 def test_a_spill_is_stored_as_a_dynamic_array(tmp_path):
-    path = one_sheet(tmp_path, {"A1": '=PHASE_LINE("water","boil",300,400,3)', "D1": "=A3*2", "D2": "=SUM(B1:B3)"})
+    path = one_sheet(tmp_path, {"A1": '=PHASE_LINE("water","boil",300,400,3)', "D1": "=A3*2", "D2": "=SUM(B1:B3)"},
+                     spills=("A1",))
     assert cli(str(path), "--in-place")[0] == 0
     xml = sheet(path)
     m = re.search(r'<c r="A1"([^>]*)><f t="array" ref="A1:B3">PHASE_LINE\(', xml)
@@ -602,7 +609,7 @@ def test_a_spill_is_stored_as_a_dynamic_array(tmp_path):
 
 
 def test_an_array_constant_spills(tmp_path):
-    path = one_sheet(tmp_path, {"A1": "={1,2;3,4}*10"})
+    path = one_sheet(tmp_path, {"A1": "={1,2;3,4}*10"}, spills=("A1",))
     assert cli(str(path), "--in-place")[0] == 0
     ws = values(path)
     assert [[ws.cell(r, c).value for c in (1, 2)] for r in (1, 2)] == [[10, 20], [30, 40]]
@@ -610,7 +617,7 @@ def test_an_array_constant_spills(tmp_path):
 
 
 def test_a_blocked_spill_is_a_spill_error(tmp_path):
-    path = one_sheet(tmp_path, {"A1": '=PHASE_LINE("water","boil",300,400,3)', "B2": "in the way"})
+    path = one_sheet(tmp_path, {"A1": '=PHASE_LINE("water","boil",300,400,3)', "B2": "in the way"}, spills=("A1",))
     code, _, err = cli(str(path), "--in-place")
     assert code == 1
     assert "S!A1: #SPILL! the 3x2 result would overwrite S!B2" in err
@@ -619,7 +626,8 @@ def test_a_blocked_spill_is_a_spill_error(tmp_path):
 
 
 def test_a_spill_that_shrinks_clears_its_old_cells(tmp_path):
-    path = one_sheet(tmp_path, {"D1": 5.0, "A1": '=PHASE_LINE("water","boil",300,400,D1)', "F1": "=SUM(A:A)"})
+    path = one_sheet(tmp_path, {"D1": 5.0, "A1": '=PHASE_LINE("water","boil",300,400,D1)', "F1": "=SUM(A:A)"},
+                     spills=("A1",))
     assert cli(str(path), "--in-place")[0] == 0
     assert values(path)["F1"].value == pytest.approx(300 + 325 + 350 + 375 + 400, rel=1e-15)
     assert '<f t="array" ref="A1:B5">' in sheet(path)
@@ -637,7 +645,7 @@ def test_a_spill_that_shrinks_clears_its_old_cells(tmp_path):
 
 
 def test_a_thousand_row_spill(tmp_path):
-    path = one_sheet(tmp_path, {"D1": '=PHASE_LINE("water","boil",280,640,1000)', "G1": "=D1000+E1000"})
+    path = one_sheet(tmp_path, {"D1": '=PHASE_LINE("water","boil",280,640,1000)', "G1": "=D1000+E1000"}, spills=("D1",))
     assert cli(str(path), "--in-place")[0] == 0
     assert '<f t="array" ref="D1:E1000">' in sheet(path)
     expected = cellfuncs.PHASE_LINE("water", "boil", 280, 640, 1000)
@@ -657,9 +665,9 @@ def test_a_hundred_by_hundred_grid(tmp_path):
         ws.cell(1, j + 2, float(t))
     for i, p in enumerate(pressures):
         ws.cell(i + 2, 1, float(p))
-    ws["B2"] = '=STABLE_PHASE("water",B1:CW1,A2:A101,"degC","bar")'
+    spill(ws, "B2", '=STABLE_PHASE("water",B1:CW1,A2:A101,"degC","bar")')
     path = tmp_path / "grid.xlsx"
-    wb.save(path)
+    save(wb, path)
     assert cli(str(path), "--in-place")[0] == 0
     assert '<f t="array" ref="B2:CW101">' in sheet(path)
     expected = cellfuncs.STABLE_PHASE("water", temps.reshape(1, -1), pressures.reshape(-1, 1), "degC", "bar")
@@ -671,7 +679,7 @@ def test_a_hundred_by_hundred_grid(tmp_path):
 
 # ---- files as other programs write them ------------------------------------------------------
 def test_a_sheet_written_with_a_namespace_prefix(tmp_path):
-    path = one_sheet(tmp_path, {"A1": 2.0, "A2": '=PHASE_LINE("water","boil",300,400,A1)', "C1": "=A1*3"})
+    path = one_sheet(tmp_path, {"A1": 2.0, "A2": '=PHASE_LINE("water","boil",300,400,A1)', "C1": "=A1*3"}, spills=("A2",))
     xml = sheet(path)
     xml = re.sub(r"<(/?)(\w+)", r"<\1x:\2", xml).replace('xmlns="', 'xmlns:x="')
     rewrite(path, {"xl/worksheets/sheet1.xml": xml.encode()})
@@ -683,7 +691,7 @@ def test_a_sheet_written_with_a_namespace_prefix(tmp_path):
 
 
 def test_spill_cells_go_into_empty_rows_and_styled_cells(tmp_path):
-    path = one_sheet(tmp_path, {"A1": '=PHASE_LINE("water","boil",300,400,4)', "D4": "beyond"})
+    path = one_sheet(tmp_path, {"A1": '=PHASE_LINE("water","boil",300,400,4)', "D4": "beyond"}, spills=("A1",))
     xml = sheet(path).replace('<row r="4">', '<row r="2" spans="1:2"/><row r="3" spans="5:5"><c r="B3" s="0"/>'
                                              '<c r="E3" t="n"><v>7</v></c></row><row r="4">')
     rewrite(path, {"xl/worksheets/sheet1.xml": xml.encode()})
@@ -808,6 +816,7 @@ def test_existing_cell_metadata_gets_a_dynamic_array_record(tmp_path):
         b"</Relationships>", b'<Relationship Id="rId9" Type="http://schemas.openxmlformats.org/officeDocument/2006/'
                              b'relationships/sheetMetadata" Target="metadata.xml"/></Relationships>')
     rewrite(path, {"xl/metadata.xml": meta, "[Content_Types].xml": types, "xl/_rels/workbook.xml.rels": rels})
+    mark_spills(path, {"S": ["A1"]})  # the record is added to the metadata the workbook has
     assert cli(str(path), "--in-place")[0] == 0
     from cellfuncs.workbook.model import dynamic_cm
     from cellfuncs.workbook.package import parse_xml

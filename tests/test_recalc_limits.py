@@ -48,9 +48,9 @@ def test_a_range_over_the_array_limit_is_an_error_naming_it_until_raised(tmp_pat
 
 def test_the_work_of_one_formula_is_counted_over_all_its_arrays(tmp_path):
     cells: dict[str, object] = {f"A{r}": float(r) for r in range(1, 11)}
-    cells["C1"] = "=SUM(A1:A10*2+A1:A10)"  # reads 10 twice, builds 10 twice: 40 cells
+    cells["C1"] = "=SUM(A1:A10*2+A1:A10)"  # reads 10 twice, builds 10 twice: 40 cells (as a spill: no intersection)
     cells["C2"] = "=A1*2"
-    path = book(tmp_path, cells)
+    path = book(tmp_path, cells, spills=("C1",))
     code, _, err = cli(str(path), "--in-place", "--max-formula-work", "39")
     assert code == 1 and value(path, "C1") == "#NUM!" and value(path, "C2") == 2
     assert "the formula would build more than 39 array cells in all, the limit per formula (--max-formula-work)" in err
@@ -69,7 +69,7 @@ def test_the_work_of_all_formulas_of_a_workbook_is_counted(tmp_path):
 
 
 def test_spilled_cells_of_a_workbook_are_counted(tmp_path):
-    path = book(tmp_path, {"A1": "={1,2;3,4}", "D1": "={1,2,3}"})
+    path = book(tmp_path, {"A1": "={1,2;3,4}", "D1": "={1,2,3}"}, spills=("A1", "D1"))
     code, _, err = cli(str(path), "--in-place", "--max-spill-cells", "6")
     assert code == 1
     assert "S!D1: #SPILL! the 1x3 result would bring the spilled cells of the workbook over the limit of 6 " \

@@ -40,6 +40,8 @@ from openpyxl.worksheet.datavalidation import DataValidation
 from openpyxl.worksheet.worksheet import Worksheet
 from openpyxl.writer.excel import ExcelWriter
 
+from cellfuncs.workbook.authoring import mark_spills, spill, spills_of
+
 HERE = Path(__file__).resolve().parent
 STAMP = datetime.datetime(2025, 1, 6, 9, 0, 0)  # every workbook's created/modified time and zip member time
 CREATOR = "cellfuncs design workbooks (workbooks/build.py)"
@@ -633,7 +635,7 @@ def _line_sheet(wb: Workbook, title: str, map_title: str, substance: str,
         ws[f"{x}{data - 2}"].font = HEADER_FONT
         ws[f"{x}{data - 1}"], ws[f"{y}{data - 1}"] = "T (°C)", "p (bar)"
         extra = f',"{solid}"' if solid else ""
-        ws[f"{x}{data}"] = f'=PHASE_LINE({sub},"{boundary}",{t_a},{t_b},{points},"degC","bar"{extra})'
+        spill(ws, f"{x}{data}", f'=PHASE_LINE({sub},"{boundary}",{t_a},{t_b},{points},"degC","bar"{extra})')
         for r in range(data, data + points):  # formats of the spill range: empty cells, so nothing blocks it
             ws[f"{x}{r}"].number_format, ws[f"{y}{r}"].number_format = "0.00", "0.000E+00"
         ws.merge_cells(f"{x}{copy - 2}:{y}{copy - 2}")
@@ -723,6 +725,7 @@ def save(wb: Workbook, path: Path) -> None:
             fixed.compress_type = zipfile.ZIP_DEFLATED
             fixed.external_attr = 0o600 << 16
             out.writestr(fixed, built.read(info.filename))
+    mark_spills(path, spills_of(wb))  # the PHASE_LINE cells, recorded as Excel records a spilling formula
 
 
 def build(names: list[str] | None = None, folder: Path = HERE) -> list[Path]:

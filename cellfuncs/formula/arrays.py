@@ -126,6 +126,7 @@ def elementwise(fn: Callable[..., Scalar]) -> Callable[..., Value]:
     def apply(*values: Value) -> Value:
         return map_values(fn, *values)
 
+    apply.takes_values = True  # each argument a value: a legacy formula intersects a range given to it
     return apply
 
 

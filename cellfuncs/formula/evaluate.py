@@ -12,7 +12,7 @@ supplies everything that depends on a workbook or on the function pack.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any, Callable, Mapping, Protocol
+from typing import Any, Callable, Iterable, Mapping, Protocol
 
 import numpy as np
 
@@ -87,13 +87,20 @@ class Builtin:
     max_args: int | None  # None: any number
     lazy: bool = False
     reference: Callable[..., Node | CellError | None] | None = None
+    takes_values: bool = False  # every parameter a single value (see :func:`intersect`)
+    arrays: frozenset[int] = frozenset()  # array-class parameters (see :func:`in_array_mode`)
 
 
 BUILTINS: dict[str, Builtin] = {}
+ALL_ARGUMENTS = frozenset(range(255))  # Excel's most arguments
 
 
-def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = False) -> Callable:
+def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = False,
+            arrays: Iterable[int] = ()) -> Callable:
     """Register the decorated function as built-in ``name`` (``max_args`` defaults to ``min_args``).
+    ``arrays`` holds the positions (from 0) of its array-class parameters, ``ALL_ARGUMENTS``
+    for all: a legacy formula evaluates what is written there as an array (SUMPRODUCT,
+    LOOKUP's vectors, INDEX's array), where elsewhere it intersects ranges with its cell.
 
     >>> @builtin("HALF", 1)
     ... def _half(x):
@@ -104,14 +111,15 @@ def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = Fa
     """
 
     def register(fn: Callable[..., Value]) -> Callable[..., Value]:
-        BUILTINS[name] = Builtin(fn, min_args, min_args if max_args == -1 else max_args, lazy)
+        BUILTINS[name] = Builtin(fn, min_args, min_args if max_args == -1 else max_args, lazy,
+                                 takes_values=getattr(fn, "takes_values", False), arrays=frozenset(arrays))
         return fn
 
     return register
 
 
 def reference_builtin(name: str, min_args: int, max_args: int, value: Callable[..., Value] | None = None,
-                      inside_first: bool = False) -> Callable:
+                      inside_first: bool = False, arrays: Iterable[int] = ()) -> Callable:
     """Register the decorated lazy function as the reference form of built-in ``name``;
     ``value`` (lazy too) gives the value when the reference form returns None. With
     ``inside_first`` the reference lies inside the first argument's (INDEX), so when that is
@@ -128,7 +136,7 @@ def reference_builtin(name: str, min_args: int, max_args: int, value: Callable[.
                 return context.reference(found.sheet, found.ref)
             return dereference(found, context)
 
-        BUILTINS[name] = Builtin(evaluated, min_args, max_args, True, fn)
+        BUILTINS[name] = Builtin(evaluated, min_args, max_args, True, fn, arrays=frozenset(arrays))
         return fn
 
     return register
@@ -245,9 +253,14 @@ def _call(node: Call, context: Context) -> Value:
     if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
         return _arity_error(node.name, spec, count)
     try:
-        if spec.lazy:
-            return spec.fn(context, *node.args)
-        return spec.fn(*[evaluate(a, context) for a in node.args])
+        if not getattr(context, "implicit", False):
+            return spec.fn(context, *node.args) if spec.lazy else spec.fn(*[evaluate(a, context) for a in node.args])
+        if spec.lazy:  # it evaluates its own arguments: with array-class ones, all as arrays
+            return in_array_mode(context, spec.fn, context, *node.args) if spec.arrays else spec.fn(context, *node.args)
+        args = [in_array_mode(context, evaluate, a, context) if i in spec.arrays
+                else _operand(a, context) if spec.takes_values else evaluate(a, context)
+                for i, a in enumerate(node.args)]
+        return spec.fn(*args)
     except ZeroDivisionError:  # arithmetic a built-in did not guard: still a cell value, never a crash
         return CellError(DIV0, f"{node.name}: division by zero")
     except (OverflowError, ValueError):
@@ -272,7 +285,73 @@ def _binary(node: Binary, context: Context) -> Value:
         found = _range_between(node, context)
         return found if type(found) is CellError else dereference(found, context)
     # both sides even after an error on the left: an array on the right still shapes the result
-    return BINARY[node.op](evaluate(node.left, context), evaluate(node.right, context))
+    return BINARY[node.op](_operand(node.left, context), _operand(node.right, context))
+
+
+def _operand(node: Node, context: Context) -> Value:
+    """An operand or a single-value argument: in a legacy formula a reference is intersected."""
+    if getattr(context, "implicit", False) and is_reference(node):
+        return intersect(node, context)
+    return evaluate(node, context)
+
+
+def in_array_mode(context: Context, fn: Callable[..., Value], *args: Any) -> Value:
+    """``fn(*args)`` with the legacy formula's implicit intersection suspended: an array-class
+    parameter evaluates what is written in it as an array, as an array formula would
+    (``=SUMPRODUCT((A1:A9>0)*B1:B9)`` needs no Ctrl+Shift+Enter in Excel)."""
+    context.implicit = False
+    try:
+        return fn(*args)
+    finally:
+        context.implicit = True
+
+
+def intersect(node: Node, context: Context) -> Value:
+    """Excel's implicit intersection, which a legacy (not array, not dynamic) formula applies
+    where a single value is expected: a reference to a column gives its cell in the formula's
+    row, a row its cell in the formula's column, a rectangle the cell in both (#VALUE! where
+    the formula's row or column misses it). Anything that is not a reference is evaluated as
+    it is (a defined name holding an array stays an array).
+
+    >>> print(intersect(parse("=A1:A3"), SimpleContext()))
+    #VALUE! implicit intersection needs a workbook
+    """
+    found = reference_of(node, context)
+    if type(found) is Name:
+        found = _name_reference(found, context)
+    if found is None:
+        return evaluate(node, context)
+    if type(found) is CellError:
+        return found
+    bounds, position = getattr(context, "bounds", None), getattr(context, "position", None)
+    if bounds is None or position is None:
+        return CellError(VALUE, "implicit intersection needs a workbook")
+    b = bounds(found.sheet, found.ref)
+    if type(b) is CellError:
+        return b
+    r1, c1, r2, c2 = b
+    row, col = position()
+    if r1 != r2:
+        if not r1 <= row <= r2:
+            return CellError(VALUE, "the formula's row is outside the range it intersects (implicit intersection)")
+        r1 = row
+    if c1 != c2:
+        if not c1 <= col <= c2:
+            return CellError(VALUE, "the formula's column is outside the range it intersects (implicit intersection)")
+        c1 = col
+    target = anchored(found.sheet, r1, c1, r1, c1)
+    if type(node) is Ref or type(node) is Name:  # written in the formula: the order already holds its cells
+        return context.reference(target.sheet, target.ref)
+    return dereference(target, context)
+
+
+def implicit_value(node: Node, context: Context) -> Value:
+    """The value of a legacy formula's cell: implicit intersection of a reference, and of an
+    array result its top-left element, as Excel shows a formula that is not an array formula."""
+    v = intersect(node, context) if is_reference(node) else evaluate(node, context)
+    if type(v) is np.ndarray and v.size:
+        return v[0, 0]
+    return v
 
 
 _EVALUATORS: dict[type, Callable[[Any, Context], Value]] = {
@@ -280,7 +359,7 @@ _EVALUATORS: dict[type, Callable[[Any, Context], Value]] = {
     Binary: _binary,
     Call: _call,
     Ref: lambda n, c: c.reference(n.sheet, n.ref),
-    Unary: lambda n, c: UNARY[n.op](evaluate(n.operand, c)),
+    Unary: lambda n, c: UNARY[n.op](_operand(n.operand, c)),
     Name: lambda n, c: c.name(n.text),
     Array: lambda n, c: object_array(n.rows),
     Missing: lambda n, c: None,
@@ -296,15 +375,16 @@ def evaluate(node: Node, context: Context) -> Value:
     return _EVALUATORS[type(node)](node, context)
 
 
-def value_of(node: Node, context: Context) -> Value:
-    """:func:`evaluate`, with a tree too deep for Python's recursion (the parser accepts 200
-    levels; some functions take five frames a level) giving an error value, not an exception.
+def value_of(node: Node, context: Context, legacy: bool = False) -> Value:
+    """:func:`evaluate` (with ``legacy``, :func:`implicit_value`), with a tree too deep for
+    Python's recursion (the parser accepts 200 levels; some functions take five frames a
+    level) giving an error value, not an exception.
 
     >>> print(value_of(parse("=" + "SUM(" * 199 + "1" + ")" * 199), SimpleContext()))
     #VALUE! the formula nests functions too deeply to evaluate
     """
     try:
-        return evaluate(node, context)
+        return implicit_value(node, context) if legacy else evaluate(node, context)
     except RecursionError:
         return CellError(VALUE, "the formula nests functions too deeply to evaluate")
 

@@ -22,7 +22,7 @@ import numpy as np
 from ..errors import DIV0, VALUE, CellError, parse_error_text
 from .arrays import Value, as_array, shape_text
 from .coerce import compare, to_number
-from .evaluate import Context, builtin, collect, evaluate
+from .evaluate import ALL_ARGUMENTS, Context, builtin, collect, evaluate
 from .fn_lookup import wildcard
 from .nodes import Node, Ref, Name, Scalar
 
@@ -277,7 +277,7 @@ _conditional("MAXIFS", lambda v: max(v, default=0.0), True)
 _conditional("MINIFS", lambda v: min(v, default=0.0), True)
 
 
-@builtin("SUMPRODUCT", 1, None)
+@builtin("SUMPRODUCT", 1, None, arrays=ALL_ARGUMENTS)
 def sumproduct(*arrays: Value) -> Value:
     """The sum of the element-wise products of equally shaped arrays; elements that are not
     numbers count as 0, errors propagate.

@@ -80,7 +80,7 @@ def _index_value(context: Context, *nodes: Node) -> Value:
     return index(*values)
 
 
-@reference_builtin("INDEX", 2, 4, value=_index_value, inside_first=True)
+@reference_builtin("INDEX", 2, 4, value=_index_value, inside_first=True, arrays=(0,))
 def index_reference(context: Context, array: Node, row: Node, column: Node | None = None,
                     area: Node | None = None) -> Ref | CellError | None:
     """INDEX of a reference is a reference (``A1:INDEX(B:B, 3)``, ``ROW(INDEX(…))``): the cell,
@@ -290,7 +290,7 @@ def _vector_and_result(a: np.ndarray) -> tuple[list, np.ndarray]:
     return list(a[:, 0]), a[:, -1]
 
 
-@builtin("LOOKUP", 2, 3)
+@builtin("LOOKUP", 2, 3, arrays=(1, 2))
 def lookup(value: Value, vector: Value, result: Value = _ABSENT) -> Value:
     """The element of ``result`` (or of the array's last row or column) where the sorted
     ``vector`` holds the largest value not above ``value``.
@@ -371,7 +371,7 @@ def _line(a: np.ndarray) -> list | CellError:
     return list(a.flat)
 
 
-@builtin("XMATCH", 2, 4)
+@builtin("XMATCH", 2, 4, arrays=(1,))
 def xmatch(value: Value, array: Value, match_mode: Value = 0.0, search_mode: Value = 1.0) -> Value:
     """The 1-based position of ``value`` in a row or column (modes as XLOOKUP's).
 
@@ -394,7 +394,7 @@ def xmatch(value: Value, array: Value, match_mode: Value = 0.0, search_mode: Val
     return map_values(one, value)
 
 
-@builtin("XLOOKUP", 3, 6)
+@builtin("XLOOKUP", 3, 6, arrays=(1, 2))
 def xlookup(value: Value, array: Value, results: Value, if_not_found: Value = _ABSENT,
             match_mode: Value = 0.0, search_mode: Value = 1.0) -> Value:
     """The row (or column) of ``results`` where ``array`` matches ``value``; ``if_not_found``

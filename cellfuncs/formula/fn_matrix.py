@@ -31,7 +31,7 @@ def _matrix(v: Value, name: str) -> np.ndarray | CellError:
     return out
 
 
-@builtin("MMULT", 2)
+@builtin("MMULT", 2, arrays=(0, 1))
 def mmult(a: Value, b: Value) -> Value:
     """The matrix product; the columns of ``a`` must match the rows of ``b``.
 
@@ -58,7 +58,7 @@ def _square(v: Value, name: str) -> np.ndarray | CellError:
     return m
 
 
-@builtin("MDETERM", 1)
+@builtin("MDETERM", 1, arrays=(0,))
 def mdeterm(a: Value) -> Value:
     """The determinant of a square matrix.
 
@@ -73,7 +73,7 @@ def mdeterm(a: Value) -> Value:
     return float(f"{np.linalg.det(m):.15g}")
 
 
-@builtin("MINVERSE", 1)
+@builtin("MINVERSE", 1, arrays=(0,))
 def minverse(a: Value) -> Value:
     """The inverse of a square matrix; #NUM! when it is singular.
 

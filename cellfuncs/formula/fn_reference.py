@@ -291,7 +291,7 @@ def _scalar(v: Value):
     return v[0, 0] if type(v) is np.ndarray else v
 
 
-@builtin("TRANSPOSE", 1)
+@builtin("TRANSPOSE", 1, arrays=(0,))
 def transpose(array: Value) -> Value:
     """Rows as columns.
 

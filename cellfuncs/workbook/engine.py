@@ -120,6 +120,7 @@ class _Context:
         self.dr = 0
         self.dc = 0
         self.row = self.col = 1  # the formula cell
+        self.implicit = False  # a legacy formula's implicit intersection (see formula.evaluate.intersect)
 
     def function(self, name: str) -> Callable[..., Any] | None:
         fn = self.functions.get(name)
@@ -858,7 +859,9 @@ class Recalc:
         ctx.sheet, ctx.dr, ctx.dc, ctx.row, ctx.col = fc.sheet, fc.row - t.row, fc.col - t.col, fc.row, fc.col
         self.budget.start()
         self.current = fi
-        value = value_of(t.ast, ctx)
+        ctx.implicit = legacy = fc.kind == "normal"  # a plain formula: Excel's legacy evaluation
+        value = value_of(t.ast, ctx, legacy)
+        ctx.implicit = False
         self.current = None
         self._store(fi, value)
 

@@ -286,7 +286,7 @@ def _new_id(data: bytes, part: str) -> bytes:
     return b"rId%d" % n
 
 
-class _PackageEdit:
+class PackageEdit:
     def __init__(self, pkg: Package, book: Book):
         self.pkg, self.book = pkg, book
         self.replaced: dict[str, bytes] = {}
@@ -342,7 +342,7 @@ def _relative(source: str, target: str) -> str:
     return posixpath.relpath(target, posixpath.dirname(source) or ".")
 
 
-def _metadata(edit: _PackageEdit, book: Book) -> bytes:
+def dynamic_record(edit: PackageEdit, book: Book) -> bytes:
     """The cm value of a dynamic-array cell, adding the record to xl/metadata.xml if needed."""
     if book.dynamic_cm is not None:
         return book.dynamic_cm.encode()
@@ -402,7 +402,7 @@ def _metadata(edit: _PackageEdit, book: Book) -> bytes:
     return b"%d" % (n_bk + 1)
 
 
-def _custom_properties(edit: _PackageEdit) -> None:
+def _custom_properties(edit: PackageEdit) -> None:
     """Record the engine in the custom document properties."""
     root_rels: list[Rel] = relationships(edit.pkg, "")
     rel = next((r for r in root_rels if r.kind == "custom-properties" and not r.external), None)
@@ -441,10 +441,10 @@ def _custom_properties(edit: _PackageEdit) -> None:
 
 def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], set[str], list[tuple[str, bytes]]]:
     """The members to replace, remove and add for the recalculated workbook."""
-    edit = _PackageEdit(pkg, book)
+    edit = PackageEdit(pkg, book)
     cm = None
     if any(is_dynamic(engine, fi) for fi in range(len(engine.cells))):
-        cm = _metadata(edit, book)
+        cm = dynamic_record(edit, book)
     for sheet in book.sheets:
         if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index] or sheet.scan.not_finite):
             continue
