@@ -16,10 +16,12 @@ from typing import Any, Callable, Iterable, Mapping, Protocol
 
 import numpy as np
 
-from ..errors import DIV0, NAME, NUM, REF, VALUE, CellError, internal_error, strict
+from ..errors import CALC, DIV0, NAME, NUM, REF, VALUE, CellError, internal_error, strict
+from .a1 import column_letters
 from .arrays import Value, as_value, object_array
 from .budget import charge
-from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary
+from .lambdas import OMITTED, Lambda, param_key
+from .nodes import Array, Binary, Call, Invoke, Literal, Missing, Name, Node, Ref, Scalar, Unary
 from .operators import BINARY, UNARY
 from .parser import parse
 
@@ -89,6 +91,7 @@ class Builtin:
     reference: Callable[..., Node | CellError | None] | None = None
     takes_values: bool = False  # every parameter a single value (see :func:`intersect`)
     arrays: frozenset[int] = frozenset()  # array-class parameters (see :func:`in_array_mode`)
+    place_only: bool = False  # reads where a reference argument is, not its cells (ROW, FORMULATEXT)
 
 
 BUILTINS: dict[str, Builtin] = {}
@@ -96,11 +99,12 @@ ALL_ARGUMENTS = frozenset(range(255))  # Excel's most arguments
 
 
 def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = False,
-            arrays: Iterable[int] = ()) -> Callable:
+            arrays: Iterable[int] = (), place_only: bool = False) -> Callable:
     """Register the decorated function as built-in ``name`` (``max_args`` defaults to ``min_args``).
     ``arrays`` holds the positions (from 0) of its array-class parameters, ``ALL_ARGUMENTS``
     for all: a legacy formula evaluates what is written there as an array (SUMPRODUCT,
     LOOKUP's vectors, INDEX's array), where elsewhere it intersects ranges with its cell.
+    ``place_only``: a reference written as an argument is not read (ROW(A1) in A1 is no loop).
 
     >>> @builtin("HALF", 1)
     ... def _half(x):
@@ -112,7 +116,8 @@ def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = Fa
 
     def register(fn: Callable[..., Value]) -> Callable[..., Value]:
         BUILTINS[name] = Builtin(fn, min_args, min_args if max_args == -1 else max_args, lazy,
-                                 takes_values=getattr(fn, "takes_values", False), arrays=frozenset(arrays))
+                                 takes_values=getattr(fn, "takes_values", False), arrays=frozenset(arrays),
+                                 place_only=place_only)
         return fn
 
     return register
@@ -147,7 +152,12 @@ def reference_of(node: Node, context: Context) -> Ref | Name | CellError | None:
     reference a function returns (``OFFSET(A1,1,0)``) or a range between two of them
     (``A1:INDEX(B:B,3)``); None for an argument that gives a value."""
     kind = type(node)
-    if kind is Ref or kind is Name:
+    if kind is Name:
+        bound = _bound(node.text, context)
+        if bound is _UNSET:
+            return node
+        return bound if type(bound) is Ref else None
+    if kind is Ref:
         return node
     if kind is Call:
         spec = BUILTINS.get(node.name)
@@ -195,16 +205,8 @@ def _name_reference(name: Name, context: Context) -> Ref | CellError | None:
 
 def anchored(sheet: str | None, r1: int, c1: int, r2: int, c2: int) -> Ref:
     """The reference to rows r1..r2 and columns c1..c2, every part anchored (``$A$1:$B$2``)."""
-    first = f"${_letters(c1)}${r1}"
-    return Ref(sheet, first if (r1, c1) == (r2, c2) else f"{first}:${_letters(c2)}${r2}")
-
-
-def _letters(col: int) -> str:
-    out = ""
-    while col:
-        col, rest = divmod(col - 1, 26)
-        out = chr(65 + rest) + out
-    return out
+    first = f"${column_letters(c1)}${r1}"
+    return Ref(sheet, first if (r1, c1) == (r2, c2) else f"{first}:${column_letters(c2)}${r2}")
 
 
 def dereference(found: Ref | Name, context: Context) -> Value:
@@ -231,8 +233,14 @@ def _arity_error(name: str, spec: Builtin, count: int) -> CellError:
 def _call(node: Call, context: Context) -> Value:
     spec = BUILTINS.get(node.name)
     if spec is None:
+        bound = _bound(node.name, context)
+        if bound is not _UNSET:
+            return call_lambda(bound, node.args, context)
         fn = context.function(node.name)
         if fn is None:
+            named = context.name(node.name)
+            if type(named) is Lambda:
+                return call_lambda(named, node.args, context)
             return CellError(NAME, f"unknown function {node.name}")
         args = [evaluate(a, context) for a in node.args]
         over = _charge_call(args)
@@ -253,13 +261,20 @@ def _call(node: Call, context: Context) -> Value:
     if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
         return _arity_error(node.name, spec, count)
     try:
-        if not getattr(context, "implicit", False):
-            return spec.fn(context, *node.args) if spec.lazy else spec.fn(*[evaluate(a, context) for a in node.args])
+        implicit = getattr(context, "implicit", False)
         if spec.lazy:  # it evaluates its own arguments: with array-class ones, all as arrays
-            return in_array_mode(context, spec.fn, context, *node.args) if spec.arrays else spec.fn(context, *node.args)
-        args = [in_array_mode(context, evaluate, a, context) if i in spec.arrays
-                else _operand(a, context) if spec.takes_values else evaluate(a, context)
-                for i, a in enumerate(node.args)]
+            if implicit and spec.arrays:
+                return in_array_mode(context, spec.fn, context, *node.args)
+            return spec.fn(context, *node.args)
+        if not implicit:
+            args = [evaluate(a, context) for a in node.args]
+        else:
+            args = [in_array_mode(context, evaluate, a, context) if i in spec.arrays
+                    else _operand(a, context) if spec.takes_values else evaluate(a, context)
+                    for i, a in enumerate(node.args)]
+        for a in args:
+            if type(a) is Lambda:
+                return _uncalled()
         return spec.fn(*args)
     except ZeroDivisionError:  # arithmetic a built-in did not guard: still a cell value, never a crash
         return CellError(DIV0, f"{node.name}: division by zero")
@@ -285,7 +300,85 @@ def _binary(node: Binary, context: Context) -> Value:
         found = _range_between(node, context)
         return found if type(found) is CellError else dereference(found, context)
     # both sides even after an error on the left: an array on the right still shapes the result
-    return BINARY[node.op](_operand(node.left, context), _operand(node.right, context))
+    left, right = _operand(node.left, context), _operand(node.right, context)
+    if type(left) is Lambda or type(right) is Lambda:
+        return _uncalled()
+    return BINARY[node.op](left, right)
+
+
+# ---- functions as values (see formula.lambdas) ---------------------------------------------
+def _uncalled() -> CellError:
+    return CellError(CALC, "a function (LAMBDA) is used as a value without being called")
+
+
+def _bound(text: str, context: Context) -> Any:
+    """What a LET or a call bound to ``text`` in the scope being evaluated, else _UNSET."""
+    scope = getattr(context, "scope", None)
+    return _UNSET if not scope else scope.get(param_key(text), _UNSET)
+
+
+def _name(node: Name, context: Context) -> Value:
+    bound = _bound(node.text, context)
+    if bound is _UNSET:
+        return context.name(node.text)
+    if type(bound) is Ref:
+        return dereference(bound, context)
+    return None if bound is OMITTED else bound
+
+
+def bind(node: Node, context: Context) -> Any:
+    """What a LET name or a parameter is bound to: the reference (anchored where the formula
+    sits) when ``node`` is written as one, so ROW, OFFSET and SUM's reference rules still
+    apply through the name; otherwise the value. A missing argument is OMITTED."""
+    if type(node) is Missing:
+        return OMITTED
+    if is_reference(node):
+        found = reference_of(node, context)
+        if type(found) is Name:
+            found = _name_reference(found, context)
+        if type(found) is CellError:
+            return found
+        bounds = getattr(context, "bounds", None)
+        if type(found) is Ref and bounds is not None:
+            b = bounds(found.sheet, found.ref)
+            if type(b) is not CellError:
+                return anchored(found.sheet, *b)
+    return evaluate(node, context)
+
+
+def with_scope(context: Context, scope: Mapping[str, Any], node: Node,
+               how: Callable[[Node, Context], Any] | None = None) -> Any:
+    """``how(node, context)`` (by default its value) with ``scope`` as the names bound."""
+    saved = getattr(context, "scope", None)
+    context.scope = scope
+    try:
+        return (how or evaluate)(node, context)
+    finally:
+        context.scope = saved
+
+
+def apply_lambda(fn: Any, values: list[Any]) -> Value:
+    """Call function value ``fn`` with its arguments already bound (see :func:`bind`)."""
+    if type(fn) is CellError:
+        return fn
+    if type(fn) is not Lambda:
+        return CellError(VALUE, "only a function (LAMBDA) can be called")
+    if len(values) > len(fn.params):
+        return CellError(VALUE, f"the function takes {len(fn.params)} arguments, not {len(values)}")
+    if any(p not in fn.optional for p in fn.params[len(values):]):
+        return CellError(VALUE, f"the function takes {len(fn.params)} arguments, not {len(values)}")
+    scope = dict(fn.scope)
+    scope.update(zip(fn.params, values + [OMITTED] * (len(fn.params) - len(values))))
+    return with_scope(fn.home, scope, fn.body)
+
+
+def call_lambda(fn: Any, args: tuple[Node, ...], context: Context) -> Value:
+    """Call function value ``fn`` with the arguments written in the calling formula."""
+    return apply_lambda(fn, [bind(a, context) for a in args])
+
+
+def _invoke(node: Invoke, context: Context) -> Value:
+    return call_lambda(evaluate(node.callee, context), node.args, context)
 
 
 def _operand(node: Node, context: Context) -> Value:
@@ -360,9 +453,10 @@ _EVALUATORS: dict[type, Callable[[Any, Context], Value]] = {
     Call: _call,
     Ref: lambda n, c: c.reference(n.sheet, n.ref),
     Unary: lambda n, c: UNARY[n.op](_operand(n.operand, c)),
-    Name: lambda n, c: c.name(n.text),
+    Name: _name,
     Array: lambda n, c: object_array(n.rows),
     Missing: lambda n, c: None,
+    Invoke: _invoke,
 }
 
 
@@ -375,18 +469,22 @@ def evaluate(node: Node, context: Context) -> Value:
     return _EVALUATORS[type(node)](node, context)
 
 
-def value_of(node: Node, context: Context, legacy: bool = False) -> Value:
+def value_of(node: Node, context: Context, legacy: bool = False, may_be_function: bool = False) -> Value:
     """:func:`evaluate` (with ``legacy``, :func:`implicit_value`), with a tree too deep for
     Python's recursion (the parser accepts 200 levels; some functions take five frames a
-    level) giving an error value, not an exception.
+    level) giving an error value, not an exception. A function value (LAMBDA) not called is
+    #CALC! unless ``may_be_function`` (a defined name may hold one).
 
     >>> print(value_of(parse("=" + "SUM(" * 199 + "1" + ")" * 199), SimpleContext()))
     #VALUE! the formula nests functions too deeply to evaluate
+    >>> print(value_of(parse("=LAMBDA(x, x+1)"), SimpleContext()))
+    #CALC! a function (LAMBDA) is used as a value without being called
     """
     try:
-        return implicit_value(node, context) if legacy else evaluate(node, context)
+        v = implicit_value(node, context) if legacy else evaluate(node, context)
     except RecursionError:
         return CellError(VALUE, "the formula nests functions too deeply to evaluate")
+    return _uncalled() if type(v) is Lambda and not may_be_function else v
 
 
 def compute(formula: str, context: Context | None = None) -> Value:

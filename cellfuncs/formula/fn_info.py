@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import CODES, NA, CellError
+from ..errors import CODES, NA, VALUE, CellError
 from .arrays import Value, elementwise, numeric
 from .evaluate import builtin
 from .nodes import Scalar
@@ -30,10 +30,13 @@ _test("ISBLANK", lambda v: v is None, "TRUE for an empty cell (not for empty tex
 
 
 def _parity(odd: bool):
-    def test(x: float) -> bool:
-        return (int(x) % 2 == 1) == odd  # Excel truncates first: ISODD(-3.7) is TRUE
+    numbers = numeric(lambda x: (int(x) % 2 == 1) == odd)  # Excel truncates first: ISODD(-3.7) is TRUE
 
-    return numeric(test)
+    def test(x: Scalar) -> Scalar:
+        # TRUE and FALSE are not numbers here (#VALUE!), as Excel's stored values show
+        return CellError(VALUE, "ISODD and ISEVEN take numbers, not TRUE or FALSE") if type(x) is bool else numbers(x)
+
+    return elementwise(test)
 
 
 builtin("ISEVEN", 1)(_parity(False))

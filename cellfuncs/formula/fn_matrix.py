@@ -113,6 +113,8 @@ def sequence(rows: Value, columns: Value = 1.0, start: Value = 1.0, step: Value 
     >>> sequence(3.0).tolist()
     [[1.0], [2.0], [3.0]]
     """
+    if any(type(v) is np.ndarray for v in (rows, columns, start, step)):
+        return CellError(VALUE, "SEQUENCE takes single numbers (an array of arrays is not a value)")
     args = [to_number(1.0 if v is None else v) for v in (rows, columns, start, step)]
     for x in args:
         if type(x) is CellError:

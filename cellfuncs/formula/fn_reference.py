@@ -19,6 +19,7 @@ import re
 import numpy as np
 
 from ..errors import NA, REF, VALUE, CellError
+from .a1 import MAX_COL, MAX_ROW
 from .arrays import Value, as_array, map_values
 from .coerce import to_bool, to_number, to_text
 from .evaluate import Context, anchored, builtin, evaluate, reference_builtin, reference_of
@@ -26,7 +27,6 @@ from .nodes import Missing, Name, Node, Ref
 from .parser import FormulaSyntaxError, parse
 
 _R1C1 = re.compile(r"R(\[-?\d+\]|\d+)?C(\[-?\d+\]|\d+)?\Z")
-_MAX_ROW, _MAX_COL = 1048576, 16384
 
 
 def found_reference(context: Context, node: Node) -> Ref | CellError | None:
@@ -39,10 +39,14 @@ def found_reference(context: Context, node: Node) -> Ref | CellError | None:
     return found
 
 
-def _bounds(context: Context, node: Node) -> tuple[int, int, int, int] | CellError:
+def required_reference(context: Context, node: Node) -> Ref | CellError:
+    """:func:`found_reference`, with an argument that gives a value an error."""
     found = found_reference(context, node)
-    if found is None:
-        return CellError(VALUE, "the argument must be a reference")
+    return CellError(VALUE, "the argument must be a reference") if found is None else found
+
+
+def _bounds(context: Context, node: Node) -> tuple[int, int, int, int] | CellError:
+    found = required_reference(context, node)
     if type(found) is CellError:
         return found
     bounds = getattr(context, "bounds", None)
@@ -72,7 +76,7 @@ def _numbering(name: str, axis: int) -> None:
         return out
 
     fn.__doc__ = f"{name}([reference]): the {name.lower()} number(s) of a reference, or of the formula's cell."
-    builtin(name, 0, 1, lazy=True)(fn)
+    builtin(name, 0, 1, lazy=True, place_only=True)(fn)
 
 
 _numbering("ROW", 0)
@@ -90,14 +94,14 @@ def _size(name: str, axis: int) -> None:
         return float(as_array(v).shape[axis])
 
     fn.__doc__ = f"{name}(array): how many {name.lower()} a reference or array has."
-    builtin(name, 1, lazy=True)(fn)
+    builtin(name, 1, lazy=True, place_only=True)(fn)
 
 
 _size("ROWS", 0)
 _size("COLUMNS", 1)
 
 
-@builtin("SHEET", 0, 1, lazy=True)
+@builtin("SHEET", 0, 1, lazy=True, place_only=True)
 def sheet(context: Context, node: Node | None = None) -> Value:
     """The position of a sheet in the workbook (1 for the first): of the formula's own sheet,
     of a reference's sheet, or of the sheet a text names (#N/A if none does).
@@ -123,7 +127,7 @@ def sheet(context: Context, node: Node | None = None) -> Value:
     return CellError(NA, "SHEET takes a reference or the name of a sheet") if found is None else float(found)
 
 
-@builtin("SHEETS", 0, 1, lazy=True)
+@builtin("SHEETS", 0, 1, lazy=True, place_only=True)
 def sheets(context: Context, node: Node | None = None) -> Value:
     """How many sheets a reference spans (1), or without one how many the workbook has."""
     count = getattr(context, "sheet_count", None)
@@ -155,7 +159,7 @@ def _r1c1(text: str, context: Context) -> str | CellError:
             return CellError(REF, f"{text} is not an R1C1 reference")
         r = row if m.group(1) is None else (row + int(m.group(1)[1:-1]) if m.group(1)[0] == "[" else int(m.group(1)))
         c = col if m.group(2) is None else (col + int(m.group(2)[1:-1]) if m.group(2)[0] == "[" else int(m.group(2)))
-        if not (1 <= r <= _MAX_ROW and 1 <= c <= _MAX_COL):
+        if not (1 <= r <= MAX_ROW and 1 <= c <= MAX_COL):
             return CellError(REF, f"{text} is off the sheet")
         corners.append((r, c))
     (r1, c1), (r2, c2) = corners[0], corners[-1]
@@ -257,7 +261,7 @@ def offset(context: Context, base: Node, rows: Node, cols: Node, height: Node | 
         top, bottom = top + h + 1, top
     if w < 0:
         left, last = left + w + 1, left
-    if top < 1 or left < 1 or bottom > _MAX_ROW or last > _MAX_COL:
+    if top < 1 or left < 1 or bottom > MAX_ROW or last > MAX_COL:
         return CellError(REF, "OFFSET's result is off the sheet")
     return anchored(found.sheet, top, left, bottom, last)
 

@@ -79,7 +79,15 @@ class Call:
     prefix: str = ""
 
 
-Node = Union[Literal, Array, Missing, Ref, Name, Unary, Binary, Call]
+@dataclass(frozen=True, slots=True)
+class Invoke:
+    """A function value called where it is written: ``LAMBDA(x, x+1)(5)``."""
+
+    callee: Node
+    args: tuple[Node, ...]
+
+
+Node = Union[Literal, Array, Missing, Ref, Name, Unary, Binary, Call, Invoke]
 
 
 def children(node: Node) -> tuple[Node, ...]:
@@ -94,6 +102,8 @@ def children(node: Node) -> tuple[Node, ...]:
         return (node.left, node.right)
     if isinstance(node, Call):
         return node.args
+    if isinstance(node, Invoke):
+        return (node.callee, *node.args)
     return ()
 
 

@@ -19,8 +19,9 @@ from functools import lru_cache
 from typing import NamedTuple
 
 from ..errors import parse_error_text
+from .a1 import MAX_COL, MAX_ROW, column_number
 from .budget import MAX_FORMULA_TEXT
-from .nodes import Array, Binary, Call, Literal, Missing, Name, Node, Ref, Scalar, Unary, children
+from .nodes import Array, Binary, Call, Invoke, Literal, Missing, Name, Node, Ref, Scalar, Unary, children
 
 _INFIX = {"=": 1, "<>": 1, "<": 1, ">": 1, "<=": 1, ">=": 1, "&": 2, "+": 3, "-": 3, "*": 4, "/": 4, "^": 5,
           ":": 9}  # the range operator binds tightest: A1:INDEX(B:B,3)*2
@@ -38,7 +39,6 @@ _CELL = r"\$?([A-Za-z]{1,3})\$?([0-9]{1,7})"
 _COLUMN = r"\$?([A-Za-z]{1,3})"
 _ROW = r"\$?([0-9]{1,7})"
 _AREA = re.compile(rf"{_CELL}(?::{_CELL})?\Z|{_COLUMN}:{_COLUMN}\Z|{_ROW}:{_ROW}\Z")
-_MAX_COLUMN, _MAX_ROW = 16384, 1048576
 
 
 class FormulaSyntaxError(ValueError):
@@ -52,17 +52,10 @@ class _Tok(NamedTuple):
     spaced: bool  # whitespace came just before
 
 
-def _column_number(letters: str) -> int:
-    n = 0
-    for ch in letters.upper():
-        n = 26 * n + ord(ch) - 64
-    return n
-
-
 def _valid_area(m: re.Match) -> bool:
     columns = [g for g in (m.group(1), m.group(3), m.group(5), m.group(6)) if g]
     rows = [g for g in (m.group(2), m.group(4), m.group(7), m.group(8)) if g]
-    return all(_column_number(c) <= _MAX_COLUMN for c in columns) and all(1 <= int(r) <= _MAX_ROW for r in rows)
+    return all(column_number(c) <= MAX_COL for c in columns) and all(1 <= int(r) <= MAX_ROW for r in rows)
 
 
 def _operand(text: str) -> Node:
@@ -109,6 +102,7 @@ class _Parser:
     def __init__(self, tokens: list[_Tok]):
         self.tokens = tokens
         self.pos = 0
+        self.invoking = 0  # inside an Invoke's arguments, where a comma separates them
 
     def peek(self) -> _Tok | None:
         return self.tokens[self.pos] if self.pos < len(self.tokens) else None
@@ -149,11 +143,37 @@ class _Parser:
                     break
                 self.pos += 1
                 left = Binary(tok.value, left, self.expression(power + 1))
+            elif tok.type == "OPERATOR-INFIX" and tok.value == "," and self.invoking:
+                break
             elif tok.type == "OPERATOR-INFIX":
                 raise self.unexpected(tok)
+            elif tok.type == "PAREN" and tok.subtype == "OPEN" and type(left) in (Call, Invoke):
+                self.pos += 1  # a function a call returned, called: LAMBDA(x, x+1)(5)
+                left = Invoke(left, self.invocation())
             else:
                 break
         return left
+
+    def invocation(self) -> tuple[Node, ...]:
+        """The arguments of an :class:`Invoke` after its ``(``; the tokenizer reads the commas
+        between them as union operators."""
+        args: list[Node] = []
+        while True:
+            tok = self.peek()
+            if tok is not None and (tok.value == "," or (tok.type, tok.subtype) == ("PAREN", "CLOSE")):
+                if args or tok.value == ",":
+                    args.append(Missing())
+            else:
+                self.invoking += 1
+                try:
+                    args.append(self.expression())
+                finally:
+                    self.invoking -= 1
+            tok = self.next()
+            if (tok.type, tok.subtype) == ("PAREN", "CLOSE"):
+                return tuple(args)
+            if tok.value != ",":
+                raise self.unexpected(tok)
 
     def prefix(self) -> Node:
         tok = self.next()

@@ -42,6 +42,7 @@ from ..errors import CALC, NA, NAME, REF, SPILL, CellError
 from ..formula import Call, Ref, Value, value_of, walk
 from ..formula.budget import active, charge
 from .areas import AreaIndex, Overlap
+from .formula_text import formula_at
 from .graph import components, cycle
 from .limits import DEFAULTS, Limits, option
 from .model import Book, Sheet
@@ -172,6 +173,15 @@ class _Context:
             return found
         self.engine.found_read(*found)
         return self.reference(sheet, ref)
+
+    def formula_text(self, sheet: str | None, ref: str) -> str | None | CellError:
+        """The formula of a reference's first cell as the formula bar shows it (FORMULATEXT,
+        ISFORMULA); None if it holds none."""
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return found
+        s, a = found
+        return formula_at(self.engine.book.sheets[s].scan, self.engine.shared_firsts.get(s, {}), a.r1, a.c1)
 
     def name_reference(self, text: str) -> Ref | None:
         """The reference a defined name stands for when it is one reference (``=Data!$A$1:$A$9``)."""
@@ -334,6 +344,7 @@ class Recalc:
         self.name_values: dict[tuple[tuple[int | None, str], int], Value] = {}  # (name, sheet using it) -> value
         n = len(book.sheets)
         self.cells: list[FormulaCell] = []
+        self.shared_firsts: dict[int, dict[str, tuple[int, int]]] = {}  # sheet -> si -> first cell
         self.at: list[dict[tuple[int, int], int]] = [{} for _ in range(n)]
         self.constants: list[dict] = [{} for _ in range(n)]
         self.stored: list[dict] = [{} for _ in range(n)]  # cached values inside stored array ranges
@@ -356,7 +367,8 @@ class Recalc:
                 continue
             s = sheet.index
             arrays = self._array_ranges(sheet, declared)
-            masters = {f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
+            masters = self.shared_firsts[s] = {
+                f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
             for (row, col), f in scan.formulas.items():
                 if f.kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
                     if f.cached is not None:
@@ -481,7 +493,7 @@ class Recalc:
         if t.ast is None:
             return t.error
         ctx = _NameContext(self, sheet, cell)
-        value = value_of(t.ast, ctx)
+        value = value_of(t.ast, ctx, may_be_function=True)
         return _POSITIONAL if ctx.positional and cell is None else value
 
     # ---- values ----------------------------------------------------------------------

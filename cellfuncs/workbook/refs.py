@@ -16,8 +16,9 @@ import re
 from functools import lru_cache
 from typing import NamedTuple
 
-MAX_ROW = 1048576
-MAX_COL = 16384
+from ..formula.a1 import MAX_COL, MAX_ROW, column_letters, column_number
+
+__all__ = ["MAX_COL", "MAX_ROW", "Area", "address", "area", "column_letters", "column_number", "shifted"]
 
 _CELL = r"(\$?)([A-Za-z]{1,3})(\$?)([0-9]{1,7})"
 _AREA = re.compile(
@@ -53,32 +54,6 @@ class Area(NamedTuple):
 
     def meets(self, other: Area) -> bool:
         return self.r1 <= other.r2 and other.r1 <= self.r2 and self.c1 <= other.c2 and other.c1 <= self.c2
-
-
-def column_number(letters: str) -> int:
-    """``A`` is 1, ``AA`` 27.
-
-    >>> column_number("XFD")
-    16384
-    """
-    n = 0
-    for ch in letters.upper():
-        n = 26 * n + ord(ch) - 64
-    return n
-
-
-@lru_cache(maxsize=20000)
-def column_letters(n: int) -> str:
-    """The letters of column ``n``.
-
-    >>> column_letters(28)
-    'AB'
-    """
-    out = ""
-    while n:
-        n, rest = divmod(n - 1, 26)
-        out = chr(65 + rest) + out
-    return out
 
 
 def address(row: int, col: int) -> str:

@@ -25,6 +25,7 @@ from dataclasses import dataclass
 
 from ..errors import NAME, REF, CellError
 from ..formula import BUILTINS, Array, Call, FormulaSyntaxError, Name, Node, Ref, parse, walk
+from ..formula.nodes import children
 from ..formula.budget import MAX_FORMULA_TEXT
 from .refs import MAX_COL, MAX_ROW, Area, area, column_number
 
@@ -137,6 +138,22 @@ def _batchable(ast: Node, refs: tuple) -> bool:
     return all(a.single for _, a in refs)
 
 
+def _read_refs(ast: Node) -> list[Ref]:
+    """The references whose cells the formula reads: all but those written straight into a
+    function that asks only where they are (ROW, ROWS, FORMULATEXT, ...)."""
+    out, stack = [], [ast]
+    while stack:
+        n = stack.pop()
+        if isinstance(n, Ref):
+            out.append(n)
+            continue
+        kids = children(n)
+        if isinstance(n, Call) and n.name in BUILTINS and BUILTINS[n.name].place_only:
+            kids = tuple(k for k in kids if not isinstance(k, Ref))
+        stack += reversed(kids)
+    return out
+
+
 def build(text: str, row: int, col: int) -> Template:
     """Parse ``text`` as the formula of the cell at (row, col)."""
     try:
@@ -145,8 +162,10 @@ def build(text: str, row: int, col: int) -> Template:
         if len(text) > _LONGEST:
             return Template(None, CellError(NAME, f"the formula cannot be evaluated: {exc}"), row, col, (), (), False)
         return Template(None, _unparsed(text, exc), row, col, (), (), False)
-    refs = tuple((n.sheet, area(n.ref)) for n in walk(ast) if isinstance(n, Ref))
-    names = tuple(n.text for n in walk(ast) if isinstance(n, Name))
+    refs = tuple((n.sheet, area(n.ref)) for n in _read_refs(ast))
+    # a call of a function the registry lacks may be a defined name holding a LAMBDA
+    names = tuple(n.text for n in walk(ast) if isinstance(n, Name)) + tuple(
+        n.name for n in walk(ast) if isinstance(n, Call) and n.name not in BUILTINS)
     return Template(ast, None, row, col, refs, names, _batchable(ast, refs))
 
 
