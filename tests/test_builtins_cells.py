@@ -51,3 +51,8 @@ def test_formula_text_and_references_in_a_workbook(tmp_path):
 def test_reference_workbooks(name):
     score = conformance.score_workbook(_reference(name), name.split("/")[0])
     assert not score.failed, score.failed[:5]
+
+
+def test_the_spill_operator_needs_a_workbook():
+    # tests/test_references.py checks ANCHORARRAY( (the file's spelling of A1#) in workbooks
+    assert compute("=SUM(ANCHORARRAY(A1))").code == "#REF!"

@@ -12,9 +12,11 @@ from __future__ import annotations
 
 import openpyxl
 import pytest
+from openpyxl.worksheet.formula import ArrayFormula
 
 from cellfuncs.formula import parse
 from cellfuncs.workbook import conformance
+from cellfuncs.workbook.authoring import save, spill
 from test_recalc import cli, values
 from test_tables import _reference
 
@@ -92,9 +94,40 @@ def test_a_found_reference_to_a_formula_cell_waits_for_it(tmp_path):
     assert ws["A39"].value == 39 and ws["C1"].value == 780
 
 
+def test_the_intersection_operator(tmp_path):
+    """A space between references stands for the cells both hold (Microsoft Support,
+    "Calculation operators and precedence": =SUM(B7:D7 C6:C8), from memory); none is #NULL!."""
+    cells = {f"{c}{r}": float(10 * r + i) for i, c in enumerate("BCD", start=1) for r in (6, 7, 8)}
+    cells.update({"A1": "=SUM(B7:D7 C6:C8)", "A2": "=B6:D8 C:C 7:7", "A3": "=B6:B8 D6:D8", "A4": "=ROWS(B6:D8 B7:D8)",
+                  "A5": "=SUM(OFFSET(B6,0,0,3,3) D:D)"})
+    ws = _recalc(tmp_path, cells)
+    assert ws["A1"].value == 72 and ws["A2"].value == 72 and ws["A3"].value == "#NULL!" and ws["A4"].value == 2
+    assert ws["A5"].value == 63 + 73 + 83
+    assert parse("=A1:B2 B2:C3+1").op == "+"  # the space binds tighter than arithmetic
+
+
+def test_the_spill_operator(tmp_path):
+    """``A1#`` (written ANCHORARRAY(A1) in the file) is the range A1's formula spilled over; a
+    legacy array formula's range counts (Excel's stored values in IronCalc's spill-operator
+    sheet show both); a cell that did not spill is #REF!."""
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "S"
+    spill(ws, "A1", "=SEQUENCE(4)")
+    ws["B1"] = ArrayFormula("B1:B2", "=7")
+    ws["C1"], ws["C2"] = "=SUM(_xlfn.ANCHORARRAY(A1))", "=SUM(_xlfn.ANCHORARRAY(B1))"
+    ws["C3"], ws["C4"] = "=ROWS(_xlfn.ANCHORARRAY(A1))", "=SUM(_xlfn.ANCHORARRAY(C1))"
+    save(wb, tmp_path / "spill.xlsx")
+    cli(str(tmp_path / "spill.xlsx"), "--in-place")
+    got = values(tmp_path / "spill.xlsx")
+    assert [got[f"C{r}"].value for r in range(1, 5)] == [10, 14, 4, "#REF!"]
+
+
 @pytest.mark.parametrize("name", [
+    "ironcalc/xlsx_tests_calc_tests_spill_operator.xlsx",
     "ironcalc/xlsx_tests_calc_tests_range_operator.xlsx",
     "poi/test-data_spreadsheet_StructuredRefs-lots-with-lookups.xlsx",
+    "poi/test-data_spreadsheet_Intersection-52111-xssf.xlsx",
 ])
 def test_reference_workbooks_reproduce_excels_values(name):
     score = conformance.score_workbook(_reference(name), name.split("/")[0])

@@ -58,7 +58,7 @@ def test_shapes_that_cannot_be_evaluated_column_wise():
 
 def test_unparsable_formulas_become_error_values():
     t = Templates()
-    assert t.get("=A1 B1", 1, 3).error.code == "#NAME?"
+    assert t.get("=A1 1", 1, 3).error.code == "#NAME?"  # a value after a value, no operator between
     assert t.get("='C:\\x\\[Book.xlsx]S'!A1", 1, 3).error.code == "#REF!"
     assert t.get("=Excel|'[Book1]Sheet1'!A1", 1, 3).error.code == "#REF!"
 

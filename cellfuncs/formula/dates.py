@@ -1,7 +1,10 @@
-"""Excel's date serial numbers (the 1900 date system) and the date and time texts it reads.
+"""Excel's date serial numbers and the date and time texts it reads.
 
-Day 1 is 1900-01-01. Excel keeps Lotus 1-2-3's 29 February 1900 as day 60, so from
-1 March 1900 on the serial is the day count from 1899-12-30; day 0 reads as 1900-01-00.
+In the 1900 date system (the default) day 1 is 1900-01-01. Excel keeps Lotus 1-2-3's
+29 February 1900 as day 60, so from 1 March 1900 on the serial is the day count from
+1899-12-30; day 0 reads as 1900-01-00. A workbook may use the 1904 date system instead
+(day 0 is 1904-01-01, 1,462 days later): recalculation runs inside :func:`date_system`, and
+:func:`serial`, :func:`ymd` and :func:`in_1900` follow it.
 
 >>> serial(2024, 1, 2), serial(1900, 2, 29), serial(1900, 3, 1), ymd(45293.0), ymd(60.0)
 (45293, 60, 61, (2024, 1, 2), (1900, 2, 29))
@@ -13,6 +16,9 @@ from __future__ import annotations
 
 import datetime as dt
 import re
+from contextlib import contextmanager
+from contextvars import ContextVar
+from typing import Iterator
 
 LAST_SERIAL = 2958465  # 9999-12-31
 _EPOCH = dt.date(1899, 12, 30)
@@ -20,17 +26,41 @@ _MONTHS = {m: i for i, m in enumerate(
     ["jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct", "nov", "dec"], start=1)}
 
 
+_1904_SHIFT = 1462  # 1904-01-01 is day 1462 of the 1900 system
+_SHIFT: ContextVar[int] = ContextVar("date_shift", default=0)
+
+
+@contextmanager
+def date_system(is_1904: bool) -> Iterator[None]:
+    """Serials count in the 1904 date system inside the block when ``is_1904``.
+
+    >>> with date_system(True):
+    ...     serial(2024, 1, 2), ymd(0.0)
+    (43831, (1904, 1, 1))
+    """
+    token = _SHIFT.set(_1904_SHIFT if is_1904 else 0)
+    try:
+        yield
+    finally:
+        _SHIFT.reset(token)
+
+
+def in_1900(x: float) -> float:
+    """A serial of the date system in use as the 1900 system's serial (for weekdays)."""
+    return x + _SHIFT.get()
+
+
 def serial(year: int, month: int, day: int) -> int:
     """The serial of a calendar date (or of 29 February 1900, day 60)."""
     if (year, month, day) == (1900, 2, 29):
-        return 60
+        return 60 - _SHIFT.get()
     n = (dt.date(year, month, day) - _EPOCH).days
-    return n - 1 if n <= 60 else n  # before 1 March 1900 Excel counts one day less
+    return (n - 1 if n <= 60 else n) - _SHIFT.get()  # before 1 March 1900 Excel counts one day less
 
 
 def ymd(x: float) -> tuple[int, int, int]:
     """(year, month, day) of a serial 0 <= x <= LAST_SERIAL (the fraction, a time, ignored)."""
-    n = int(x)
+    n = int(x) + _SHIFT.get()
     if n == 60:
         return 1900, 2, 29
     if n == 0:
@@ -52,7 +82,7 @@ def date_serial(year: float, month: float, day: float) -> int | None:
     if not 1900 <= y <= 9999:
         return None
     out = serial(y, m + 1, 1) + d - 1
-    return out if 0 <= out <= LAST_SERIAL else None
+    return out if 0 <= out <= LAST_SERIAL - _SHIFT.get() else None
 
 
 _TIME = r"(\d{1,2}):(\d{1,2})(?::(\d{1,2}(?:\.\d*)?))?\s*([AaPp][Mm])?"

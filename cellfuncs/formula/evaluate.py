@@ -16,7 +16,7 @@ from typing import Any, Callable, Iterable, Mapping, Protocol
 
 import numpy as np
 
-from ..errors import CALC, DIV0, NAME, NUM, REF, VALUE, CellError, internal_error, strict
+from ..errors import CALC, DIV0, NAME, NULL, NUM, REF, VALUE, CellError, internal_error, strict
 from .a1 import column_letters
 from .arrays import Value, as_value, object_array
 from .budget import charge
@@ -169,18 +169,42 @@ def reference_of(node: Node, context: Context) -> Ref | Name | CellError | None:
         return spec.reference(context, *node.args)
     if kind is Binary and node.op == ":":
         return _range_between(node, context)
+    if kind is Binary and node.op == " ":
+        return _intersection(node, context)
     return None
 
 
 def _range_between(node: Binary, context: Context) -> Ref | CellError:
     """``left:right``: the smallest area holding both references (on one sheet)."""
+    corners = _corners(node, context, "the range operator ':'")
+    if type(corners) is CellError:
+        return corners
+    sheet, (r1, c1, r2, c2), (s1, t1, s2, t2) = corners
+    return anchored(sheet, min(r1, s1), min(c1, t1), max(r2, s2), max(c2, t2))
+
+
+def _intersection(node: Binary, context: Context) -> Ref | CellError:
+    """``left right`` (a space): the cells both references hold; #NULL! when none."""
+    corners = _corners(node, context, "the intersection operator (a space)")
+    if type(corners) is CellError:
+        return corners
+    sheet, (r1, c1, r2, c2), (s1, t1, s2, t2) = corners
+    top, left, bottom, right = max(r1, s1), max(c1, t1), min(r2, s2), min(c2, t2)
+    if top > bottom or left > right:
+        return CellError(NULL, "the references of the intersection operator (a space) have no cell in common")
+    return anchored(sheet, top, left, bottom, right)
+
+
+def _corners(node: Binary, context: Context, what: str) -> tuple | CellError:
+    """The sheet and the corners (first row, first column, last row, last column) of the two
+    references an operator joins."""
     ends = []
     for side in (node.left, node.right):
         found = reference_of(side, context)
         if type(found) is Name:
             found = _name_reference(found, context)
         if found is None:
-            return CellError(VALUE, "the range operator ':' joins references, not values")
+            return CellError(VALUE, f"{what} joins references, not values")
         if type(found) is CellError:
             return found
         ends.append(found)
@@ -189,13 +213,12 @@ def _range_between(node: Binary, context: Context) -> Ref | CellError:
         return CellError(REF, "the formula has no workbook")
     (left, right), sheets = ends, {e.sheet for e in ends} - {None}
     if len(sheets) > 1:
-        return CellError(VALUE, "the range operator ':' joins references on one sheet")
+        return CellError(VALUE, f"{what} joins references on one sheet")
     corners = [bounds(e.sheet, e.ref) for e in ends]
     for c in corners:
         if type(c) is CellError:
             return c
-    (r1, c1, r2, c2), (s1, t1, s2, t2) = corners
-    return anchored(next(iter(sheets), None), min(r1, s1), min(c1, t1), max(r2, s2), max(c2, t2))
+    return next(iter(sheets), None), corners[0], corners[1]
 
 
 def _name_reference(name: Name, context: Context) -> Ref | CellError | None:
@@ -296,8 +319,8 @@ def _charge_call(args: list) -> CellError | None:
 
 
 def _binary(node: Binary, context: Context) -> Value:
-    if node.op == ":":
-        found = _range_between(node, context)
+    if node.op == ":" or node.op == " ":
+        found = _range_between(node, context) if node.op == ":" else _intersection(node, context)
         return found if type(found) is CellError else dereference(found, context)
     # both sides even after an error on the left: an array on the right still shapes the result
     left, right = _operand(node.left, context), _operand(node.right, context)
@@ -505,7 +528,7 @@ def is_reference(node: Node) -> bool:
     if kind is Call:
         spec = BUILTINS.get(node.name)
         return spec is not None and spec.reference is not None
-    return kind is Binary and node.op == ":"
+    return kind is Binary and (node.op == ":" or node.op == " ")
 
 
 def collect(

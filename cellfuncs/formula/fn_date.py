@@ -14,7 +14,7 @@ import math
 from ..errors import NUM, VALUE, CellError
 from .arrays import elementwise, numeric
 from .coerce import to_text
-from .dates import LAST_SERIAL, date_serial, parse_date_text, serial, ymd
+from .dates import LAST_SERIAL, date_serial, in_1900, parse_date_text, serial, ymd
 from .evaluate import builtin
 from .nodes import Scalar
 
@@ -106,7 +106,7 @@ def weekday(x: float, kind: float = 1.0) -> float | CellError:
     if spec is None:
         return CellError(NUM, f"WEEKDAY has no return type {to_text(kind)}")
     first, base = spec
-    sunday_based = (int(x) - 1) % 7  # 0 Sunday ... 6 Saturday
+    sunday_based = (int(in_1900(x)) - 1) % 7  # 0 Sunday ... 6 Saturday
     return float((sunday_based - first) % 7 + base)
 
 

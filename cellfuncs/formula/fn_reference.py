@@ -218,6 +218,22 @@ def _quote(sheet: str) -> str:
     return "'" + sheet.replace("'", "''") + "'"
 
 
+@reference_builtin("ANCHORARRAY", 1, 1)
+def anchorarray(context: Context, anchor: Node) -> Ref | CellError:
+    """The spill operator ``A1#`` (the file writes ``ANCHORARRAY(A1)``): the whole range the
+    formula in the cell spilled over; #REF! where it holds no spilled array.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute("=SUM(ANCHORARRAY(A1))").code
+    '#REF!'
+    """
+    found = required_reference(context, anchor)
+    if type(found) is CellError:
+        return found
+    spilled = getattr(context, "spill_reference", None)
+    return CellError(REF, "the formula has no workbook") if spilled is None else spilled(found.sheet, found.ref)
+
+
 @reference_builtin("OFFSET", 3, 5)
 def offset(context: Context, base: Node, rows: Node, cols: Node, height: Node | None = None,
            width: Node | None = None) -> Ref | CellError:

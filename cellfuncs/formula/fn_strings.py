@@ -1,6 +1,6 @@
 """Built-in text manipulation: LEFT, RIGHT, MID, LEN, UPPER, LOWER, PROPER, TRIM, CLEAN,
 SUBSTITUTE, REPLACE, REPT, FIND, SEARCH, EXACT, CHAR, CODE, UNICHAR, UNICODE,
-CONCATENATE, TEXTJOIN, T, VALUE.
+CONCATENATE, TEXTJOIN, T, VALUE, TEXTBEFORE, TEXTAFTER, TEXTSPLIT.
 
 Arguments are converted to text as Excel does (numbers in the General format, TRUE as
 "TRUE"); character codes are those of Windows code page 1252, as Excel for Windows uses.
@@ -12,16 +12,19 @@ Arguments are converted to text as Excel does (numbers in the General format, TR
 
 from __future__ import annotations
 
+import math
 import re
+from functools import lru_cache
 
 import numpy as np
 
-from ..errors import VALUE, CellError
-from .arrays import Value, elementwise
+from ..errors import NA, VALUE, CellError
+from .arrays import Value, as_array, elementwise, map_values
 from .budget import MAX_TEXT  # the most characters a cell holds
 from .coerce import to_bool, to_number, to_text
 from .evaluate import builtin
 from .fn_lookup import wildcard
+from .fn_shape import built, flag, padding, single
 from .fn_text import texts
 from .nodes import Scalar
 
@@ -388,3 +391,147 @@ def value(v: Scalar) -> Scalar:
     if type(v) is bool:
         return CellError(VALUE, "VALUE takes text or a number")
     return to_number(v)
+
+
+def zero_or_one(v: Scalar, what: str) -> int | CellError:
+    """A 0-or-1 argument (match mode, match end); left out or blank: 0."""
+    x = to_number(v)
+    if type(x) is CellError:
+        return x
+    if x not in (0.0, 1.0):
+        return CellError(VALUE, f"{what} must be 0 or 1, not {to_text(x)}")
+    return int(x)
+
+
+def _delimiters(v: Value) -> list[str] | None | CellError:
+    """A delimiter argument (one text or an array of them) as texts; None when not given."""
+    if v is None:
+        return None
+    out = []
+    for x in (v.flat if type(v) is np.ndarray else (v,)):
+        t = to_text(x)
+        if type(t) is CellError:
+            return t
+        out.append(t)
+    return out
+
+
+@lru_cache(maxsize=256)
+def _delimiter_regex(delimiters: tuple[str, ...], fold: bool) -> re.Pattern:
+    """A regex finding any of the delimiters, the longest where several start at one place."""
+    alternatives = "|".join(re.escape(d) for d in sorted(delimiters, key=len, reverse=True))
+    return re.compile(alternatives, re.IGNORECASE if fold else 0)
+
+
+_ABSENT = object()  # an argument not written, as opposed to an empty one (None)
+
+
+def _instance(v: Scalar) -> int | CellError:
+    """TEXTBEFORE's and TEXTAFTER's instance number, rounded down as Excel does (-1.2 is -2)."""
+    x = to_number(v)
+    return x if type(x) is CellError else math.floor(x)
+
+
+def _delimiter_at(text: str, delimiters: list[str], n: Scalar, mode: Scalar,
+                  end: Scalar) -> tuple[int, int] | None | CellError:
+    """Where the ``n``-th delimiter (negative: counted from the end) starts and ends in ``text``;
+    with ``end`` 1 the text's end (its start, counting from the end) is one more delimiter."""
+    explicit = n is not _ABSENT and n is not None
+    k = _instance(n) if explicit else 1
+    fold, at_end = zero_or_one(mode, "the match mode"), zero_or_one(end, "match_end")
+    for x in (k, fold, at_end):
+        if type(x) is CellError:
+            return x
+    if k == 0:
+        return CellError(VALUE, "the instance number must not be 0")
+    if explicit and abs(k) > len(text) - min(map(len, delimiters)) + 1:  # more instances than places for one
+        return CellError(VALUE, f"instance {k} is beyond the length of the text")
+    found = [m.span() for m in _delimiter_regex(tuple(delimiters), bool(fold)).finditer(text)]
+    if at_end:
+        found = found + [(len(text), len(text))] if k > 0 else [(0, 0)] + found
+    if k > len(found) or -k > len(found):
+        return None
+    return found[k - 1] if k > 0 else found[k]
+
+
+def _text_around(name: str, after: bool) -> None:
+    def fn(text: Value, delimiter: Value, instance_num: Value = _ABSENT, match_mode: Value = None,
+           match_end: Value = None, if_not_found: Value = _ABSENT) -> Value:
+        delimiters = _delimiters(delimiter) or [""]
+        if type(delimiters) is CellError:
+            return delimiters
+
+        def one(t: Scalar, n: Scalar, mode: Scalar, end: Scalar, fallback: Scalar) -> Scalar:
+            t = to_text(t)
+            if type(t) is CellError:
+                return t
+            span = _delimiter_at(t, delimiters, n, mode, end)
+            if span is None:
+                if fallback is _ABSENT:
+                    return CellError(NA, f"{name}: the delimiter was not found")
+                return "" if fallback is None else fallback
+            if type(span) is CellError:
+                return span
+            return t[span[1]:] if after else t[:span[0]]
+
+        return map_values(one, text, instance_num, match_mode, match_end, if_not_found)
+
+    fn.__doc__ = (f"{name}(text, delimiter, [instance_num], [match_mode], [match_end], [if_not_found]): the text "
+                  f"{'after' if after else 'before'} the instance_num-th delimiter (negative: from the end).")
+    fn.takes_values = True  # each argument but the delimiters one value
+    builtin(name, 2, 6, arrays=(1,))(fn)
+
+
+_text_around("TEXTBEFORE", False)
+_text_around("TEXTAFTER", True)
+
+
+def _pieces(text: str, delimiters: list[str] | None, fold: bool, ignore_empty: bool) -> list[str]:
+    if delimiters is None:
+        return [text]
+    parts = _delimiter_regex(tuple(delimiters), fold).split(text)
+    return [p for p in parts if p] if ignore_empty else parts
+
+
+def _split_table(text: Scalar, columns: list[str] | None, rows: list[str] | None, fold: bool,
+                 ignore_empty: bool, pad: Scalar) -> Value:
+    """One text split into rows at ``rows`` and each row into columns at ``columns``."""
+    t = to_text(text)
+    if type(t) is CellError:
+        return t
+    table = [_pieces(line, columns, fold, ignore_empty) for line in _pieces(t, rows, fold, ignore_empty)]
+    table = [line for line in table if line]
+    out = built((len(table), max(map(len, table), default=0)), pad)
+    if type(out) is CellError:
+        return out
+    for i, line in enumerate(table):
+        out[i, :len(line)] = line
+    return out
+
+
+@builtin("TEXTSPLIT", 2, 6, arrays=(1, 2))
+def textsplit(text: Value, col_delimiter: Value, row_delimiter: Value = None, ignore_empty: Value = None,
+              match_mode: Value = None, pad_with: Value = None) -> Value:
+    """The text split into columns at ``col_delimiter`` and into rows at ``row_delimiter`` (a
+    text or an array of them, at least one given, none empty); ``ignore_empty`` drops empty
+    pieces, ``match_mode`` 1 ignores case, short rows are padded with #N/A or ``pad_with``.
+    Of an array of texts, each gives its first piece.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute('=TEXTSPLIT("a,b;c", ",", ";")').tolist()
+    [['a', 'b'], ['c', CellError(code='#N/A', reason='TEXTSPLIT: the row is shorter than the others')]]
+    """
+    columns, rows = _delimiters(col_delimiter), _delimiters(row_delimiter)
+    ignore = flag(ignore_empty, "TEXTSPLIT's ignore_empty")
+    fold = zero_or_one(single(match_mode, "the match mode"), "the match mode")
+    for x in (columns, rows, ignore, fold):
+        if type(x) is CellError:
+            return x
+    if columns is None and rows is None:
+        return CellError(VALUE, "TEXTSPLIT needs a column or a row delimiter")
+    if "" in (columns or []) + (rows or []):
+        return CellError(VALUE, "TEXTSPLIT's delimiters must not be empty")
+    pad = padding(pad_with, "TEXTSPLIT", "the row is shorter than the others")
+    if type(text) is np.ndarray:
+        return map_values(lambda t: as_array(_split_table(t, columns, rows, bool(fold), ignore, pad))[0, 0], text)
+    return _split_table(text, columns, rows, bool(fold), ignore, pad)

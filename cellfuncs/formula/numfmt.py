@@ -1,31 +1,41 @@
-"""Excel number format codes as TEXT() applies them: sections (positive;negative;zero;text)
-and conditions (``[<10]``), literals (``"text"``, ``\\c``, ``_x`` as a space), colours
-(ignored), digit placeholders ``0 # ?`` with thousands separators and scaling commas,
-percent, exponents, dates and times (``yyyy mm dd hh:mm:ss AM/PM``, elapsed ``[h]``), and
+"""Excel number format codes as TEXT() applies them: up to four sections
+(positive;negative;zero;text) or conditional ones (``[<=9999999]``), colours and locales
+(ignored), currencies (``[$€-407]``), literals (``"text"``, ``\\c``, ``_x`` as a space, ``*x``
+dropped), digit placeholders ``0 # ?`` with thousands separators and scaling commas, percent,
+scientific notation, fractions (:mod:`fracfmt`), dates and times (:mod:`datefmt`), ``@`` and
 the General format's 11-character rule.
+
+A section for negative numbers shows the magnitude; a single section puts a minus sign
+before everything, unless the number rounds to zero in it.
 
 >>> apply_format(1234.5, '#,##0.00_);(#,##0.00)'), apply_format(-5.0, '0;(0)'), apply_format(45293.75, "dddd d mmm yyyy h:mm AM/PM")
 ('1,234.50 ', '(5)', 'Tuesday 2 Jan 2024 6:00 PM')
 >>> apply_format(1 / 3, "General"), apply_format(123456789012.0, "General"), apply_format(5.0, '[<10]"small";"big"')
 ('0.333333333', '1.23457E+11', 'small')
+>>> apply_format(123456.789, "##0.0E+0"), apply_format(-0.2, "0"), apply_format(1.75, "# ?/?")
+('123.5E+3', '0', '1 3/4')
+>>> apply_text("ab", ';;;"<"@">"'), apply_text("ab", "0.00")
+('<ab>', 'ab')
 """
 
 from __future__ import annotations
 
-import re
+import math
+from decimal import ROUND_HALF_UP, Decimal
 from functools import lru_cache
+from typing import NamedTuple
 
-from ..errors import VALUE, CellError
-from .coerce import decimal_round
-from .dates import LAST_SERIAL, ymd
+from ..errors import NUM, VALUE, CellError
+from .coerce import decimal_round, format_number
+from .datefmt import is_valid_date, render_date
+from .fmtcode import Token, condition, fill_decimals, fill_integer, literal, split_sections, tokenize
+from .fracfmt import is_fraction, render_fraction
 
-_DAYS = ["Sunday", "Monday", "Tuesday", "Wednesday", "Thursday", "Friday", "Saturday"]
-_MONTHS = ["January", "February", "March", "April", "May", "June", "July", "August", "September", "October",
-           "November", "December"]
-_TOKEN = re.compile(
-    r'"[^"]*"|\\.|_.|\*.|\[[^\]]*\]|AM/PM|am/pm|A/P|a/p|[Ee][+-]|[yY]+|[mM]+|[dD]+|[hH]+|[sS]+|[0#?]|[.,%@/]|.',
-    re.DOTALL)
-_CONDITION = re.compile(r"\[(<=|>=|<>|<|>|=)(-?[0-9.]+)\]")
+
+class Section(NamedTuple):
+    tokens: tuple[Token, ...]
+    condition: tuple[str, float] | None
+    kind: str  # general, number, scientific, fraction, date or literal
 
 
 def general(x: float) -> str:
@@ -49,226 +59,200 @@ def general(x: float) -> str:
     return f"{sign}{mantissa}E{exp[0]}{abs(int(exp)):02d}"
 
 
-def _sections(fmt: str) -> list[str]:
-    out, current, quoted, bracket, escape = [], [], False, False, False
-    for ch in fmt:
-        if escape:
-            current.append(ch)
-            escape = False
-            continue
-        if ch == "\\" and not quoted:
-            escape = True
-        elif ch == '"':
-            quoted = not quoted
-        elif ch == "[" and not quoted:
-            bracket = True
-        elif ch == "]" and not quoted:
-            bracket = False
-        elif ch == ";" and not quoted and not bracket:
-            out.append("".join(current))
-            current = []
-            continue
-        current.append(ch)
-    out.append("".join(current))
-    return out
+def _kind(tokens: tuple[Token, ...]) -> str | None:
+    """What a section shows; None for a section Excel refuses (date codes mixed with digits)."""
+    kinds = {t.kind for t in tokens}
+    if "general" in kinds:
+        return "general"
+    if kinds & {"date", "ampm", "elapsed"}:
+        return "date" if is_valid_date(tokens) else None
+    if "digit" not in kinds:
+        return "literal"
+    if is_fraction(tokens):
+        return "fraction"
+    exp = next((i for i, t in enumerate(tokens) if t.kind == "exp"), None)
+    if exp is not None and any(t.kind == "digit" for t in tokens[exp:]):
+        return "scientific"
+    return "number"
 
 
-def _pick(x: float, sections: list[str]) -> tuple[str, float]:
-    """The section for ``x`` and the value it shows (negative sections show the magnitude)."""
-    conditions = [_CONDITION.search(s) for s in sections]
-    if any(conditions):
-        for s, c in zip(sections, conditions):
-            if c is None:
-                continue
-            op, limit = c.group(1), float(c.group(2))
-            if {"<": x < limit, ">": x > limit, "=": x == limit, "<=": x <= limit, ">=": x >= limit,
-                    "<>": x != limit}[op]:
-                return s, (abs(x) if x < 0 and limit <= 0 and op in ("<", "<=") else x)
-        rest = [s for s, c in zip(sections, conditions) if c is None and "@" not in s]
-        return (rest[0], abs(x) if x < 0 else x) if rest else (sections[-1], x)
-    numeric = sections[:3]
+@lru_cache(maxsize=512)
+def parse(fmt: str) -> tuple[Section, ...] | CellError:
+    """The sections of a format code, or #VALUE! for a code Excel does not accept."""
+    texts = split_sections(fmt)
+    if len(texts) > 4:
+        return CellError(VALUE, f'the format "{fmt}" has more than four sections')
+    sections = []
+    for text in texts:
+        tokens = tokenize(text)
+        kind = _kind(tokens)
+        if kind is None:
+            return CellError(VALUE, f'the format "{fmt}" mixes date codes and digit placeholders')
+        sections.append(Section(tokens, condition(tokens), kind))
+    return tuple(sections)
+
+
+def _holds(x: float, cond: tuple[str, float]) -> bool:
+    op, limit = cond
+    return {"<": x < limit, ">": x > limit, "=": x == limit, "<=": x <= limit, ">=": x >= limit, "<>": x != limit}[op]
+
+
+def _pick_conditional(x: float, numeric: tuple[Section, ...]) -> tuple[Section | None, float]:
+    """The first section whose condition holds (a condition for negative numbers shows the
+    magnitude), else the first without a condition (showing the magnitude); None when no
+    section applies, and the number shows in General."""
+    for s in numeric:
+        if s.condition and _holds(x, s.condition):
+            op, limit = s.condition
+            return s, (-x if x < 0 and limit <= 0 and op in ("<", "<=") else x)
+    rest = [s for s in numeric if s.condition is None]
+    return (rest[0], abs(x)) if rest else (None, x)
+
+
+def _pick(x: float, sections: tuple[Section, ...]) -> tuple[Section | None, float]:
+    """The section for ``x`` and the value it shows: negative only where a minus sign leads."""
+    numeric = sections[:3]  # a fourth section is for text
+    if any(s.condition for s in numeric[:2]):
+        return _pick_conditional(x, numeric)
     if len(numeric) == 1 or x > 0 or (x == 0 and len(numeric) == 2):
         return numeric[0], x
     if x < 0:
         return numeric[1], -x
-    return numeric[2], x
+    return numeric[2], 0.0
 
 
-def _is_date(tokens: list[str]) -> bool:
-    return any(t[0] in "yYdDhHsS" or t[0] in "mM" or t.upper() in ("AM/PM", "A/P") or
-               (t.startswith("[") and t[1:2].lower() in ("h", "m", "s")) for t in tokens if t)
-
-
-def _literal(t: str) -> str | None:
-    if t.startswith('"'):
-        return t[1:-1]
-    if t.startswith("\\"):
-        return t[1:]
-    if t.startswith("_"):
-        return " "
-    if t.startswith("*") or t.startswith("["):
-        return ""
-    return None
-
-
-def _date(x: float, tokens: list[str]) -> str | CellError:
-    if not 0.0 <= x < LAST_SERIAL + 1:
-        return CellError(VALUE, "the number is not a date TEXT can format")
-    seconds_total = round(x * 86400.0, 3)
-    day = int(seconds_total // 86400)
-    secs = seconds_total - day * 86400
-    y, mo, d = ymd(float(day))
-    ampm = any(t.upper() in ("AM/PM", "A/P") for t in tokens)
-    sub = None
-    for t in tokens:
-        if re.fullmatch(r"\.0+", t or ""):
-            sub = len(t) - 1
-    whole_secs = int(secs) if sub else int(round(secs))
-    hh, mi, ss = whole_secs // 3600, whole_secs // 60 % 60, whole_secs % 60
-    out = []
-    last_time = None  # "h" or "s": an m next to them is minutes
+def _commas(tokens: tuple[Token, ...], ints: list[int], out: list[str]) -> tuple[bool, int]:
+    """(thousands separators?, scaling by 1000s): a comma between integer placeholders
+    groups, one after the placeholders divides by 1000, one before all of them is text."""
+    grouping, scale, seen_digit = False, 0, False
     for i, t in enumerate(tokens):
-        lit = _literal(t)
-        if t.startswith("[") and t[1:2].lower() in ("h", "m", "s"):
-            unit = t[1].lower()
-            total = {"h": seconds_total / 3600, "m": seconds_total / 60, "s": seconds_total}[unit]
-            out.append(str(int(total)).rjust(len(t) - 2, "0"))
-            last_time = unit
+        seen_digit = seen_digit or t.kind == "digit"
+        if t.kind != "comma" or not seen_digit:
             continue
-        if lit is not None:
-            out.append(lit)
-            continue
-        u = t.lower()
-        if u[0] == "y":
-            out.append(f"{y % 100:02d}" if len(u) <= 2 else f"{y:04d}")
-        elif u[0] == "m" and u not in ("am/pm",):
-            after_s = any(tt and tt[0].lower() == "s" for tt in tokens[i + 1:i + 3])
-            if len(u) <= 2 and (last_time == "h" or after_s):
-                out.append(f"{mi:02d}" if len(u) == 2 else str(mi))
-            else:
-                out.append(str(mo) if len(u) == 1 else f"{mo:02d}" if len(u) == 2 else _MONTHS[mo - 1][:3]
-                           if len(u) == 3 else _MONTHS[mo - 1] if len(u) == 4 else _MONTHS[mo - 1][0])
-        elif u[0] == "d":
-            weekday = _DAYS[(day - 1) % 7] if day else _DAYS[6]
-            out.append(str(d) if len(u) == 1 else f"{d:02d}" if len(u) == 2 else weekday[:3] if len(u) == 3 else weekday)
-        elif u[0] == "h":
-            h = hh % 12 or 12 if ampm else hh
-            out.append(f"{h:02d}" if len(u) >= 2 else str(h))
-            last_time = "h"
-        elif u[0] == "s":
-            out.append(f"{ss:02d}" if len(u) >= 2 else str(ss))
-            last_time = "s"
-        elif u == "am/pm":
-            out.append(("AM" if hh < 12 else "PM") if t.isupper() or t == "AM/PM" else ("am" if hh < 12 else "pm"))
-        elif u == "a/p":
-            out.append(("A" if hh < 12 else "P") if t[0].isupper() else ("a" if hh < 12 else "p"))
-        elif re.fullmatch(r"\.0+", t):
-            frac = secs - int(secs)
-            out.append("." + f"{frac:.{sub}f}"[2:])
-        elif t == ".":
-            out.append(".")
+        out[i] = ""
+        if any(j > i for j in ints):
+            grouping = True
         else:
-            out.append(t)
-    return "".join(out)
+            scale += 1
+    return grouping, scale
 
 
-def _number(x: float, tokens: list[str]) -> str:
-    # placeholders before and after the decimal point; scaling commas; percent
-    point = next((i for i, t in enumerate(tokens) if t == "."), None)
-    digit_idx = [i for i, t in enumerate(tokens) if t in ("0", "#", "?")]
-    if not digit_idx:
-        return "".join(_literal(t) if _literal(t) is not None else ("" if t == "," else t) for t in tokens)
-    last_digit = digit_idx[-1]
-    first_digit = digit_idx[0]
-    int_places = [i for i in digit_idx if point is None or i < point]
-    dec_places = [i for i in digit_idx if point is not None and i > point]
-    grouping = any(t == "," and first_digit < i < (point if point is not None else last_digit + 1)
-                   and any(j > i for j in int_places) for i, t in enumerate(tokens))
-    scale_commas = 0
-    end = point if point is not None and not dec_places else last_digit
-    j = (point if point is not None and not dec_places else last_digit) + 1
-    while j < len(tokens) and tokens[j] == ",":
-        scale_commas += 1
-        j += 1
-    x = x / 1000.0**scale_commas * 100.0 ** tokens.count("%")
-    d = decimal_round(x, len(dec_places))
-    whole, _, frac = f"{abs(d):f}".partition(".")
-    frac = frac.ljust(len(dec_places), "0")
-    whole = whole.lstrip("0")
-    # integer digits from the right into the placeholders, the extra ones at the first
-    int_out = {}
-    digits = list(whole)
-    for k, i in enumerate(reversed(int_places)):
-        if digits:
-            int_out[i] = digits.pop()
-        else:
-            int_out[i] = {"0": "0", "#": "", "?": " "}[tokens[i]]
-    if digits and int_places:
-        int_out[int_places[0]] = "".join(digits) + int_out[int_places[0]]
-    if grouping:
-        plain = "".join(int_out[i] for i in int_places).strip()
-        grouped = f"{int(plain):,}" if plain.isdigit() else plain
-        int_out = {i: "" for i in int_places}
-        if int_places:
-            int_out[int_places[0]] = grouped
-    dec_out = {}
-    keep = len(frac.rstrip("0"))
-    for k, i in enumerate(dec_places):
-        ch = frac[k]
-        if k >= keep and tokens[i] != "0":
-            ch = "" if tokens[i] == "#" else " "
-        dec_out[i] = ch
-    out = []
-    for i, t in enumerate(tokens):
-        if i in int_out:
-            out.append(int_out[i])
-        elif i in dec_out:
-            out.append(dec_out[i])
-        elif t == ".":
-            out.append(".")
-        elif t == ",":
-            continue
-        else:
-            lit = _literal(t)
-            out.append(lit if lit is not None else t)
-    sign = "-" if d < 0 else ""
-    return sign + "".join(out)
+def _split(tokens: tuple[Token, ...], end: int) -> tuple[list[int], list[int]]:
+    """The placeholders before ``end`` on either side of the first point."""
+    point = next((i for i, t in enumerate(tokens[:end]) if t.kind == "point"), end)
+    digits = [i for i, t in enumerate(tokens[:end]) if t.kind == "digit"]
+    return [i for i in digits if i < point], [i for i in digits if i > point]
 
 
-@lru_cache(maxsize=512)
-def _tokens(section: str) -> list[str]:
-    return [m.group() for m in _TOKEN.finditer(section)]
+def _places(tokens: tuple[Token, ...], indices: list[int]) -> str:
+    return "".join(tokens[i].text for i in indices)
+
+
+def _put(out: list[str], indices: list[int], texts: list[str]) -> None:
+    for i, text in zip(indices, texts):
+        out[i] = text
+
+
+def _digits(d: Decimal, decimals: int) -> tuple[str, str]:
+    """The integer digits (none for zero) and ``decimals`` decimal digits of ``d``."""
+    whole, _, frac = f"{d:f}".partition(".")
+    return whole.lstrip("0"), frac.ljust(decimals, "0")
+
+
+def _number(tokens: tuple[Token, ...], x: float) -> str | CellError:
+    """``x`` in a section of digit placeholders, rounded half away from zero at its decimals."""
+    ints, decs = _split(tokens, len(tokens))
+    out = [literal(t) for t in tokens]
+    grouping, scale = _commas(tokens, ints, out)
+    v = abs(x) / 1000.0**scale * 100.0 ** sum(t.kind == "percent" for t in tokens)
+    if not math.isfinite(v):
+        return CellError(NUM, "the number is too large to format")
+    d = decimal_round(v, len(decs))
+    whole, frac = _digits(d, len(decs))
+    _put(out, ints, fill_integer(_places(tokens, ints), whole, grouping))
+    if not ints and whole:  # no placeholder before the point: the digits show there anyway
+        point = next(i for i, t in enumerate(tokens) if t.kind == "point")
+        out[point] = whole + "."
+    _put(out, decs, fill_decimals(_places(tokens, decs), frac))
+    return ("-" if x < 0 and d else "") + "".join(out)
+
+
+def _mantissa(v: float, whole_places: int, decimals: int) -> tuple[Decimal, int]:
+    """(mantissa rounded to ``decimals``, exponent): with several placeholders before the
+    point the exponent is a multiple of their number (##0.0E+0 is engineering notation)."""
+    if v == 0.0:
+        return Decimal(0), 0
+    d = Decimal(f"{v:.15g}")
+    step = Decimal(1).scaleb(-decimals)
+    limit = 10**whole_places
+    for e10 in (d.adjusted(), d.adjusted() + 1):  # the second when rounding carried a digit
+        exp = e10 + 1 if whole_places == 0 else e10 // whole_places * whole_places
+        m = d.scaleb(-exp).quantize(step, rounding=ROUND_HALF_UP)
+        if m < limit:
+            break
+    return m, exp
+
+
+def _scientific(tokens: tuple[Token, ...], x: float) -> str:
+    """``x`` in a section with an exponent; ``%`` shows without scaling and commas outside
+    the mantissa's integer placeholders are dropped (as Excel's stored values have it)."""
+    e = next(i for i, t in enumerate(tokens) if t.kind == "exp")
+    ints, decs = _split(tokens, e)
+    out = [literal(t) if t.kind != "comma" else "" for t in tokens]
+    grouping, _ = _commas(tokens[:e], ints, out)
+    m, exp = _mantissa(abs(x), len(ints), len(decs))
+    whole, frac = _digits(m, len(decs))
+    places = _places(tokens, ints) if m else "0" * len(ints)  # zero shows 0 under every placeholder
+    _put(out, ints, fill_integer(places, whole, grouping))
+    _put(out, decs, fill_decimals(_places(tokens, decs), frac))
+    exps = [i for i in range(e + 1, len(tokens)) if tokens[i].kind == "digit"]
+    _put(out, exps, fill_integer(_places(tokens, exps), str(abs(exp)), False))
+    out[e] = tokens[e].text[0]
+    sign = "-" if exp < 0 else "+" if tokens[e].text[1] == "+" else ""
+    out[exps[0]] = sign + out[exps[0]]  # the sign goes with the digits, after any text
+    return ("-" if x < 0 and m else "") + "".join(out)
+
+
+def _literal(tokens: tuple[Token, ...], x: float) -> str:
+    """A section without placeholders: its text, General's digits for ``General`` and the
+    number as text for ``@``."""
+    shown = {"general": general(abs(x)), "at": format_number(abs(x))}
+    return ("-" if x < 0 else "") + "".join(shown.get(t.kind, literal(t)) for t in tokens)
+
+
+def _render(section: Section, x: float) -> str | CellError:
+    if section.kind == "number":
+        return _number(section.tokens, x)
+    if section.kind == "scientific":
+        return _scientific(section.tokens, x)
+    if section.kind == "fraction":
+        return render_fraction(section.tokens, x)
+    if section.kind == "date":
+        return render_date(section.tokens, x)
+    return _literal(section.tokens, x)
 
 
 def apply_format(x: float, fmt: str) -> str | CellError:
     """``x`` formatted with an Excel number format code."""
     if fmt == "":
         return ""
-    sections = _sections(fmt)
+    sections = parse(fmt)
+    if type(sections) is CellError:
+        return sections
     section, value = _pick(x, sections)
-    tokens = [t for t in _tokens(section) if not _CONDITION.fullmatch(t)]
-    if not tokens:
-        return ""
-    if len(tokens) == 1 and tokens[0].upper() == "GENERAL" or section.strip().upper() == "GENERAL":
-        return general(value)
-    if "".join(tokens).upper().replace(" ", "").find("GENERAL") >= 0:
-        rest = section.upper().replace("GENERAL", "\x00")
-        return "".join(general(value) if ch == "\x00" else ch for ch in rest.replace('"', ""))
-    if any(t in ("E+", "E-", "e+", "e-") for t in tokens) or "/" in [t for t in tokens if not _is_date([t])] and not _is_date(tokens):
-        return CellError(VALUE, f'the format "{fmt}" is not supported')
-    if _is_date(tokens):
-        return _date(value, _merge_fraction(tokens))
-    return _number(value, tokens)
+    return general(value) if section is None else _render(section, value)
 
 
-def _merge_fraction(tokens: list[str]) -> list[str]:
-    """Join ".", "0", "0" after seconds into one ".00" token."""
-    out: list[str] = []
-    for t in tokens:
-        if t == "0" and out and re.fullmatch(r"\.0*", out[-1]):
-            out[-1] += "0"
-        else:
-            out.append(t)
-    return out
-
-
+def apply_text(text: str, fmt: str) -> str | CellError:
+    """A text formatted with an Excel number format code: the fourth section (or a lone
+    section with ``@``) shows it at each ``@``; other codes leave it unchanged."""
+    sections = parse(fmt)
+    if type(sections) is CellError:
+        return sections
+    if len(sections) == 4:
+        section = sections[3]
+    elif len(sections) == 1 and any(t.kind == "at" for t in sections[0].tokens):
+        section = sections[0]
+    else:
+        return text
+    return "".join(text if t.kind == "at" else literal(t) for t in section.tokens)

@@ -24,7 +24,7 @@ from .budget import MAX_FORMULA_TEXT
 from .nodes import Array, Binary, Call, Invoke, Literal, Missing, Name, Node, Ref, Scalar, Unary, children
 
 _INFIX = {"=": 1, "<>": 1, "<": 1, ">": 1, "<=": 1, ">=": 1, "&": 2, "+": 3, "-": 3, "*": 4, "/": 4, "^": 5,
-          ":": 9}  # the range operator binds tightest: A1:INDEX(B:B,3)*2
+          " ": 8, ":": 9}  # the range operator binds tightest: A1:INDEX(B:B,3)*2; then intersection (a space)
 _PREFIX_POWER = 6  # above ^: Excel negates before raising to a power
 _PREFIXES = ("_XLFN.", "_XLWS.")
 # Deeper trees would exhaust Python's recursion while evaluating; Excel itself allows
@@ -98,6 +98,15 @@ def _literal(tok: _Tok) -> Scalar:
     return error
 
 
+def _starts_reference(tok: _Tok) -> bool:
+    return (tok.type, tok.subtype) in (("OPERAND", "RANGE"), ("FUNC", "OPEN"), ("PAREN", "OPEN"))
+
+
+def _is_reference(node: Node) -> bool:
+    """Whether ``node`` may stand for a reference, so a space after it intersects."""
+    return type(node) in (Ref, Name, Call) or (type(node) is Binary and node.op in (":", " "))
+
+
 class _Parser:
     def __init__(self, tokens: list[_Tok]):
         self.tokens = tokens
@@ -116,8 +125,6 @@ class _Parser:
 
     def unexpected(self, tok: _Tok) -> FormulaSyntaxError:
         if tok.type == "OPERAND" or tok.subtype == "OPEN":  # a value follows a value
-            if tok.spaced and tok.subtype == "RANGE":
-                return FormulaSyntaxError("the intersection operator (a space between references) is not supported")
             return FormulaSyntaxError(f"an operator is missing before {tok.value!r}")
         if tok.value == ",":
             return FormulaSyntaxError("the union operator ',' is not supported")
@@ -143,6 +150,8 @@ class _Parser:
                     break
                 self.pos += 1
                 left = Binary(tok.value, left, self.expression(power + 1))
+            elif tok.spaced and _starts_reference(tok) and _INFIX[" "] >= min_power and _is_reference(left):
+                left = Binary(" ", left, self.expression(_INFIX[" "] + 1))  # A1:C3 B2:D2, the cells in both
             elif tok.type == "OPERATOR-INFIX" and tok.value == "," and self.invoking:
                 break
             elif tok.type == "OPERATOR-INFIX":

@@ -40,7 +40,9 @@ import numpy as np
 
 from ..errors import CALC, NA, NAME, REF, SPILL, CellError
 from ..formula import Call, Ref, Value, value_of, walk
+from ..formula.evaluate import anchored
 from ..formula.budget import active, charge
+from ..formula.dates import date_system
 from .areas import AreaIndex, Overlap
 from .formula_text import formula_at
 from .graph import components, cycle
@@ -173,6 +175,22 @@ class _Context:
             return found
         self.engine.found_read(*found)
         return self.reference(sheet, ref)
+
+    def spill_reference(self, sheet: str | None, ref: str) -> Ref | CellError:
+        """The range the formula in a reference's first cell spilled over (``A1#``, written
+        ``ANCHORARRAY(A1)`` in the file): the order evaluates that formula first."""
+        found = self._area(sheet, ref)
+        if type(found) is CellError:
+            return found
+        s, a = found
+        fi = self.engine.at[s].get((a.r1, a.c1))
+        spilled = None
+        if fi is not None:  # a legacy array formula's range counts as its spill
+            fc = self.engine.cells[fi]
+            spilled = fc.old_area if fc.kind == "legacy" else self.engine.spills.get(fi)
+        if spilled is None:
+            return CellError(REF, f"{address(a.r1, a.c1)} holds no spilled array (the # operator)")
+        return anchored(self.engine.book.sheets[s].name, spilled.r1, spilled.c1, spilled.r2, spilled.c2)
 
     def formula_text(self, sheet: str | None, ref: str) -> str | None | CellError:
         """The formula of a reference's first cell as the formula bar shows it (FORMULATEXT,
@@ -796,7 +814,7 @@ class Recalc:
         self._column = _Column(self)
         units, adj = graph.units, graph.adj
         done, total, step = 0, len(self.cells), 0
-        with active(self.budget):
+        with active(self.budget), date_system(self.book.date1904):
             for comp in graph.comps:
                 if len(comp) > 1 or comp[0] in adj[comp[0]]:
                     self._loop(graph, comp)

@@ -81,6 +81,7 @@ class Book:
     dynamic_cm: str | None  # the cm value that marks a dynamic array, if the file has one
     parsed: set[str] = field(default_factory=set)  # parts read here (the rest are only validated)
     tables: list[Table] = field(default_factory=list)
+    date1904: bool = False  # the workbook counts dates from 1904-01-01 (Excel's Mac date system)
 
     def sheet(self, name: str) -> Sheet | None:
         lowered = name.lower()
@@ -208,7 +209,8 @@ def load(pkg: Package) -> Book:
             scope = el.get("localSheetId")
             key = (int(scope) if scope is not None and scope.isdigit() else None, el.get("name", "").upper())
             names[key] = (el.text or "").strip()
-    return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables)
+    date1904 = any(el.get("date1904", "").lower() in ("1", "true") for el in _children(root, "workbookPr"))
+    return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables, date1904)
 
 
 def _tables(pkg: Package, part: str, sheet: int, sheet_name: str, parsed: set[str]) -> list[Table]:
