@@ -185,3 +185,10 @@ def test_results_are_charged_to_the_work_budget():
     with active(Budget(Limit(100, "--cells"), Limit(1000, "--work"), Limit(1000, "--all"))):
         assert compute("=EXPAND(1, 20, 20)").code == NUM
         assert compute("=TOCOL(SEQUENCE(10, 10))").shape == (100, 1)
+
+
+def test_a_pattern_that_backtracks_without_end_is_stopped():
+    # (x+x+)+y on a run of x's takes exponential time in a backtracking matcher (a classic
+    # pattern of the trade); the time limit turns it into #VALUE! instead of a hung recalculation
+    assert compute('=REGEXTEST(REPT("x",5000),"(x+x+)+y")').code == "#VALUE!"
+    assert compute('=REGEXEXTRACT("abcDEF","\\p{Lu}+")') == "DEF"  # PCRE2's Unicode property classes

@@ -136,8 +136,18 @@ def compare(a: Scalar, b: Scalar) -> int | CellError:
     if ra != rb:
         return -1 if ra < rb else 1
     if ra == 1:
-        a, b = a.casefold(), b.casefold()
+        a, b = fold(a), fold(b)
     return (a > b) - (a < b)
+
+
+def fold(text: str) -> str:
+    """``text`` as Excel compares it, ignoring case: letter by letter, so "ß" stays apart
+    from "ss" (Python's casefold would join them).
+
+    >>> fold("Straße") == fold("STRASSE"), fold("ABC") == fold("abc")
+    (False, True)
+    """
+    return text.lower()
 
 
 def format_number(x: float) -> str:

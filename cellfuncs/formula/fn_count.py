@@ -21,7 +21,7 @@ import numpy as np
 
 from ..errors import DIV0, VALUE, CellError, parse_error_text
 from .arrays import Value, as_array, shape_text
-from .coerce import compare, to_number
+from .coerce import compare, fold, to_number
 from .evaluate import ALL_ARGUMENTS, Context, builtin, collect, evaluate
 from .fn_lookup import wildcard
 from .nodes import Node, Ref, Name, Scalar
@@ -62,8 +62,8 @@ def _text_criterion(text: str) -> Callable[[Scalar], bool]:
             return lambda x: type(x) is str and regex.fullmatch(x) is not None
         return lambda x: not (type(x) is str and regex.fullmatch(x) is not None)
     if op == "<>":
-        folded = rest.casefold()
-        return lambda x: not (type(x) is str and x.casefold() == folded)
+        folded = fold(rest)
+        return lambda x: not (type(x) is str and fold(x) == folded)
     test = _TESTS[op]
     return lambda x: type(x) is str and test(compare(x, rest))
 

@@ -21,7 +21,7 @@ from typing import Callable
 
 from ..errors import DIV0, NUM, VALUE, CellError
 from .arrays import Value, as_array
-from .coerce import to_number, to_text
+from .coerce import fold, to_number, to_text
 from .evaluate import builtin
 from .fn_count import criterion
 from .nodes import Scalar
@@ -43,7 +43,7 @@ def _column(header: list[Scalar], field: Scalar) -> int | CellError:
     if type(name) is CellError:
         return name
     for i, h in enumerate(header):
-        if type(h) is str and h.casefold() == name.casefold():
+        if type(h) is str and fold(h) == fold(name):
             return i
     return CellError(VALUE, f'the database has no field "{name}"')
 

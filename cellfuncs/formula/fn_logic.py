@@ -89,6 +89,14 @@ def _logicals(context: Context, nodes: tuple[Node, ...], name: str) -> list | Ce
     values = collect(context, nodes, to_bool, _logical_element)
     if type(values) is list and not values:
         return CellError(VALUE, f"{name} found no logical values")
+    if type(values) is CellError and values.code == VALUE:
+        # an error value among the arguments wins over text that is not TRUE or FALSE:
+        # AND(TRUE, "0", #REF!) is #REF! in Excel
+        for node in nodes:
+            v = evaluate(node, context)
+            found = v if type(v) is CellError else first_error(v) if type(v) is np.ndarray else None
+            if found is not None and found.code != VALUE:
+                return found
     return values
 
 

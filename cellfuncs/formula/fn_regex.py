@@ -1,10 +1,13 @@
 """Built-in regular-expression functions: REGEXTEST, REGEXEXTRACT, REGEXREPLACE.
 
-Excel's patterns are PCRE2's; they run here on Python's ``re``, with PCRE2's spellings that
-``re`` lacks translated: named groups ``(?<name>...)`` and ``(?'name'...)``, back references
-``\\k<name>``, the anchors ``\\z`` (the very end) and ``\\Z`` (the end or before a final
-newline). Replacements use PCRE2's ``$1``, ``${1}``, ``${name}`` and ``$$``. A pattern that
-does not compile is #VALUE!.
+Excel's patterns are PCRE2's; they run here on the ``regex`` package (Python's ``re``
+syntax plus Unicode properties ``\\p{Lu}``, atomic groups and possessive quantifiers, and a
+time limit, which ``re`` lacks: a pattern that backtracks without end, such as ``(x+x+)+y``,
+would otherwise hang the recalculation). PCRE2's spellings it lacks are translated: named
+groups ``(?<name>...)`` and ``(?'name'...)``, back references ``\\k<name>``, the anchors
+``\\z`` (the very end) and ``\\Z`` (the end or before a final newline). Replacements use
+PCRE2's ``$1``, ``${1}``, ``${name}`` and ``$$``. A pattern that does not compile, or one
+match that takes longer than :data:`TIME_LIMIT`, is #VALUE!.
 
 >>> from cellfuncs.formula import compute
 >>> compute('=REGEXTEST("Sherlock", "^[A-Z]")'), compute('=REGEXEXTRACT("10 apples, 12 pears", "[0-9]+", 1)').tolist()
@@ -17,7 +20,7 @@ from __future__ import annotations
 
 import re
 from functools import lru_cache
-from typing import Callable
+from typing import Any, Callable
 
 import numpy as np
 
@@ -70,15 +73,37 @@ def python_pattern(pattern: str) -> str:
     return "".join(out)
 
 
+TIME_LIMIT = 0.25  # seconds one match may take
+_TOO_SLOW = CellError(VALUE, f"the pattern takes longer than {TIME_LIMIT} s to match (it backtracks without end)")
+
+
 @lru_cache(maxsize=256)
-def _compiled(pattern: str, ignore_case: bool) -> re.Pattern | CellError:
+def _compiled(pattern: str, ignore_case: bool) -> Any:
+    # imported here so that only workbooks with patterns pay for it
+    import regex  # pylint: disable=import-outside-toplevel
+
     try:
-        return re.compile(python_pattern(pattern), re.IGNORECASE if ignore_case else 0)
-    except (re.error, RecursionError) as exc:
+        return regex.compile(python_pattern(pattern), regex.IGNORECASE if ignore_case else 0)
+    except (regex.error, RecursionError) as exc:
         return CellError(VALUE, f"the pattern does not compile: {exc}")
 
 
-def _regex(pattern: Scalar, case_sensitivity: Scalar) -> re.Pattern | CellError:
+def _first(pattern: Any, t: str) -> Any:
+    """The first match (None if none), or the error when matching takes too long."""
+    try:
+        return pattern.search(t, timeout=TIME_LIMIT)
+    except TimeoutError:
+        return _TOO_SLOW
+
+
+def _every(pattern: Any, t: str) -> list | CellError:
+    try:
+        return list(pattern.finditer(t, timeout=TIME_LIMIT))
+    except TimeoutError:
+        return _TOO_SLOW
+
+
+def _regex(pattern: Scalar, case_sensitivity: Scalar) -> Any:
     """The compiled pattern; ``case_sensitivity`` 0 (default) matches case, 1 ignores it."""
     p = to_text(pattern)
     if type(p) is CellError:
@@ -87,7 +112,7 @@ def _regex(pattern: Scalar, case_sensitivity: Scalar) -> re.Pattern | CellError:
     return fold if type(fold) is CellError else _compiled(p, bool(fold))
 
 
-def _searched(text: Scalar, pattern: Scalar, case_sensitivity: Scalar) -> tuple[str, re.Pattern] | CellError:
+def _searched(text: Scalar, pattern: Scalar, case_sensitivity: Scalar) -> tuple[str, Any] | CellError:
     t = to_text(text)
     if type(t) is CellError:
         return t
@@ -104,7 +129,10 @@ def regextest(text: Scalar, pattern: Scalar, case_sensitivity: Scalar = None) ->
     (False, True)
     """
     found = _searched(text, pattern, case_sensitivity)
-    return found if type(found) is CellError else found[1].search(found[0]) is not None
+    if type(found) is CellError:
+        return found
+    first = _first(found[1], found[0])
+    return first if first is _TOO_SLOW else first is not None
 
 
 def _row(texts: list[str]) -> Value:
@@ -127,13 +155,14 @@ def _extracted(text: Scalar, pattern: Scalar, mode: Scalar, case_sensitivity: Sc
         return how
     if how not in (0, 1, 2):
         return CellError(VALUE, f"REGEXEXTRACT's return_mode must be 0, 1 or 2, not {how}")
-    first = regex.search(t)
-    if first is None:
-        return CellError(NA, "the pattern matches no part of the text")
+    first = _first(regex, t)
+    if first is None or first is _TOO_SLOW:
+        return first or CellError(NA, "the pattern matches no part of the text")
     if how == 0:
         return first.group()
     if how == 1:
-        return _row([m.group() for m in regex.finditer(t)])
+        every = _every(regex, t)
+        return every if type(every) is CellError else _row([m.group() for m in every])
     if not regex.groups:
         return CellError(NA, "the pattern has no capturing groups")
     return _row([g or "" for g in first.groups()])
@@ -154,7 +183,7 @@ def regexextract(text: Value, pattern: Value, return_mode: Value = None, case_se
     return map_values(lambda *xs: as_array(_extracted(*xs))[0, 0], *args)
 
 
-def _substitution(replacement: str, regex: re.Pattern) -> Callable[[re.Match], str] | CellError:
+def _substitution(replacement: str, regex: Any) -> Callable[[Any], str] | CellError:
     """PCRE2's replacement text as a function of the match: ``$n``, ``${n}``, ``${name}``,
     ``$name`` insert a group (an unmatched one as nothing), ``$$`` a dollar sign."""
     parts: list[str | int] = []
@@ -175,10 +204,12 @@ def _substitution(replacement: str, regex: re.Pattern) -> Callable[[re.Match], s
     return lambda m: "".join(p if type(p) is str else (m.group(p) or "") for p in parts)
 
 
-def _replaced(t: str, regex: re.Pattern, insert: Callable[[re.Match], str], occurrence: int) -> str | CellError:
+def _replaced(t: str, regex: Any, insert: Callable[[Any], str], occurrence: int) -> str | CellError:
     """``t`` with every match replaced (``occurrence`` 0) or only the n-th (negative: from the
     end); the length is counted as it grows, so a result no cell holds is never built."""
-    matches = list(regex.finditer(t))
+    matches = _every(regex, t)
+    if type(matches) is CellError:
+        return matches
     if occurrence:
         at = occurrence - 1 if occurrence > 0 else occurrence
         matches = matches[at:at + 1 or None] if -len(matches) <= at < len(matches) else []

@@ -20,7 +20,7 @@ import numpy as np
 from ..errors import CALC, CODES, VALUE, CellError
 from .arrays import Value, as_array, shape_text
 from .budget import charge
-from .coerce import compare, to_bool
+from .coerce import compare, fold, to_bool
 from .evaluate import ALL_ARGUMENTS, builtin
 from .fn_shape import flag, whole
 from .nodes import Scalar
@@ -160,7 +160,7 @@ def sortby(array: Value, *by_arrays_and_orders: Value) -> Value:
 def _same(x: Scalar) -> tuple:
     """What makes two values the same for UNIQUE: type and value, text ignoring case."""
     if type(x) is str:
-        return str, x.casefold()
+        return str, fold(x)
     if type(x) is CellError:
         return CellError, x.code
     return type(x), x

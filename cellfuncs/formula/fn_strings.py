@@ -21,7 +21,7 @@ import numpy as np
 from ..errors import NA, VALUE, CellError
 from .arrays import Value, as_array, elementwise, map_values
 from .budget import MAX_TEXT  # the most characters a cell holds
-from .coerce import to_bool, to_number, to_text
+from .coerce import fold, to_bool, to_number, to_text
 from .evaluate import builtin
 from .fn_lookup import wildcard
 from .fn_shape import built, flag, padding, single
@@ -220,7 +220,7 @@ def rept(text: Scalar, n: Scalar) -> Scalar:
     return t * k
 
 
-def _finder(name: str, fold: bool):
+def _finder(name: str, ignore_case: bool):
     @elementwise
     def find(needle: Scalar, haystack: Scalar, start: Scalar = 1.0) -> Scalar:
         parts = _texts(needle, haystack)
@@ -232,9 +232,9 @@ def _finder(name: str, fold: bool):
         n, h = parts
         if s > len(h) + (1 if n == "" else 0):
             return CellError(VALUE, f"{name}'s start is beyond the text")
-        if fold:
+        if ignore_case:
             m = wildcard(n).search(h, s - 1) if any(ch in n for ch in "*?~") else None
-            pos = m.start() if m else h.casefold().find(n.casefold(), s - 1) if not any(ch in n for ch in "*?~") else -1
+            pos = m.start() if m else fold(h).find(fold(n), s - 1) if not any(ch in n for ch in "*?~") else -1
         else:
             pos = h.find(n, s - 1)
         return float(pos + 1) if pos >= 0 else CellError(VALUE, f'"{n}" was not found')

@@ -33,6 +33,7 @@ Decisions:
 from __future__ import annotations
 
 import bisect
+import math
 from dataclasses import dataclass
 from typing import Any, Callable, Iterator, Mapping, NamedTuple
 
@@ -836,8 +837,43 @@ class Recalc:
                     self.progress(done, total)
                     step = done + 2000
 
+    def _iterate(self, graph: Graph, comp: list[int]) -> None:
+        """Excel's iterative calculation, as the workbook asks for it: the loop's cells are
+        evaluated in turn, in sheet order, from their stored values, until none changes by
+        more than the maximum change or the maximum count is reached."""
+        count, delta = self.book.iteration
+        units = graph.units
+        cells = sorted((fi for u in comp if u < len(units) for fi in units[u]), key=self._sort_key)
+        names = [(extra[1], extra[2]) for u in comp if u >= len(units)
+                 for extra in (graph.extras[u - len(units)],) if extra[0] == "name"]
+        for fi in cells:
+            fc = self.cells[fi]
+            cached = self.book.sheets[fc.sheet].scan.formulas[(fc.row, fc.col)].cached
+            self.values[fc.sheet][(fc.row, fc.col)] = cached if type(cached) is float else 0.0
+        for _ in range(count):
+            for key in names:  # the loop's names and ranges read the values of this sweep
+                self.name_values.pop(key, None)
+            self._blocks.clear()
+            self._kept = 0
+            change = 0.0
+            for fi in cells:
+                fc = self.cells[fi]
+                before = self.values[fc.sheet].get((fc.row, fc.col))
+                self._cell(fi)
+                after = self.values[fc.sheet].get((fc.row, fc.col))
+                if type(before) is float and type(after) is float:
+                    change = max(change, abs(after - before))
+                elif before != after:
+                    change = math.inf
+            if change <= delta:
+                return
+
     def _loop(self, graph: Graph, comp: list[int]) -> None:
-        """Every cell of a loop holds #CALC! naming it; so does every name on it."""
+        """Every cell of a loop holds #CALC! naming it; so does every name on it (unless the
+        workbook asks for iterative calculation: :meth:`_iterate`)."""
+        if self.book.iteration is not None:
+            self._iterate(graph, comp)
+            return
         units = graph.units
         members = set(comp)
         shared = None

@@ -82,6 +82,7 @@ class Book:
     parsed: set[str] = field(default_factory=set)  # parts read here (the rest are only validated)
     tables: list[Table] = field(default_factory=list)
     date1904: bool = False  # the workbook counts dates from 1904-01-01 (Excel's Mac date system)
+    iteration: tuple[int, float] | None = None  # iterative calculation: (maximum count, maximum change)
 
     def sheet(self, name: str) -> Sheet | None:
         lowered = name.lower()
@@ -209,8 +210,27 @@ def load(pkg: Package) -> Book:
             scope = el.get("localSheetId")
             key = (int(scope) if scope is not None and scope.isdigit() else None, el.get("name", "").upper())
             names[key] = (el.text or "").strip()
-    date1904 = any(el.get("date1904", "").lower() in ("1", "true") for el in _children(root, "workbookPr"))
-    return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables, date1904)
+    date1904 = any(_flag(el, "date1904") for el in _children(root, "workbookPr"))
+    return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables, date1904, _iteration(root))
+
+
+def _flag(el: Element, name: str) -> bool:
+    return el.get(name, "").lower() in ("1", "true")
+
+
+def _iteration(root: Element) -> tuple[int, float] | None:
+    """The workbook's iterative-calculation setting (File > Options > Formulas: enable
+    iterative calculation, maximum iterations, maximum change; the file's defaults 100 and
+    0.001), None when it is off."""
+    for el in _children(root, "calcPr"):
+        if _flag(el, "iterate"):
+            try:
+                count, delta = int(el.get("iterateCount", "100")), float(el.get("iterateDelta", "0.001"))
+            except ValueError:
+                raise Refused(f"calcPr: iterateCount {el.get('iterateCount')!r} or iterateDelta "
+                              f"{el.get('iterateDelta')!r} is not a number") from None
+            return max(1, min(count, 32767)), abs(delta)
+    return None
 
 
 def _tables(pkg: Package, part: str, sheet: int, sheet_name: str, parsed: set[str]) -> list[Table]:
