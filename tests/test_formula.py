@@ -192,7 +192,7 @@ def test_parse_results_are_cached_and_immutable():
         ("={1,A1}", "array constant"),
         ('={-"a"}', "array constant"),
         ("={1,,2}", "array constant"),
-        ("=[1]Sheet1!A1", "other workbooks"),
+        ("=[Book1.xlsx]Sheet1!A1", "other workbooks"),  # a file writes [1]Sheet1!A1, numbered links
         ("=Sheet1:Sheet3!A1", "several sheets"),
         ("=@A1", "implicit intersection"),
         ("=1e400", "too large"),

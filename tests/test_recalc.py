@@ -477,15 +477,17 @@ def test_circular_references_are_calc_errors_naming_the_loop(tmp_path):
     assert [ws[c].value for c in ("A1", "B1", "C1", "D1", "E1")] == ["#CALC!"] * 5
 
 
-def test_external_references_and_dde_are_ref_errors(tmp_path):
+def test_links_the_file_keeps_no_values_of_are_ref_errors(tmp_path):
+    # tests/test_external_links.py checks links with stored values
     path = one_sheet(tmp_path, {"A1": "=[1]Sheet1!A1+1", "A2": "='[2]Other data'!B2", "A3": "=SUM([1]Sheet1!A1:A3)",
-                                "A4": "=NoSheet!A1"})
+                                "A4": "=NoSheet!A1", "A5": "=[Book2.xlsx]Sheet1!A1"})
     code, _, err = cli(str(path), "--in-place")
     assert code == 1
     ws = values(path)
-    assert [ws[c].value for c in ("A1", "A2", "A3", "A4")] == ["#REF!"] * 4
-    assert "S!A1: #REF! [1]Sheet1!A1+1 is an external reference (another workbook)" in err
+    assert [ws[c].value for c in ("A1", "A2", "A3", "A4", "A5")] == ["#REF!"] * 5
+    assert "S!A1: #REF! [1] is a link to another workbook whose values the file does not keep" in err
     assert "S!A4: #REF! there is no sheet named NoSheet" in err
+    assert "S!A5: #REF! [Book2.xlsx]Sheet1!A1 is an external reference (another workbook)" in err
 
 
 def test_defined_names_in_both_scopes_and_cross_sheet_ranges(tmp_path):

@@ -77,6 +77,8 @@ def _other_number_text(v: str) -> float | CellError:
     from .dates import parse_date_text
 
     x = parse_date_text(v)
+    if x is not None and v != v.strip():  # Excel reads " 10 " as 10 but not " 2024-01-10 " as a date
+        return CellError(VALUE, f"a date in text {_quote(v)} is not a number with spaces around it")
     return x if x is not None else CellError(VALUE, f"text {_quote(v)} is not a number")
 
 

@@ -1,8 +1,13 @@
 """Built-in math functions: SUM, AVERAGE, MIN, MAX, ROUND, ROUNDUP, ROUNDDOWN, ABS, SQRT, EXP,
-LN, LOG10, POWER, PI.
+LN, LOG10, POWER, PI; and the argument rules the math and engineering functions share.
 
 Aggregates take the numbers of ranges and arrays only (text, blanks and booleans there
 are skipped, as in Excel) but convert values typed as arguments.
+
+Two rules of Excel's stored values go beyond plain conversion (:func:`argument_number`): a date
+or time in text is a number only without spaces around it (``" 10 "`` is 10, ``" 2024-01-10 "``
+is #VALUE!), and the functions that came from the Analysis ToolPak (GCD, LCM, MROUND, QUOTIENT,
+the Bessel functions, DELTA, ...) take no logical values, where FLOOR or MOD read TRUE as 1.
 
 >>> from cellfuncs.formula import compute
 >>> compute('=SUM({1,"2",TRUE}, "2", TRUE)'), compute("=ROUND(-2.5, 0)")
@@ -11,16 +16,60 @@ are skipped, as in Excel) but convert values typed as arguments.
 
 from __future__ import annotations
 
+import functools
 import math
 from decimal import ROUND_DOWN, ROUND_HALF_UP, ROUND_UP
 from typing import Callable
 
-from ..errors import DIV0, NUM, CellError
-from .arrays import numeric
+from ..errors import DIV0, NUM, VALUE, CellError
+from .arrays import Value, elementwise, numeric
 from .coerce import decimal_round, to_number
 from .evaluate import Context, builtin, collect
 from .nodes import Node, Scalar
 from .operators import power
+
+
+def argument_number(v: Scalar, logicals: bool = True) -> float | CellError:
+    """``v`` as a number argument: :func:`to_number` (date or time text with spaces around it
+    is #VALUE!, as Excel's values of EXP, INT, FLOOR, GCD... of ``" 2024-01-10 "`` show), and
+    TRUE and FALSE are #VALUE! when ``logicals`` is False.
+
+    >>> argument_number(" 10 "), argument_number("2024-01-10"), argument_number(" 2024-01-10 ").code
+    (10.0, 45301.0, '#VALUE!')
+    >>> argument_number(True), argument_number(True, logicals=False).code
+    (1.0, '#VALUE!')
+    """
+    t = type(v)
+    if t is bool and not logicals:
+        return CellError(VALUE, "a logical value is not a number here")
+    return to_number(v)
+
+
+def screened(fn: Callable[..., float | CellError], logicals: bool = True) -> Callable[..., Value]:
+    """:func:`numeric` with the arguments converted by :func:`argument_number` (the first
+    error, in argument order, wins).
+
+    >>> twice = screened(lambda x: 2 * x, logicals=False)
+    >>> twice("4"), twice(True).code, twice(" 2024-01-10 ").code
+    (8.0, '#VALUE!', '#VALUE!')
+    """
+    computed = numeric(fn)
+
+    def scalar(*args: Scalar) -> Scalar:
+        numbers = []
+        for a in args:
+            x = argument_number(a, logicals)
+            if type(x) is CellError:
+                return x
+            numbers.append(x)
+        return computed(*numbers)
+
+    return elementwise(functools.wraps(fn)(scalar))
+
+
+def toolpak(fn: Callable[..., float | CellError]) -> Callable[..., Value]:
+    """:func:`screened` for a function of the former Analysis ToolPak: no logical values."""
+    return screened(fn, logicals=False)
 
 
 def _number_element(x: Scalar) -> float | None:
@@ -76,8 +125,8 @@ def _log(fn: Callable[[float], float]) -> Callable[[float], float | CellError]:
 
 builtin("ABS", 1)(numeric(abs))
 builtin("SQRT", 1)(numeric(_sqrt))
-builtin("EXP", 1)(numeric(math.exp))
-builtin("LN", 1)(numeric(_log(math.log)))
-builtin("LOG10", 1)(numeric(_log(math.log10)))
+builtin("EXP", 1)(screened(math.exp))
+builtin("LN", 1)(screened(_log(math.log)))
+builtin("LOG10", 1)(screened(_log(math.log10)))
 builtin("POWER", 2)(numeric(power))
 builtin("PI", 0)(lambda: math.pi)

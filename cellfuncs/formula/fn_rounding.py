@@ -3,7 +3,11 @@ forms, ISO.CEILING, MROUND, INT, TRUNC, EVEN, ODD.
 
 Excel divides by the multiple, takes the quotient at 15 significant digits (so 7.1/0.1,
 70.99999999999999 in binary, counts as 71) and multiplies back: ``FLOOR(7.1, 0.1)`` is
-``71*0.1``, 7.1000000000000005, as Excel stores it.
+``71*0.1``, 7.1000000000000005, as Excel stores it. The digits are the quotient's own: a tiny
+quotient stays what it is, so ``CEILING(1E-12, 1)`` is 1 and ``FLOOR(-1E-12, 1)`` is -1.
+
+Arguments are converted as :func:`.fn_math.argument_number` says: TRUE is 1, date text with
+spaces around it is #VALUE!; MROUND, from the Analysis ToolPak, takes no logical values.
 
 >>> from cellfuncs.formula import compute
 >>> compute("=FLOOR(-2.5, 2)"), compute("=CEILING(-2.5, 2)"), compute("=FLOOR.MATH(-2.5, 2, 1)")
@@ -17,15 +21,15 @@ from decimal import ROUND_DOWN
 from typing import Callable
 
 from ..errors import DIV0, NUM, CellError
-from .arrays import numeric
 from .coerce import decimal_round
 from .evaluate import builtin
+from .fn_math import screened, toolpak
 
 
 def _quotient(x: float, step: float) -> float:
     q = x / step
     r = round(q)
-    return float(r) if abs(q - r) <= 1e-12 * max(1.0, abs(q)) else q
+    return float(r) if abs(q - r) <= 1e-12 * abs(q) else q
 
 
 def _multiple(x: float, step: float, rounding: Callable[[float], float]) -> float:
@@ -33,7 +37,7 @@ def _multiple(x: float, step: float, rounding: Callable[[float], float]) -> floa
 
 
 @builtin("FLOOR", 2)
-@numeric
+@screened
 def floor(x: float, step: float) -> float | CellError:
     """``x`` rounded toward minus infinity (both negative: toward zero) to a multiple of ``step``.
 
@@ -48,7 +52,7 @@ def floor(x: float, step: float) -> float | CellError:
 
 
 @builtin("CEILING", 2)
-@numeric
+@screened
 def ceiling(x: float, step: float) -> float | CellError:
     """``x`` rounded toward plus infinity (both negative: away from zero) to a multiple of ``step``;
     a multiple of 0 gives 0.
@@ -75,7 +79,7 @@ def _math_form(name: str, up: bool) -> None:
         return _multiple(x, step, math.ceil if toward_plus else math.floor)
 
     fn.__doc__ = f"{name}(number, [significance], [mode]): {'up' if up else 'down'} to a multiple."
-    builtin(name, 1, 3)(numeric(fn))
+    builtin(name, 1, 3)(screened(fn))
 
 
 _math_form("CEILING.MATH", True)
@@ -91,7 +95,7 @@ def _precise_form(name: str, up: bool) -> None:
         return 0.0 if step == 0.0 else _multiple(x, step, math.ceil if up else math.floor)
 
     fn.__doc__ = f"{name}(number, [significance]): {'up' if up else 'down'} to a multiple."
-    builtin(name, 1, 2)(numeric(fn))
+    builtin(name, 1, 2)(screened(fn))
 
 
 _precise_form("CEILING.PRECISE", True)
@@ -100,7 +104,7 @@ _precise_form("FLOOR.PRECISE", False)
 
 
 @builtin("MROUND", 2)
-@numeric
+@toolpak
 def mround(x: float, step: float) -> float | CellError:
     """``x`` rounded to the nearest multiple of ``step`` (halves away from zero); signs must agree.
 
@@ -116,7 +120,7 @@ def mround(x: float, step: float) -> float | CellError:
 
 
 @builtin("INT", 1)
-@numeric
+@screened
 def int_(x: float) -> float:
     """``x`` rounded down to an integer.
 
@@ -127,7 +131,7 @@ def int_(x: float) -> float:
 
 
 @builtin("TRUNC", 1, 2)
-@numeric
+@screened
 def trunc(x: float, digits: float = 0.0) -> float:
     """``x`` cut to ``digits`` decimals (negative: tens, hundreds...), toward zero.
 
@@ -145,7 +149,7 @@ def _to_parity(x: float, odd: bool) -> float:
 
 
 @builtin("EVEN", 1)
-@numeric
+@screened
 def even(x: float) -> float:
     """``x`` rounded away from zero to an even integer.
 
@@ -156,7 +160,7 @@ def even(x: float) -> float:
 
 
 @builtin("ODD", 1)
-@numeric
+@screened
 def odd(x: float) -> float:
     """``x`` rounded away from zero to an odd integer.
 

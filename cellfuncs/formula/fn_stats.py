@@ -172,7 +172,7 @@ def _paired(name: str, fn: Callable[[np.ndarray, np.ndarray], float | CellError]
         return r if type(r) is CellError or math.isfinite(r) else CellError(DIV0, f"{name} is undefined here")
 
     pair_stat.__doc__ = f"{name}(array1, array2)."
-    builtin(name, 2)(pair_stat)
+    builtin(name, 2, arrays=(0, 1))(pair_stat)  # array-class: SLOPE(A1:A5*2, B1:B5) in a plain formula
 
 
 def _cov(y, x, ddof):

@@ -34,6 +34,7 @@ MAX_DEPTH = 200
 _FILE_PREFIXES = re.compile(r"_xl(?:fn|ws|udf)\.", re.IGNORECASE)  # written in the file, not typed by users
 _FUNCTION_NAME = re.compile(r"[A-Za-z_][A-Za-z0-9_.]*\Z")
 _NAME = re.compile(r"[^\W\d][\w.?\\]*\Z")
+_LINKED = re.compile(r"\[\d+\][^\[\]]*!")  # [1]Sheet1!A1, [1]!Name: another workbook, as the file numbers it
 _SHEET = re.compile(r"(?:'((?:[^']|'')+)'|([^'!]+))!(.+)\Z")
 _CELL = r"\$?([A-Za-z]{1,3})\$?([0-9]{1,7})"
 _COLUMN = r"\$?([A-Za-z]{1,3})"
@@ -62,7 +63,7 @@ def _operand(text: str) -> Node:
     """A RANGE token of the tokenizer: a reference, a defined name, or TRUE/FALSE in lower case."""
     if text.startswith("@"):
         raise FormulaSyntaxError("the implicit intersection operator @ is not supported")
-    if text.startswith("["):
+    if text.startswith("[") and not _LINKED.match(text):
         raise FormulaSyntaxError(f"{text}: references to other workbooks are not supported")
     sheet, local = None, text
     m = _SHEET.match(text)

@@ -45,6 +45,7 @@ from ..formula.evaluate import anchored
 from ..formula.budget import active, charge
 from ..formula.dates import date_system
 from .areas import AreaIndex, Overlap
+from .external import linked_name, linked_values, split_link
 from .formula_text import formula_at
 from .graph import components, cycle
 from .limits import DEFAULTS, Limits, option
@@ -162,6 +163,9 @@ class _Context:
 
     def bounds(self, sheet: str | None, ref: str) -> tuple[int, int, int, int] | CellError:
         """First row, first column, last row, last column of a reference (for ROW, ROWS, ...)."""
+        if sheet is not None and sheet.startswith("[") and split_link(sheet) is not None:
+            a = area(ref)  # a reference into another workbook: where it points, not moved
+            return (a.r1, a.c1, a.r2, a.c2) if a is not None else CellError(REF, f"{ref} is not a reference")
         found = self._area(sheet, ref)
         if type(found) is CellError:
             return found
@@ -238,6 +242,11 @@ class _Context:
         return mask
 
     def reference(self, sheet: str | None, ref: str) -> Value:
+        if sheet is not None and sheet.startswith("["):
+            linked = split_link(sheet)
+            if linked is not None:
+                n, name = linked
+                return self.reference(name, ref) if n == 0 else linked_values(self.engine.book.links, n, name, ref)
         found = self._area(sheet, ref)
         if type(found) is CellError:
             return found
@@ -251,6 +260,10 @@ class _Context:
         engine = self.engine
         key = engine.resolve_name(self.sheet, text)
         if key is None:
+            linked = split_link(text) if text.startswith("[") else None
+            if linked is not None:  # [1]!Rate: a name of another workbook; [0]!Rate: of this one
+                n, name = linked
+                return self.name(name.lstrip("!")) if n == 0 else linked_name(engine.book.links, n, name.lstrip("!"))
             if "|" in text:
                 return CellError(REF, "a DDE link (another program's data) is not supported")
             if "[" in text:

@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 from typing import NamedTuple
 from xml.etree.ElementTree import Element
 
+from .external import ExternalBook, read_link
 from .package import Package, Refused
 from .sheetxml import MAX_FORMULAS, NAMESPACES, SheetScan, scan
 from .tables import Table, read_table
@@ -24,6 +25,9 @@ DOC_RELS = ("http://schemas.openxmlformats.org/officeDocument/2006/relationships
             "http://purl.oclc.org/ooxml/officeDocument/relationships")
 DYNAMIC_ARRAY_NS = "http://schemas.microsoft.com/office/spreadsheetml/2017/dynamicarray"
 DYNAMIC_TYPE = "XLDAPR"
+
+
+_REL_IDS = tuple(f"{{{ns}}}id" for ns in DOC_RELS)
 
 
 class Rel(NamedTuple):
@@ -83,6 +87,7 @@ class Book:
     tables: list[Table] = field(default_factory=list)
     date1904: bool = False  # the workbook counts dates from 1904-01-01 (Excel's Mac date system)
     iteration: tuple[int, float] | None = None  # iterative calculation: (maximum count, maximum change)
+    links: list[ExternalBook | None] = field(default_factory=list)  # [1], [2], ... of external references
 
     def sheet(self, name: str) -> Sheet | None:
         lowered = name.lower()
@@ -191,7 +196,7 @@ def load(pkg: Package) -> Book:
     for block in _children(root, "sheets"):
         for n, el in enumerate(_children(block, "sheet")):
             check_sheet(el, sheet_names, sheet_ids)
-            rid = next((v for k, v in el.attrib.items() if k in tuple(f"{{{ns}}}id" for ns in DOC_RELS)), None)
+            rid = _rel_id(el)
             rel = rels.get(rid)
             if rel is None:  # Excel could not open it either: nothing says where the sheet is
                 raise Refused(f"sheet {el.get('name')!r}: relationship {rid!r} missing from {rels_part(wb_part)}")
@@ -211,7 +216,28 @@ def load(pkg: Package) -> Book:
             key = (int(scope) if scope is not None and scope.isdigit() else None, el.get("name", "").upper())
             names[key] = (el.text or "").strip()
     date1904 = any(_flag(el, "date1904") for el in _children(root, "workbookPr"))
-    return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables, date1904, _iteration(root))
+    return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables, date1904, _iteration(root),
+                _links(pkg, root, rels, parsed))
+
+
+def _rel_id(el: Element) -> str | None:
+    """The relationship id (``r:id``) an element points through."""
+    return next((v for k, v in el.attrib.items() if k in _REL_IDS), None)
+
+
+def _links(pkg: Package, root: Element, rels: dict[str, Rel], parsed: set[str]) -> list[ExternalBook | None]:
+    """The other workbooks' stored values, in the order formulas number them ([1], [2], ...)."""
+    out: list[ExternalBook | None] = []
+    for block in _children(root, "externalReferences"):
+        for el in _children(block, "externalReference"):
+            rid = _rel_id(el)
+            rel = rels.get(rid)
+            if rel is None or rel.external or rel.target not in pkg:
+                out.append(None)
+                continue
+            out.append(read_link(pkg.xml(rel.target), rel.target))
+            parsed.add(rel.target)
+    return out
 
 
 def _flag(el: Element, name: str) -> bool:

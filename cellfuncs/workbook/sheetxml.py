@@ -292,29 +292,7 @@ class _Scanner:
                                        self.cell_attrs.get("cm"), value)
 
     def _value(self, kind: str, text: str | None) -> object:
-        if text is None:
-            return None
-        if kind == "s":
-            try:
-                return self.strings[int(text)]
-            except (ValueError, IndexError):
-                raise Refused(f"{self.out.part}: shared string {text!r} does not exist") from None
-        if kind in ("str", "inlineStr", "d"):
-            return text
-        if kind == "b":
-            return text.strip() in ("1", "true")
-        if kind == "e":
-            code = text.strip()
-            return CellError(code if code in CODES else "#VALUE!")
-        if not text.strip():
-            return None
-        try:
-            x = float(text)
-        except ValueError:
-            raise Refused(f"{self.out.part}: cell value {text[:20]!r} is not a number") from None
-        if not math.isfinite(x):  # NaN, INF or an exponent beyond a double: no cell holds such a number
-            return CellError(NUM, f"the stored number {text.strip()[:20]} is not a finite number")
-        return x
+        return stored_value(kind, text, self.strings, self.out.part)
 
     def close(self) -> SheetScan:
         return self.out
@@ -328,3 +306,31 @@ def scan(data: bytes, part: str, budget: list[int], strings: list[str] | None = 
     """
     scanner = _Scanner(data, part, strings or [], budget)
     return parse_xml(data, part, scanner)
+
+
+def stored_value(kind: str, text: str | None, strings: list[str], part: str) -> object:
+    """The value a cell stores, read by its type ``t`` (``s`` an index into ``strings``);
+    ``part`` names the part in the refusals."""
+    if text is None:
+        return None
+    if kind == "s":
+        try:
+            return strings[int(text)]
+        except (ValueError, IndexError):
+            raise Refused(f"{part}: shared string {text!r} does not exist") from None
+    if kind in ("str", "inlineStr", "d"):
+        return text
+    if kind == "b":
+        return text.strip() in ("1", "true")
+    if kind == "e":
+        code = text.strip()
+        return CellError(code if code in CODES else "#VALUE!")
+    if not text.strip():
+        return None
+    try:
+        x = float(text)
+    except ValueError:
+        raise Refused(f"{part}: cell value {text[:20]!r} is not a number") from None
+    if not math.isfinite(x):  # NaN, INF or an exponent beyond a double: no cell holds such a number
+        return CellError(NUM, f"the stored number {text.strip()[:20]} is not a finite number")
+    return x

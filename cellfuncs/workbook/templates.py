@@ -14,8 +14,8 @@ its own parse.
 >>> a, b = t.get("=A2*2", 2, 2), t.get("=A3*2", 3, 2)
 >>> a is b, (a.row, a.col), a.batchable
 (True, (2, 2), True)
->>> print(t.get("=[1]Sheet1!A1", 1, 1).error)
-#REF! [1]Sheet1!A1 is an external reference (another workbook)
+>>> print(t.get("=[Book2.xlsx]Sheet1!A1", 1, 1).error)
+#REF! [Book2.xlsx]Sheet1!A1 is an external reference (another workbook)
 """
 
 from __future__ import annotations
