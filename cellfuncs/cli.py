@@ -198,10 +198,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         if args.command == "eval":
             return _evaluate(args.formulas, args.json)
         if args.command == "recalc":
-            from .workbook.command import limits_of, run
+            from .workbook.command import limits_of, run, volatility_of
 
             return run(args.workbooks, args.out, args.in_place, args.check, args.tolerance, limits_of(args),
-                       args.split_hard_links, args.jobs, args.shard)
+                       args.split_hard_links, args.jobs, args.shard, volatility_of(args))
         if args.command == "units":
             return _units()
         if args.command == "excel-setup":

@@ -56,3 +56,13 @@ def test_reference_workbooks(name):
 def test_the_spill_operator_needs_a_workbook():
     # tests/test_references.py checks ANCHORARRAY( (the file's spelling of A1#) in workbooks
     assert compute("=SUM(ANCHORARRAY(A1))").code == "#REF!"
+
+
+def test_the_implicit_intersection_operator(tmp_path):
+    # =@A1:A3 (written SINGLE( in the file) in row 2 is A2 (Microsoft Support, "Implicit
+    # intersection operator: @", from memory); of an array, its first element
+    path = one_sheet(tmp_path, {"A1": 1.0, "A2": 2.0, "A3": 3.0, "B2": "=_xlfn.SINGLE(A1:A3)*10",
+                                "B3": "=_xlfn.SINGLE({5,6})"}, spills=("B2", "B3"))
+    cli(str(path), "--in-place")
+    got = values(path)
+    assert got["B2"].value == 20 and got["B3"].value == 5

@@ -106,6 +106,16 @@ def test_the_intersection_operator(tmp_path):
     assert parse("=A1:B2 B2:C3+1").op == "+"  # the space binds tighter than arithmetic
 
 
+def test_three_dimensional_references(tmp_path):
+    """``Jan:Mar!B2`` stands for B2 on every sheet from Jan to Mar in workbook order (Microsoft
+    Support, "Create a reference to the same cell range on multiple worksheets", from memory)."""
+    months = {name: {"B2": float(10 * i), "C2": float(i)} for i, name in enumerate(["Jan", "Feb", "Mar", "Apr"], 1)}
+    ws = _recalc(tmp_path, {"A1": "=SUM(Jan:Mar!B2)", "A2": "=AVERAGE(Mar:Jan!B2:C2)", "A3": "=COUNT(Feb:Apr!B2)",
+                            "A4": "=MAX(Jan:Apr!C2)"}, months)
+    assert ws["A1"].value == 60 and ws["A2"].value == pytest.approx(66 / 6) and ws["A3"].value == 3
+    assert ws["A4"].value == 4
+
+
 def test_the_spill_operator(tmp_path):
     """``A1#`` (written ANCHORARRAY(A1) in the file) is the range A1's formula spilled over; a
     legacy array formula's range counts (Excel's stored values in IronCalc's spill-operator
@@ -125,6 +135,8 @@ def test_the_spill_operator(tmp_path):
 
 @pytest.mark.parametrize("name", [
     "ironcalc/xlsx_tests_calc_tests_spill_operator.xlsx",
+    "poi/test-data_spreadsheet_55906-MultiSheetRefs.xlsx",
+    "poi/test-data_spreadsheet_FormulaSheetRange.xlsx",
     "ironcalc/xlsx_tests_calc_tests_range_operator.xlsx",
     "poi/test-data_spreadsheet_StructuredRefs-lots-with-lookups.xlsx",
     "poi/test-data_spreadsheet_Intersection-52111-xssf.xlsx",

@@ -157,6 +157,8 @@ def numeric(fn: Callable[..., float | CellError]) -> Callable[..., Value]:
             return _NOT_FINITE
         if type(r) is float and not math.isfinite(r):
             return _TOO_LARGE if r == r else _NOT_FINITE
+        if type(r) is complex:  # a negative number to a fractional power: no real result
+            return _NOT_FINITE
         return r
 
     return elementwise(functools.wraps(fn)(scalar))

@@ -287,22 +287,26 @@ def _call(node: Call, context: Context) -> Value:
         implicit = getattr(context, "implicit", False)
         if spec.lazy:  # it evaluates its own arguments: with array-class ones, all as arrays
             if implicit and spec.arrays:
-                return in_array_mode(context, spec.fn, context, *node.args)
-            return spec.fn(context, *node.args)
-        if not implicit:
-            args = [evaluate(a, context) for a in node.args]
+                result = in_array_mode(context, spec.fn, context, *node.args)
+            else:
+                result = spec.fn(context, *node.args)
         else:
-            args = [in_array_mode(context, evaluate, a, context) if i in spec.arrays
-                    else _operand(a, context) if spec.takes_values else evaluate(a, context)
-                    for i, a in enumerate(node.args)]
-        for a in args:
-            if type(a) is Lambda:
-                return _uncalled()
-        return spec.fn(*args)
+            if not implicit:
+                args = [evaluate(a, context) for a in node.args]
+            else:
+                args = [in_array_mode(context, evaluate, a, context) if i in spec.arrays
+                        else _operand(a, context) if spec.takes_values else evaluate(a, context)
+                        for i, a in enumerate(node.args)]
+            for a in args:
+                if type(a) is Lambda:
+                    return _uncalled()
+            result = spec.fn(*args)
     except ZeroDivisionError:  # arithmetic a built-in did not guard: still a cell value, never a crash
         return CellError(DIV0, f"{node.name}: division by zero")
     except (OverflowError, ValueError):
         return CellError(NUM, f"{node.name}: the result is not a finite number")
+    # a negative number to a fractional power that a built-in did not guard: no real result
+    return CellError(NUM, f"{node.name}: the result is not a real number") if type(result) is complex else result
 
 
 def _charge_call(args: list) -> CellError | None:
@@ -322,11 +326,18 @@ def _binary(node: Binary, context: Context) -> Value:
     if node.op == ":" or node.op == " ":
         found = _range_between(node, context) if node.op == ":" else _intersection(node, context)
         return found if type(found) is CellError else dereference(found, context)
-    # both sides even after an error on the left: an array on the right still shapes the result
-    left, right = _operand(node.left, context), _operand(node.right, context)
-    if type(left) is Lambda or type(right) is Lambda:
-        return _uncalled()
-    return BINARY[node.op](left, right)
+    # a chain such as A1+A2+...+A300 is a left-leaning tree: walked in a loop, not by recursion
+    spine = [node]
+    while type(spine[-1].left) is Binary and spine[-1].left.op not in (":", " "):
+        spine.append(spine[-1].left)
+    value = _operand(spine[-1].left, context)
+    for b in reversed(spine):
+        # both sides even after an error on the left: an array on the right still shapes the result
+        right = _operand(b.right, context)
+        if type(value) is Lambda or type(right) is Lambda:
+            return _uncalled()
+        value = BINARY[b.op](value, right)
+    return value
 
 
 # ---- functions as values (see formula.lambdas) ---------------------------------------------

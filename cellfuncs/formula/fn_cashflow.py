@@ -14,20 +14,24 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from ..errors import DIV0, NUM, VALUE, CellError
 from .arrays import numeric
 from .coerce import to_number
 from .evaluate import Context, builtin, collect, evaluate
-from .fn_finance import _flows, _newton, ipmt, ppmt
+from .fn_finance import _bracketed_root, _flows, _newton, ipmt, ppmt
 from .fn_securities import numbers
 from .nodes import Node
 
 
 # --- dated cash flows ----------------------------------------------------------------------
 
-def _dated(context: Context, values: Node, dates: Node) -> tuple[list[float], list[int]] | CellError:
-    """Flows and their whole-day dates, as many of each, no date before the first."""
-    flows, days = _flows(context, (values,)), _flows(context, (dates,))
+def _dated(context: Context, values: Node, dates: Node, blank: float | CellError,
+           other: CellError) -> tuple[list[float], list[int]] | CellError:
+    """Flows and their whole-day dates, as many of each, no date before the first. A blank
+    flow is ``blank``, text or a logical value among the flows ``other``."""
+    flows, days = _cells(context, values, blank, other), _flows(context, (dates,))
     for x in (flows, days):
         if type(x) is CellError:
             return x
@@ -39,6 +43,18 @@ def _dated(context: Context, values: Node, dates: Node) -> tuple[list[float], li
     return flows, whole
 
 
+def _cells(context: Context, node: Node, blank: float | CellError, other: CellError) -> list[float] | CellError:
+    """Every element of the flows, none skipped (their dates pair with them by position)."""
+    v = evaluate(node, context)
+    out = []
+    for x in (v.flat if type(v) is np.ndarray else (v,)):
+        y = x if type(x) in (float, CellError) else blank if x is None else other
+        if type(y) is CellError:
+            return y
+        out.append(y)
+    return out
+
+
 def _xnpv(r: float, flows: list[float], days: list[int]) -> float:
     return math.fsum(v / (1.0 + r) ** ((d - days[0]) / 365.0) for v, d in zip(flows, days))
 
@@ -46,31 +62,35 @@ def _xnpv(r: float, flows: list[float], days: list[int]) -> float:
 @builtin("XNPV", 3, lazy=True)
 def xnpv(context: Context, rate: Node, values: Node, dates: Node) -> float | CellError:
     """Net present value of flows on given dates: each discounted by (1 + rate) to the power
-    of its days after the first date over 365.
+    of its days after the first date over 365; a negative rate, a blank or text among the
+    flows is #NUM!.
 
     >>> from cellfuncs.formula import compute
     >>> round(compute("=XNPV(0.09, {-10000,2750,4250,3250,2750}, {39448,39508,39751,39859,39904})"), 2)
     2086.65
     """
     r = to_number(evaluate(rate, context))
-    found = _dated(context, values, dates)
+    not_number = CellError(NUM, "XNPV's values must be numbers")
+    found = _dated(context, values, dates, not_number, not_number)
     for x in (r, found):
         if type(x) is CellError:
             return x
-    if r <= -1.0:
-        return CellError(NUM, "XNPV at a rate of -1 or below")
+    if r < 0.0:  # Excel's stored values: #NUM! at -0.3 and -0.4
+        return CellError(NUM, "XNPV at a negative rate")
     return _xnpv(r, *found)
 
 
 @builtin("XIRR", 2, 3, lazy=True)
 def xirr(context: Context, values: Node, dates: Node, guess: Node | None = None) -> float | CellError:
-    """The internal rate of return of flows on given dates: the rate at which XNPV is 0.
+    """The internal rate of return of flows on given dates: the rate at which XNPV is 0
+    (Newton's method from ``guess``, else the root above -1 nearest it); a blank flow is 0,
+    text or a logical value among the flows #VALUE!.
 
     >>> from cellfuncs.formula import compute
     >>> round(compute("=XIRR({-10000,2750,4250,3250,2750}, {39448,39508,39751,39859,39904}, 0.1)"), 6)
     0.373363
     """
-    found = _dated(context, values, dates)
+    found = _dated(context, values, dates, 0.0, CellError(VALUE, "XIRR's values must be numbers"))
     g = 0.1 if guess is None else to_number(evaluate(guess, context))
     for x in (found, g):
         if type(x) is CellError:
@@ -78,7 +98,12 @@ def xirr(context: Context, values: Node, dates: Node, guess: Node | None = None)
     flows, days = found
     if not (any(v > 0 for v in flows) and any(v < 0 for v in flows)):
         return CellError(NUM, "XIRR needs a positive and a negative flow")
-    return _newton(lambda r: _xnpv(r, flows, days), g, "XIRR")
+    f = lambda r: _xnpv(r, flows, days)  # noqa: E731
+    found = _newton(f, g, "XIRR")
+    if type(found) is CellError:
+        root = _bracketed_root(f, g)
+        return found if root is None else root
+    return found
 
 
 # --- loan totals ---------------------------------------------------------------------------

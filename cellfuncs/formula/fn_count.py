@@ -2,12 +2,14 @@
 SUMIF(S), AVERAGEIF(S), MAXIFS, MINIFS, SUMPRODUCT.
 
 A criterion is a value (equal to it; text case-insensitively, with ``*``/``?`` wildcards) or
-text led by a comparison (``">=10"``, ``"<>x"``); ``""`` matches blanks, ``"="`` blanks only,
-``"<>"`` everything not blank.
+text led by a comparison (``">=10"``, ``"<>x"``); ``""`` matches blanks and empty text, ``"="``
+blanks only, ``"<>"`` everything not blank (empty text too: a formula giving ``""`` is not blank).
 
 >>> from cellfuncs.formula import compute
 >>> compute('=COUNTIF({1,5,"a",10}, ">=5")'), compute('=SUMIF({1,2,3}, "<>2")'), compute("=SUMPRODUCT({1,2},{3,4})")
 (2.0, 4.0, 11.0)
+>>> compute("=SUMIF({1,2,1},{1;2},{10,20,30})").tolist()  # one result per criterion
+[[40.0], [20.0]]
 """
 
 from __future__ import annotations
@@ -20,9 +22,9 @@ from typing import Callable
 import numpy as np
 
 from ..errors import DIV0, VALUE, CellError, parse_error_text
-from .arrays import Value, as_array, shape_text
+from .arrays import Value, as_array, map_values, shape_text
 from .coerce import compare, fold, to_number
-from .evaluate import ALL_ARGUMENTS, Context, builtin, collect, evaluate
+from .evaluate import ALL_ARGUMENTS, Context, builtin, collect, evaluate, intersect
 from .fn_lookup import wildcard
 from .nodes import Node, Ref, Name, Scalar
 
@@ -38,7 +40,7 @@ def _text_criterion(text: str) -> Callable[[Scalar], bool]:
         return lambda x: x is None or x == ""
     op = op or "="
     if rest == "":
-        return (lambda x: x is None) if op == "=" else (lambda x: x is not None and x != "") if op == "<>" else (lambda x: False)
+        return (lambda x: x is None) if op == "=" else (lambda x: x is not None) if op == "<>" else (lambda x: False)
     error = parse_error_text(rest)
     if error is not None:
         same_error = lambda x: type(x) is CellError and x.code == error.code  # noqa: E731
@@ -94,11 +96,12 @@ _SHEET_CELLS = 1048576 * 16384
 
 
 def _ranges(context: Context, nodes: tuple[Node, ...]) -> tuple[list[Value], int]:
-    """The argument values, and how many blank cells whole-column or whole-row references
-    stand for beyond the sheet's used range, which the engine leaves out of their values."""
+    """The (range, criterion, ...) argument values, and how many blank cells whole-column or
+    whole-row references stand for beyond the sheet's used range, which the engine leaves
+    out of their values. A legacy formula intersects a criterion given as a range."""
     values, beyond = [], 0
-    for node in nodes:
-        v = evaluate(node, context)
+    for k, node in enumerate(nodes):
+        v = intersect(node, context) if k % 2 and getattr(context, "implicit", False) else evaluate(node, context)
         values.append(v)
         if type(node) is Ref and _WHOLE.match(node.ref) and type(v) is not CellError:
             a = as_array(v)
@@ -118,7 +121,7 @@ def _column(letters: str) -> int:
     return n
 
 
-def _matches(pairs: list[tuple[Value, Value]], shape: tuple[int, int] | None = None) -> np.ndarray | CellError:
+def _matches(pairs: list[tuple[Value, Scalar]], shape: tuple[int, int] | None = None) -> np.ndarray | CellError:
     """The positions where every (range, criterion) pair holds; ranges of one shape."""
     mask = None
     for rng, crit in pairs:
@@ -128,10 +131,18 @@ def _matches(pairs: list[tuple[Value, Value]], shape: tuple[int, int] | None = N
         if shape is not None and a.shape != shape:
             return CellError(VALUE, f"ranges of shapes {shape_text(shape)} and {shape_text(a.shape)} do not match")
         shape = a.shape
-        test = criterion(_scalar(crit))
+        test = criterion(crit)
         m = np.frompyfunc(test, 1, 1)(a).astype(bool)
         mask = m if mask is None else mask & m
     return mask
+
+
+def _each_criterion(fn: Callable[..., Value], criteria: list[Value]) -> Value:
+    """``fn`` of scalar criteria; criteria given as arrays or ranges give one result per
+    element (broadcast together), as Excel spills SUMIF(A1:A9, {"a";"b"}) into two cells."""
+    if all(type(c) is not np.ndarray or c.size == 1 for c in criteria):
+        return fn(*[_scalar(c) for c in criteria])
+    return map_values(fn, *criteria)
 
 
 def _fitted(values: Value, shape: tuple[int, int]) -> np.ndarray:
@@ -223,12 +234,16 @@ def countifs(context: Context, *nodes: Node) -> Value:
     if len(nodes) % 2:
         return CellError(VALUE, "COUNTIFS takes pairs of a range and a criterion")
     args, beyond = _ranges(context, nodes)
-    pairs = list(zip(args[::2], args[1::2]))
-    m = _matches(pairs)
-    if type(m) is CellError:
-        return m
-    blank_counts = beyond and all(criterion(_scalar(c))(None) for _, c in pairs)
-    return float(m.sum()) + (beyond if blank_counts else 0)
+    ranges = args[::2]
+
+    def counted(*criteria: Scalar) -> Scalar:
+        m = _matches(list(zip(ranges, criteria)))
+        if type(m) is CellError:
+            return m
+        blank_counts = beyond and all(criterion(c)(None) for c in criteria)
+        return float(m.sum()) + (beyond if blank_counts else 0)
+
+    return _each_criterion(counted, args[1::2])
 
 
 builtin("COUNTIF", 2, lazy=True)(countifs)
@@ -242,26 +257,35 @@ def _conditional(name: str, reduce: Callable[[list[float]], float | CellError], 
             if type(values) is CellError:
                 return values
             shape = as_array(values).shape
-            m = _matches(list(zip(args[::2], args[1::2])), shape)
-            if type(m) is CellError:
-                return m
-            nums = _numbers_where(as_array(values), m)
-            return nums if type(nums) is CellError else reduce(nums)
 
-        builtin(name, 3, None)(fn)
+            def reduced(*criteria: Scalar) -> Scalar:
+                m = _matches(list(zip(args[::2], criteria)), shape)
+                if type(m) is CellError:
+                    return m
+                nums = _numbers_where(as_array(values), m)
+                return nums if type(nums) is CellError else reduce(nums)
+
+            return _each_criterion(reduced, list(args[1::2]))
+
+        fn.takes_values = True  # a legacy formula intersects the criteria, not the ranges
+        builtin(name, 3, None, arrays=(0, *range(1, 255, 2)))(fn)
     else:  # SUMIF(range, criterion, [values])
         def fn(rng: Value, crit: Value, values: Value = None) -> Value:
-            m = _matches([(rng, crit)])
-            if type(m) is CellError:
-                return m
-            if values is None:
-                values = rng
-            elif type(values) is CellError:
+            if type(values) is CellError:
                 return values
-            nums = _numbers_where(_fitted(values, m.shape), m)
-            return nums if type(nums) is CellError else reduce(nums)
+            summed = rng if values is None else values
 
-        builtin(name, 2, 3)(fn)
+            def reduced(c: Scalar) -> Scalar:
+                m = _matches([(rng, c)])
+                if type(m) is CellError:
+                    return m
+                nums = _numbers_where(_fitted(summed, m.shape), m)
+                return nums if type(nums) is CellError else reduce(nums)
+
+            return _each_criterion(reduced, [crit])
+
+        fn.takes_values = True  # a legacy formula intersects the criterion, not the ranges
+        builtin(name, 2, 3, arrays=(0, 2))(fn)
     fn.__doc__ = f"{name}: the {reduce.__name__} of the numbers where the criteria hold."
 
 

@@ -2,7 +2,8 @@
 DSTDEV, DSTDEVP, DVAR, DVARP.
 
 A database is a range whose first row names its fields; ``field`` is a name
-(case-insensitive) or a 1-based column number. The criteria range has field names in its
+(case-insensitive; a number or logical value written as a field name reads as text) or a
+1-based column number. The criteria range has field names in its
 first row and conditions below: a record qualifies when every condition of some row holds
 (rows are alternatives). A condition is a COUNTIF criterion, except that plain text matches
 the texts that begin with it, as in Excel's advanced filter.
@@ -34,18 +35,26 @@ def _condition(c: Scalar) -> Callable[[Scalar], bool]:
 
 
 def _column(header: list[Scalar], field: Scalar) -> int | CellError:
+    """The 0-based column of ``field``: a number (or logical value) counts columns from 1;
+    text names the first field whose name, as text (a number or TRUE as written), is the
+    same but for case."""
     if type(field) is CellError:
         return field
-    if type(field) is float:
-        k = int(field)
+    if type(field) in (float, bool):
+        k = int(to_number(field))
         return k - 1 if 1 <= k <= len(header) else CellError(VALUE, f"the database has no column {k}")
-    name = to_text(field)
-    if type(name) is CellError:
-        return name
+    return _named(header, field)
+
+
+def _named(header: list[Scalar], name: Scalar) -> int | CellError:
+    """The first column whose field name reads as ``name`` but for case."""
+    wanted = to_text(name)
+    if type(wanted) is CellError:
+        return wanted
     for i, h in enumerate(header):
-        if type(h) is str and fold(h) == fold(name):
+        if h is not None and type(h) is not CellError and fold(to_text(h)) == fold(wanted):
             return i
-    return CellError(VALUE, f'the database has no field "{name}"')
+    return CellError(VALUE, f'the database has no field "{wanted}"')
 
 
 def _selected(database: Value, field: Value, criteria: Value) -> list[Scalar] | CellError:
@@ -70,7 +79,7 @@ def _selected(database: Value, field: Value, criteria: Value) -> list[Scalar] | 
         for name, c in zip(cr[0], crow):
             if c is None:
                 continue
-            where = _column(header, name)
+            where = _named(header, name)
             if type(where) is CellError:
                 tests = None
                 break

@@ -15,9 +15,11 @@ starts without it). ``cumulative`` TRUE gives the distribution function, FALSE t
 from __future__ import annotations
 
 import math
+from typing import Callable
 
 from ..errors import DIV0, NUM, CellError
-from .arrays import numeric
+from .arrays import Value, map_values, numeric
+from .coerce import to_bool
 from .evaluate import builtin
 
 
@@ -96,7 +98,7 @@ def beta_dist(x: float, a: float, b: float, cumulative: float, lo: float = 0.0, 
 
 
 def beta_inv(p: float, a: float, b: float, lo: float = 0.0, hi: float = 1.0) -> float | CellError:
-    if a <= 0.0 or b <= 0.0 or lo >= hi or not 0.0 < p <= 1.0:
+    if a <= 0.0 or b <= 0.0 or lo >= hi or not 0.0 < p < 1.0:  # Excel: #NUM! at p = 1 too
         return _bad("BETA.INV")
     return lo + (hi - lo) * float(_sp().betaincinv(a, b, p))
 
@@ -127,7 +129,7 @@ def binom_dist(k: float, n: float, p: float, cumulative: float) -> float | CellE
 def binom_inv(n: float, p: float, alpha: float) -> float | CellError:
     """The smallest k whose cumulative probability reaches ``alpha`` (bisection)."""
     n = int(n)
-    if n < 0 or not 0.0 <= p <= 1.0 or not 0.0 < alpha < 1.0:
+    if n < 0 or not 0.0 <= p < 1.0 or not 0.0 < alpha < 1.0:  # Excel: #NUM! at p = 1 (a certain success)
         return _bad("BINOM.INV")
     lo, hi = 0, n
     while lo < hi:
@@ -151,18 +153,16 @@ def binom_dist_range(n: float, p: float, s: float, s2: float | None = None) -> f
 
 def negbinom_dist(f: float, s: float, p: float, cumulative: float = 0.0) -> float | CellError:
     f, s = int(f), int(s)
-    if f < 0 or s < 1 or not 0.0 < p <= 1.0:
+    if f < 0 or s < 1 or not 0.0 < p < 1.0:  # Excel: #NUM! at p = 1 too
         return _bad("NEGBINOM.DIST")
     if cumulative:
         return float(_sp().nbdtr(f, s, p))
-    if p == 1.0:
-        return float(f == 0)
     return math.exp(_log_comb(f + s - 1, s - 1) + s * math.log(p) + f * math.log1p(-p))
 
 
 def poisson_dist(x: float, mean: float, cumulative: float) -> float | CellError:
     k = int(x)
-    if k < 0 or mean < 0.0:
+    if x < 0.0 or mean < 0.0:  # a negative x is refused before it is truncated to 0
         return _bad("POISSON.DIST")
     if cumulative:
         return float(_sp().pdtr(k, mean))
@@ -232,5 +232,25 @@ _TABLE = [
     ("CONFIDENCE.NORM", confidence_norm, 3, 3), ("CONFIDENCE", confidence_norm, 3, 3), ("CONFIDENCE.T", confidence_t, 3, 3),
 ]
 
+# The position of the cumulative flag, a logical value: text "TRUE" or "false" is read as one
+# (Excel's stored values in the distribution sheets), where the other arguments take numbers.
+_FLAG = {"NORM.DIST": 3, "NORMDIST": 3, "NORM.S.DIST": 1, "LOGNORM.DIST": 3, "EXPON.DIST": 2, "EXPONDIST": 2,
+         "GAMMA.DIST": 3, "GAMMADIST": 3, "BETA.DIST": 3, "BINOM.DIST": 3, "BINOMDIST": 3, "NEGBINOM.DIST": 3,
+         "POISSON.DIST": 2, "POISSON": 2}
+
+
+def _with_flag(fn: Callable[..., Value], position: int) -> Callable[..., Value]:
+    """``fn`` with its argument at ``position`` read as a logical value when it is text."""
+    def call(*args: Value) -> Value:
+        if len(args) > position:
+            flag = map_values(lambda x: to_bool(x) if type(x) is str else x, args[position])
+            args = (*args[:position], flag, *args[position + 1:])
+        return fn(*args)
+
+    call.takes_values = True  # as numeric's: a legacy formula intersects a range given to it
+    return call
+
+
 for _name, _fn, _lo, _hi in _TABLE:
-    builtin(_name, _lo, _hi)(numeric(_fn))
+    _checked = numeric(_fn)
+    builtin(_name, _lo, _hi)(_with_flag(_checked, _FLAG[_name]) if _name in _FLAG else _checked)

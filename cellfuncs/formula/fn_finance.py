@@ -15,11 +15,13 @@ from __future__ import annotations
 import math
 from typing import Callable
 
-from ..errors import DIV0, NUM, CellError
-from .arrays import numeric
+import numpy as np
+
+from ..errors import DIV0, NUM, VALUE, CellError
+from .arrays import Value, elementwise, numeric
 from .coerce import to_number
-from .evaluate import Context, builtin, collect
-from .nodes import Node
+from .evaluate import Context, builtin, collect, evaluate
+from .nodes import Node, Scalar
 
 
 def _growth(r: float, n: float) -> float:
@@ -58,6 +60,8 @@ def pmt(r: float, n: float, pv_: float, fv_: float = 0.0, type_: float = 0.0) ->
     """
     if n == 0.0:
         return CellError(NUM, "PMT over 0 periods")
+    if r <= -1.0:  # Excel's stored values: #NUM! at rates -1 and -3
+        return CellError(NUM, "PMT at a rate of -1 or below")
     if r == 0.0:
         return -(pv_ + fv_) / n
     g = _growth(r, n)
@@ -85,7 +89,7 @@ def ipmt(r: float, per: float, n: float, pv_: float, fv_: float = 0.0, type_: fl
     >>> round(ipmt(0.1 / 12, 1.0, 3.0 * 12, 8000.0), 2)
     -66.67
     """
-    if not 1.0 <= per <= n:
+    if not 1.0 <= per < n + 1.0:  # Excel's stored values: period 3.9 of 3 has a value, 4 not
         return CellError(NUM, "the period is outside 1 to the number of periods")
     p = pmt(r, n, pv_, fv_, type_)
     if type(p) is CellError:
@@ -108,7 +112,15 @@ def ppmt(r: float, per: float, n: float, pv_: float, fv_: float = 0.0, type_: fl
     for x in (p, i):
         if type(x) is CellError:
             return x
-    return p - i
+    if r == 0.0:
+        return p - i
+    # The principal parts grow by (1 + r) a period from the first one after interest, which
+    # is pmt + pv*r written without its cancellation (at high rates the two nearly cancel,
+    # and Excel's stored CUMPRINC values keep the digits that p - i loses).
+    first = -r * (pv_ + fv_) / (_growth(r, n) - 1.0)
+    if type_ != 0.0:
+        return p if per == 1.0 else first * _growth(r, per - 2.0)
+    return first * _growth(r, per - 1.0)
 
 
 def _newton(f: Callable[[float], float], guess: float, what: str) -> float | CellError:
@@ -174,50 +186,121 @@ def npv(context: Context, rate_: Node, *nodes: Node) -> float | CellError:
     return _npv(r[0], values)
 
 
+def _single_number(context: Context, node: Node) -> float | CellError:
+    """A rate or guess argument: one value (a reference's first cell) as a number, so a
+    blank is 0, a logical value 0 or 1 and text #VALUE!, even when referenced."""
+    v = evaluate(node, context)
+    return to_number(v[0, 0] if type(v) is np.ndarray else v)
+
+
 @builtin("IRR", 1, 2, lazy=True)
 def irr(context: Context, values: Node, guess: Node | None = None) -> float | CellError:
-    """The internal rate of return of flows at periods 0, 1, 2, ...
+    """The internal rate of return of flows at periods 0, 1, 2, ...: Newton's method from
+    ``guess`` (0.1), else the root above -1 nearest the guess; a guess of -1 or below is #VALUE!.
 
     >>> from cellfuncs.formula import compute
-    >>> round(compute("=IRR({-70000,12000,15000,18000,21000,26000})"), 6)
-    0.086631
+    >>> round(compute("=IRR({-70000,12000,15000,18000,21000,26000})"), 6), round(compute("=IRR({-70,12,15})"), 6)
+    (0.086631, -0.443507)
     """
     flows = _flows(context, (values,))
-    g = [] if guess is None else _flows(context, (guess,))
+    g = 0.1 if guess is None or evaluate(guess, context) is None else _single_number(context, guess)
     for x in (flows, g):
         if type(x) is CellError:
             return x
-    g = g or [0.1]  # left out or blank: Excel's default guess
+    if g <= -1.0:
+        return CellError(VALUE, "IRR's guess must be above -1")
     if not (any(v > 0 for v in flows) and any(v < 0 for v in flows)):
         return CellError(NUM, "IRR needs a positive and a negative flow")
-    return _newton(lambda r: _npv(r, flows, 0), g[0], "IRR")
+    f = lambda r: _npv(r, flows, 0)  # noqa: E731
+    found = _newton(f, g, "IRR")
+    if type(found) is CellError:
+        root = _bracketed_root(f, g)
+        return found if root is None else root
+    return found
+
+
+# Rates where IRR looks for a change of sign when Newton's method fails: dense near -1, where
+# the flows' present values grow without bound, and spread out above 1.
+_IRR_GRID = sorted({-1.0 + 2.0 ** -k for k in range(1, 41)} | {i / 100.0 for i in range(-49, 101)}
+                   | {2.0 ** k for k in range(1, 21)})
+
+
+def _bracketed_root(f: Callable[[float], float], guess: float) -> float | None:
+    """The root above -1 nearest ``guess`` between two grid rates where ``f`` changes sign,
+    halved down to the last bit (None if ``f`` changes sign nowhere)."""
+    points = []
+    for r in _IRR_GRID:
+        try:
+            y = f(r)
+        except (OverflowError, ZeroDivisionError):
+            continue
+        if math.isfinite(y):
+            points.append((r, y))
+    brackets = [(a, b) for (a, fa), (b, fb) in zip(points, points[1:]) if (fa < 0.0) != (fb < 0.0)]
+    if not brackets:
+        return None
+    lo, hi = min(brackets, key=lambda ab: abs((ab[0] + ab[1]) / 2.0 - guess))
+    negative_at_lo = f(lo) < 0.0
+    while True:
+        mid = (lo + hi) / 2.0
+        if mid in (lo, hi):
+            return mid
+        if (f(mid) < 0.0) == negative_at_lo:
+            lo = mid
+        else:
+            hi = mid
 
 
 @builtin("MIRR", 3, lazy=True)
 def mirr(context: Context, values: Node, finance: Node, reinvest: Node) -> float | CellError:
-    """Modified internal rate of return: outflows financed at ``finance``, inflows reinvested
-    at ``reinvest``.
+    """Modified internal rate of return: the rate that grows the present value of the outflows
+    (financed at ``finance``) into the value of the inflows at the end (reinvested at
+    ``reinvest``). No inflows give -1; no outflows #DIV/0!; a negative ratio #NUM!.
 
     >>> from cellfuncs.formula import compute
-    >>> round(compute("=MIRR({-120000,39000,30000,21000,37000,46000}, 0.1, 0.12)"), 6)
-    0.126094
+    >>> round(compute("=MIRR({-120000,39000,30000,21000,37000,46000}, 0.1, 0.12)"), 6), compute("=MIRR({-5,-3}, 0.1, 0.2)")
+    (0.126094, -1.0)
     """
     flows = _flows(context, (values,))
-    rates = _flows(context, (finance, reinvest))
-    for x in (flows, rates):
+    fr, rr = _single_number(context, finance), _single_number(context, reinvest)
+    for x in (flows, fr, rr):
         if type(x) is CellError:
             return x
-    fr, rr = rates
     n = len(flows)
-    pos = _npv(rr, [v if v > 0 else 0.0 for v in flows])
-    neg = _npv(fr, [v if v < 0 else 0.0 for v in flows])
-    if neg == 0.0 or pos == 0.0 or n < 2:
-        return CellError(DIV0, "MIRR needs a positive and a negative flow")
-    return (-pos * (1.0 + rr) ** n / (neg * (1.0 + fr))) ** (1.0 / (n - 1)) - 1.0
+    if n < 2:
+        return CellError(DIV0, "MIRR needs two flows or more")
+    try:
+        # The first flow is not discounted: a finance rate of -1 only fails on later outflows.
+        outflows = math.fsum(v / (1.0 + fr) ** i for i, v in enumerate(flows) if v < 0)
+        inflows = math.fsum(v * (1.0 + rr) ** (n - 1 - i) for i, v in enumerate(flows) if v > 0)
+    except ZeroDivisionError:
+        return CellError(DIV0, "MIRR: an outflow discounted at a finance rate of -1")
+    except OverflowError:
+        return CellError(NUM, "MIRR: the result is too large")
+    if outflows == 0.0:
+        return CellError(DIV0, "MIRR needs a negative flow")
+    ratio = -inflows / outflows
+    if ratio < 0.0 or not math.isfinite(ratio):
+        return CellError(NUM, "MIRR: the flows' values at the two rates give no real rate")
+    return ratio ** (1.0 / (n - 1)) - 1.0
+
+
+def _rates(fn: Callable[..., float | CellError]) -> Callable[..., Value]:
+    """EFFECT's and NOMINAL's arguments: numbers, where TRUE or FALSE is #VALUE! (Excel's
+    stored values; Microsoft: "if either argument is nonnumeric", #VALUE!)."""
+    scalar = numeric(fn)
+
+    def checked(*args: Scalar) -> Value:
+        if any(type(a) is bool for a in args):
+            return CellError(VALUE, "a rate or a number of periods is a logical value")
+        return scalar(*args)
+
+    checked.__doc__ = fn.__doc__
+    return elementwise(checked)
 
 
 @builtin("EFFECT", 2)
-@numeric
+@_rates
 def effect(nominal: float, periods: float) -> float | CellError:
     """The effective annual rate of a nominal rate compounded ``periods`` times a year.
 
@@ -231,7 +314,7 @@ def effect(nominal: float, periods: float) -> float | CellError:
 
 
 @builtin("NOMINAL", 2)
-@numeric
+@_rates
 def nominal(effective: float, periods: float) -> float | CellError:
     """The nominal annual rate of an effective rate.
 
@@ -286,11 +369,14 @@ def ddb(cost: float, salvage: float, life: float, period: float, factor: float =
 @numeric
 def db(cost: float, salvage: float, life: float, period: float, month: float = 12.0) -> float | CellError:
     """Fixed-declining-balance depreciation (the rate rounded to three decimals) of ``period``;
-    ``month`` is the number of months in the first year.
+    ``month`` is the number of whole months in the first year (Excel drops a fraction).
 
     >>> round(db(1000000.0, 100000.0, 6.0, 1.0, 7.0), 2), round(db(1000000.0, 100000.0, 6.0, 7.0, 7.0), 2)
     (186083.33, 15845.1)
+    >>> round(db(100.0, 10.0, 4.0, 3.0, 9.2222), 7)
+    16.5293754
     """
+    month = float(math.trunc(month))
     if cost < 0.0 or salvage < 0.0 or life <= 0.0 or period <= 0.0 or not 1.0 <= month <= 12.0:
         return CellError(NUM, "DB needs positive arguments and 1 to 12 months")
     if period > life + 1.0 or (period > life and month == 12.0):

@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import NA, VALUE, CellError
-from .arrays import Value, elementwise, first_error, map_values
+from .arrays import Value, elementwise, filled, first_error, map_values
 from .coerce import compare, to_bool
 from .evaluate import Context, builtin, collect, evaluate
 from .nodes import Missing, Node, Scalar
@@ -46,7 +46,7 @@ def if_(context: Context, test: Node, then: Node, otherwise: Node | None = None)
             return _argument(then, context)
         return False if otherwise is None else _argument(otherwise, context)
     no = False if otherwise is None else _argument(otherwise, context)
-    return map_values(_pick, t, _argument(then, context), no)
+    return map_values(_pick, *_padded(t, _argument(then, context), no))
 
 
 @builtin("IFERROR", 2, lazy=True)
@@ -54,15 +54,34 @@ def iferror(context: Context, value: Node, fallback: Node) -> Value:
     """``value``, with each error (element) replaced by ``fallback``, evaluated only when needed.
 
     >>> from cellfuncs.formula import compute
-    >>> compute('=IFERROR(1/{1,0,2}, "-")').tolist()
-    [[1.0, '-', 0.5]]
+    >>> compute('=IFERROR(1/{1,0,2}, "-")').tolist(), compute('=IFERROR(1/{1;0;0}, {7;8})').tolist()
+    ([[1.0, '-', 0.5]], [[1.0], [8.0], [CellError(code='#N/A', reason='beyond the end of the shorter array')]])
     """
     v = evaluate(value, context)
     if type(v) is CellError:
         return _argument(fallback, context)
     if type(v) is np.ndarray and first_error(v) is not None:
-        return map_values(lambda x, f: f if type(x) is CellError else x, v, _argument(fallback, context))
+        return map_values(lambda x, g: g if type(x) is CellError else x, *_padded(v, _argument(fallback, context)))
     return v
+
+
+def _padded(*values: Value) -> list[Value]:
+    """The arrays among ``values`` at their common size, as Excel pairs arrays of different
+    sizes: along an axis where one has a single row (or column) it repeats, else the shorter
+    one is padded with #N/A (Excel's stored values of IF(A1:A4>2, H1:H2, E1:E2) and of
+    IFERROR(G4:G7/H4:H7, G12:G13) end in #N/A). Scalars stay as they are."""
+    shapes = [v.shape for v in values if type(v) is np.ndarray]
+    rows, cols = max(s[0] for s in shapes), max(s[1] for s in shapes)
+
+    def fit(x: Value) -> Value:
+        if type(x) is not np.ndarray:
+            return x
+        h, w = x.shape
+        out = filled((rows, cols), CellError(NA, "beyond the end of the shorter array"))
+        out[:rows if h == 1 else h, :cols if w == 1 else w] = x
+        return out
+
+    return [fit(v) for v in values]
 
 
 @builtin("ISERROR", 1)
@@ -85,8 +104,16 @@ def _logical_element(x: Scalar) -> bool | None:
     return x != 0.0 if t is float else None
 
 
+def _typed_logical(v: Scalar) -> bool | CellError | None:
+    """A typed argument as a logical value; empty text is passed over, as Excel's stored
+    values show (AND("", TRUE) is TRUE, OR("", FALSE) FALSE)."""
+    return None if v == "" else to_bool(v)
+
+
 def _logicals(context: Context, nodes: tuple[Node, ...], name: str) -> list | CellError:
-    values = collect(context, nodes, to_bool, _logical_element)
+    values = collect(context, nodes, _typed_logical, _logical_element)
+    if type(values) is list:
+        values = [v for v in values if v is not None]
     if type(values) is list and not values:
         return CellError(VALUE, f"{name} found no logical values")
     if type(values) is CellError and values.code == VALUE:

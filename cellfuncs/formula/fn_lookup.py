@@ -122,7 +122,7 @@ def index_reference(context: Context, array: Node, row: Node, column: Node | Non
 
 
 class Wildcard:
-    """Excel's ``*`` and ``?`` wildcards (``~`` escapes), case-insensitive, with a regex's
+    """Excel's ``*`` and ``?`` wildcards (``~`` makes the next character literal), case-insensitive, with a regex's
     ``fullmatch`` and ``search``, in time linear in the pattern times the text: the parts
     between stars are found one after the other, left to right, which is all a star needs
     (one regex of several ``.*`` can take exponential time on a text that almost matches).
@@ -136,13 +136,15 @@ class Wildcard:
 
     def __init__(self, pattern: str):
         pieces: list[list[str]] = [[]]  # the regex units between stars, each one character wide
-        for part in re.split(r"(~[*?~]|[*?])", pattern):
+        # "~" makes the next character literal, whatever it is ("~d" is "d"); a last "~"
+        # stands for nothing (Excel's stored values: SEARCH("~","Hello") is 1)
+        for part in re.split(r"(~.|~\Z|[*?])", pattern, flags=re.DOTALL):
             if part == "*":
                 pieces.append([])
             elif part == "?":
                 pieces[-1].append(".")
-            elif part in _WILDCARD_LITERALS:
-                pieces[-1].append(re.escape(_WILDCARD_LITERALS[part]))
+            elif part.startswith("~"):
+                pieces[-1] += [re.escape(part[1:])] if len(part) > 1 else []
             else:
                 pieces[-1] += [re.escape(ch) for ch in part]
         flags = re.IGNORECASE | re.DOTALL
@@ -176,9 +178,6 @@ class Wildcard:
         if m is None or len(self.parts) == 1:
             return m
         return m if self._rest(text, m.end(), anchored=False) else None
-
-
-_WILDCARD_LITERALS = {"~*": "*", "~?": "?", "~~": "~"}
 
 
 @lru_cache(maxsize=256)
@@ -320,29 +319,33 @@ def lookup(value: Value, vector: Value, result: Value = _ABSENT) -> Value:
 
 def _xfind(x: Scalar, values: list, match_mode: int, search_mode: int) -> int | CellError:
     """0-based index for XMATCH and XLOOKUP: match mode 0 exact, -1 exact or next smaller,
-    1 exact or next larger, 2 wildcards; search mode 1 first to last, -1 last to first, 2 and
-    -2 (binary searches of sorted data) as 1 and -1, which agree with them on sorted data."""
+    1 exact or next larger, 2 wildcards, 3 a regular expression; search mode 1 first to last, -1 last to first, 2 and
+    -2 binary searches of data sorted up or down. The next smaller or larger value may be of
+    another type, in Excel's order of numbers, text and logical values."""
     if type(x) is CellError:
         return x
-    order = range(len(values) - 1, -1, -1) if search_mode in (-1, -2) else range(len(values))
+    order = range(len(values) - 1, -1, -1) if search_mode < 0 else range(len(values))
     if x is None:  # a blank lookup value finds a blank, else looks for 0
         found = next((i for i in order if values[i] is None), None)
         if found is not None:
             return found
         x = 0.0
-    order = range(len(values) - 1, -1, -1) if search_mode in (-1, -2) else range(len(values))
+    if abs(search_mode) == 2:
+        return _binary_find(x, values, match_mode, search_mode < 0)
+    if match_mode == 3:
+        return _regex_find(x, values, order)
     regex = wildcard(x) if match_mode == 2 and type(x) is str else None
     best = None
     for i in order:
         v = values[i]
-        if type(v) is not type(x):
+        if v is None or type(v) is CellError or (type(v) is not type(x) and match_mode not in (-1, 1)):
             continue
         if regex is not None:
-            if regex.fullmatch(v):
+            if type(v) is str and regex.fullmatch(v):
                 return i
             continue
         c = compare(v, x)
-        if c == 0:
+        if c == 0 and type(v) is type(x):
             return i
         if match_mode == -1 and c < 0 and (best is None or compare(v, values[best]) > 0):
             best = i
@@ -351,9 +354,47 @@ def _xfind(x: Scalar, values: list, match_mode: int, search_mode: int) -> int | 
     return best if best is not None else CellError(NA, f"{_shown(x)} was not found")
 
 
+def _regex_find(x: Scalar, values: list, order: range) -> int | CellError:
+    """Match mode 3: the first text the pattern ``x`` (as text) finds a match in, as REGEXTEST."""
+    from .fn_regex import regextest  # imported here: fn_regex builds on modules that import this one
+
+    for i in order:
+        if type(values[i]) is str:
+            found = regextest(values[i], to_text(x))
+            if found is not False:
+                return i if found is True else found
+    return CellError(NA, f"{_shown(x)} was not found")
+
+
+def _binary_find(x: Scalar, values: list, match_mode: int, descending: bool) -> int | CellError:
+    """A binary search as Excel's: it looks at the middle element whatever its type (unsorted
+    data gives what the halvings find), lands on the first element not before ``x`` (the last,
+    for data sorted down), and takes the element before it for the next smaller value."""
+    if match_mode in (2, 3):
+        return CellError(VALUE, "wildcards and patterns do not work with a binary search")
+    n = len(values)
+    while n and values[n - 1] is None:  # the blank end of a whole-column reference
+        n -= 1
+    index = list(range(n - 1, -1, -1)) if descending else list(range(n))
+    lo, hi = 0, n
+    while lo < hi:
+        mid = (lo + hi) // 2
+        if compare(values[index[mid]], x) == -1:
+            lo = mid + 1
+        else:
+            hi = mid
+    if lo < n and type(values[index[lo]]) is type(x) and compare(values[index[lo]], x) == 0:
+        return index[lo]
+    if match_mode == 1 and lo < n:
+        return index[lo]
+    if match_mode == -1 and lo > 0:
+        return index[lo - 1]
+    return CellError(NA, f"{_shown(x)} was not found")
+
+
 def _modes(match_mode: Value, search_mode: Value) -> tuple[int, int] | CellError:
     out = []
-    for v, allowed in ((match_mode, (-1, 0, 1, 2)), (search_mode, (-2, -1, 1, 2))):
+    for v, allowed in ((match_mode, (-1, 0, 1, 2, 3)), (search_mode, (-2, -1, 1, 2))):
         if type(v) is np.ndarray:
             v = v[0, 0]
         n = to_number(0.0 if v is None else v)
@@ -398,8 +439,8 @@ def xmatch(value: Value, array: Value, match_mode: Value = 0.0, search_mode: Val
 def xlookup(value: Value, array: Value, results: Value, if_not_found: Value = _ABSENT,
             match_mode: Value = 0.0, search_mode: Value = 1.0) -> Value:
     """The row (or column) of ``results`` where ``array`` matches ``value``; ``if_not_found``
-    instead of #N/A; match mode 0 exact, -1 or next smaller, 1 or next larger, 2 wildcards;
-    search mode 1 first to last, -1 last to first.
+    instead of #N/A; match mode 0 exact, -1 or next smaller, 1 or next larger, 2 wildcards,
+    3 a regular expression; search mode 1 first to last, -1 last to first, 2 and -2 binary.
 
     >>> from cellfuncs.formula import compute
     >>> compute('=XLOOKUP("b", {"a";"b"}, {1;2})'), compute('=XLOOKUP("z", {"a","b"}, {1,2}, "none")')
@@ -421,7 +462,7 @@ def xlookup(value: Value, array: Value, results: Value, if_not_found: Value = _A
     def one(x: Scalar) -> Value:
         i = _xfind(x, keys, *modes)
         if type(i) is CellError:
-            if if_not_found is not _ABSENT and if_not_found is not None:
+            if i is not x and if_not_found is not _ABSENT and if_not_found is not None:  # an error looked up stays
                 return if_not_found
             return i
         part = r[i:i + 1, :] if vertical else r[:, i:i + 1]

@@ -22,7 +22,7 @@ from ..errors import NA, REF, VALUE, CellError
 from .a1 import MAX_COL, MAX_ROW
 from .arrays import Value, as_array, map_values
 from .coerce import to_bool, to_number, to_text
-from .evaluate import Context, anchored, builtin, evaluate, reference_builtin, reference_of
+from .evaluate import Context, anchored, builtin, evaluate, implicit_value, reference_builtin, reference_of
 from .nodes import Missing, Name, Node, Ref
 from .parser import FormulaSyntaxError, parse
 
@@ -218,6 +218,18 @@ def _quote(sheet: str) -> str:
     return "'" + sheet.replace("'", "''") + "'"
 
 
+@builtin("SINGLE", 1, lazy=True)
+def single(context: Context, node: Node) -> Value:
+    """The implicit intersection operator ``@`` (the file writes ``SINGLE(...)``): of a
+    reference the cell in the formula's row or column, of an array its first element.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute("=SINGLE({7,8,9})")
+    7.0
+    """
+    return implicit_value(node, context)
+
+
 @reference_builtin("ANCHORARRAY", 1, 1)
 def anchorarray(context: Context, anchor: Node) -> Ref | CellError:
     """The spill operator ``A1#`` (the file writes ``ANCHORARRAY(A1)``): the whole range the
@@ -282,9 +294,9 @@ def offset(context: Context, base: Node, rows: Node, cols: Node, height: Node | 
     return anchored(found.sheet, top, left, bottom, last)
 
 
-@builtin("CHOOSE", 2, 255, lazy=True)
-def choose(context: Context, index: Node, *options: Node) -> Value:
-    """The ``index``-th option (1-based, truncated); only the chosen one is evaluated.
+def _choose_value(context: Context, index: Node, *options: Node) -> Value:
+    """CHOOSE's value: the ``index``-th option (1-based, truncated); only the chosen one is
+    evaluated; an array of indexes chooses for each.
 
     >>> from cellfuncs.formula import compute
     >>> compute("=CHOOSE(2.9, 10, 20, 30)"), compute("=CHOOSE(4, 1, 2)").code
@@ -293,18 +305,35 @@ def choose(context: Context, index: Node, *options: Node) -> Value:
     i = evaluate(index, context)
 
     def pick(x) -> Value:
-        n = to_number(x)
-        if type(n) is CellError:
-            return n
-        k = int(n)
-        if not 1 <= k <= len(options):
-            return CellError(VALUE, f"CHOOSE has no option {k}")
-        chosen = options[k - 1]
+        chosen = _chosen(x, options)
+        if type(chosen) is CellError:
+            return chosen
         return 0.0 if type(chosen) is Missing else evaluate(chosen, context)
 
     if type(i) is np.ndarray:
         return map_values(lambda x: _scalar(pick(x)), i)
     return pick(i)
+
+
+def _chosen(x: object, options: tuple[Node, ...]) -> Node | CellError:
+    n = to_number(x)
+    if type(n) is CellError:
+        return n
+    k = int(n)
+    if not 1 <= k <= len(options):
+        return CellError(VALUE, f"CHOOSE has no option {k}")
+    return options[k - 1]
+
+
+@reference_builtin("CHOOSE", 2, 255, value=_choose_value)
+def choose(context: Context, index: Node, *options: Node) -> Ref | CellError | None:
+    """CHOOSE of options written as references is the chosen reference, as in Excel
+    (``SUM(A1:CHOOSE(2, B1, B9))``, ``CHOOSE(1, A1, B1):C3``); else its value (None here)."""
+    i = evaluate(index, context)
+    if type(i) is np.ndarray:
+        return None
+    chosen = _chosen(i, options)
+    return chosen if type(chosen) is CellError else found_reference(context, chosen)
 
 
 def _scalar(v: Value):

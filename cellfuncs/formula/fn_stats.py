@@ -20,10 +20,10 @@ from typing import Callable
 
 import numpy as np
 
-from ..errors import DIV0, NA, NUM, CellError
+from ..errors import DIV0, NA, NUM, VALUE, CellError
 from .arrays import Value, as_array
 from .coerce import to_number
-from .evaluate import Context, builtin, collect
+from .evaluate import Context, builtin, collect, evaluate, is_reference
 from .nodes import Node
 
 
@@ -116,8 +116,27 @@ def _avedev(v: list[float]) -> float | CellError:
 
 
 _register("MEDIAN", _median)
+
+
+def _register_mode(name: str) -> None:
+    @builtin(name, 1, 255, lazy=True)
+    def mode(context: Context, *nodes: Node) -> float | CellError:
+        """The most frequent number (the first of them), as SUM gathers numbers except that
+        typed text, numeric text too, and a reference to a single blank cell are #VALUE!
+        (Excel's stored values)."""
+        for node in nodes:
+            if is_reference(node) and evaluate(node, context) is None:
+                return CellError(VALUE, f"{name} of a reference to a blank cell")
+        values = collect(context, nodes, _typed_number, _plain)
+        return values if type(values) is CellError else _mode(values)
+
+
+def _typed_number(x):
+    return CellError(VALUE, f'typed text "{x}" is not a number here') if type(x) is str else to_number(x)
+
+
 for _name in ("MODE.SNGL", "MODE"):
-    _register(_name, _mode)
+    _register_mode(_name)
 for _name in ("STDEV.S", "STDEV"):
     _register(_name, _at_least(2, statistics.stdev))
 for _name in ("STDEV.P", "STDEVP"):

@@ -71,26 +71,26 @@ def _text_function(name: str, min_args: int, max_args: int):
 
 @_text_function("LEFT", 1, 2)
 def left(text: str, n: Scalar = 1.0) -> str | CellError:
-    """The first ``n`` characters (default 1).
+    """The first ``n`` characters (default 1; a blank count is 0).
 
-    >>> left("abc", 2.0), left("12345", 3.0)
-    ('ab', '123')
+    >>> left("abc", 2.0), left("12345", 3.0), left("abc", None)
+    ('ab', '123', '')
     """
-    k = _count(1.0 if n is None else n, "LEFT's count")
+    k = _count(n, "LEFT's count")
     return k if type(k) is CellError else text[:k]
 
 
 @_text_function("RIGHT", 1, 2)
 def right(text: str, n: Scalar = 1.0) -> str | CellError:
-    """The last ``n`` characters (default 1).
+    """The last ``n`` characters (default 1; a blank count is 0).
 
-    >>> right("abc", 2.0), right("abc", 0.0)
-    ('bc', '')
+    >>> right("abc", 2.0), right("abc", 0.0), right("abc", 5.0)
+    ('bc', '', 'abc')
     """
-    k = _count(1.0 if n is None else n, "RIGHT's count")
+    k = _count(n, "RIGHT's count")
     if type(k) is CellError:
         return k
-    return text[len(text) - k:] if k else ""
+    return text[max(len(text) - k, 0):] if k else ""
 
 
 @_text_function("MID", 3, 3)
@@ -369,10 +369,11 @@ def textjoin(delimiter: Value, ignore_empty: Value, *values: Value) -> Scalar:
     return d.join(parts)
 
 
-@builtin("T", 1)
+@builtin("T", 1, arrays=(0,))  # a legacy formula takes a range's first cell, not its intersection
 @elementwise
 def t(v: Scalar) -> Scalar:
-    """Text as itself, an error as itself, anything else as empty text.
+    """Text as itself, an error as itself, anything else as empty text. A range given in a
+    legacy formula is not intersected: its first cell counts (Excel's stored values).
 
     >>> t("a"), t(1.0)
     ('a', '')

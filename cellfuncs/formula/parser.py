@@ -70,8 +70,8 @@ def _operand(text: str) -> Node:
     if m:
         sheet = m.group(1).replace("''", "'") if m.group(1) is not None else m.group(2)
         local = m.group(3)
-        if ":" in sheet:
-            raise FormulaSyntaxError(f"{text}: references spanning several sheets are not supported")
+        if "[" in sheet and not _LINKED.match(sheet + "!"):  # 'C:\dir\[Book.xlsx]Sheet'!A1
+            raise FormulaSyntaxError(f"{text}: references to other workbooks are not supported")
     elif text.upper() in ("TRUE", "FALSE"):
         return Literal(text.upper() == "TRUE")
     area = _AREA.match(local)
@@ -288,11 +288,16 @@ def _tokens(formula: str) -> list[_Tok]:
 
 
 def _depth(node: Node) -> int:
+    """How deep evaluation recurses: the left operand of an operator chain (``A1+A2+A3``)
+    is evaluated in a loop, so it counts at its parent's depth."""
     stack, deepest = [(node, 1)], 0
     while stack:
         n, d = stack.pop()
         deepest = max(deepest, d)
-        stack += [(c, d + 1) for c in children(n)]
+        if type(n) is Binary and n.op not in (":", " "):
+            stack += [(n.left, d), (n.right, d + 1)]
+        else:
+            stack += [(c, d + 1) for c in children(n)]
     return deepest
 
 

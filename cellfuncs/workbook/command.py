@@ -14,6 +14,7 @@ import math
 import os
 import sys
 import time
+from datetime import datetime
 from typing import TYPE_CHECKING, Callable, Iterator, Sequence
 
 from ..formula.budget import MAX_FORMULA_TEXT, MAX_TEXT
@@ -23,7 +24,7 @@ from .report import escaped
 from .sheetxml import MAX_CELLS, MAX_FORMULAS
 
 if TYPE_CHECKING:
-    from .recalc import Outcome
+    from .recalc import Outcome, Volatility
 
 MAX_LISTED = 200  # error cells listed per file; the count covers them all
 
@@ -152,11 +153,32 @@ def add_arguments(parser) -> None:
     parser.add_argument("--shard", type=_shard, default=None, metavar="K/N",
                         help="take only the K-th of N equal shares of the workbooks (every N-th, from the K-th), "
                              "so that N machines share a list")
+    volatile = parser.add_argument_group("volatile functions (NOW, TODAY, RAND, RANDBETWEEN, RANDARRAY)")
+    volatile.add_argument("--now", type=_moment, default=None, metavar="YYYY-MM-DDTHH:MM",
+                          help="the moment NOW and TODAY report (default: the clock), for results that repeat")
+    volatile.add_argument("--seed", type=int, default=None, metavar="N",
+                          help="start the random numbers of every workbook from N (default: fresh each run)")
+    volatile.add_argument("--ignore-volatile", action="store_true",
+                          help="with --check, leave out the cells that depend on a volatile function")
     limits = parser.add_argument_group("limits on the work a workbook may ask for")
     for name in FIELDS:
         default = getattr(DEFAULTS, name)
         limits.add_argument(option(name), dest=name, type=_count, default=default, metavar="N",
                             help=f"{LIMIT_HELP[name]} (default {default:,})")
+
+
+def _moment(text: str) -> datetime:
+    try:
+        return datetime.fromisoformat(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a date and time such as 2024-01-02T08:30") from None
+
+
+def volatility_of(args: argparse.Namespace) -> Volatility:
+    """How the command line asks volatile functions to behave."""
+    from .recalc import Volatility  # pylint: disable=import-outside-toplevel
+
+    return Volatility(args.now, args.seed, not args.ignore_volatile)
 
 
 def limits_of(args: argparse.Namespace) -> Limits:
@@ -203,9 +225,9 @@ def _recalc_one(job: tuple, progress: Callable[[int, int], None] | None = None
     (a bug: reported, and the run goes on with the next file)."""
     from .recalc import recalc_file
 
-    path, dest, check, tolerance, limits, split_links = job
+    path, dest, check, tolerance, limits, split_links, volatility = job
     try:
-        return recalc_file(path, dest, check, tolerance, progress, limits, split_links), None
+        return recalc_file(path, dest, check, tolerance, progress, limits, split_links, volatility), None
     except Exception as exc:
         return None, f"{type(exc).__name__}: {exc}"
 
@@ -232,7 +254,7 @@ def _outcomes(jobs: list[tuple], workers: int, progress) -> Iterator[tuple[Outco
 
 def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, check: bool = False,
         tolerance: float = 1e-9, limits: Limits = DEFAULTS, split_links: bool = False, jobs: int | None = None,
-        shard: tuple[int, int] | None = None) -> int:
+        shard: tuple[int, int] | None = None, volatility: Volatility | None = None) -> int:
     """Recalculate ``paths`` (files or folders; ``shard`` (K, N) keeps the K-th of N shares) with ``jobs``
     processes (default: one per core); print differences, errors and the summary; return the exit status."""
     from .recalc import unwritable
@@ -257,7 +279,7 @@ def run(paths: Sequence[str], out: str | None = None, in_place: bool = False, ch
     workers = max(1, min(jobs or os.cpu_count() or 1, len(paths)))
     progress = Progress(len(paths))
     status = cells = errors = diffs = 0
-    work = [(path, dest, check, tolerance, limits, split_links) for path, dest in zip(paths, dests)]
+    work = [(path, dest, check, tolerance, limits, split_links, volatility) for path, dest in zip(paths, dests)]
     for path, (outcome, failure) in zip(paths, _outcomes(work, workers, progress)):
         shown = escaped(path)
         if outcome is None:

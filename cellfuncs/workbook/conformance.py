@@ -60,6 +60,7 @@ from .engine import Recalc
 from .model import load
 from .package import Package, Refused
 from .recalc import pack_functions
+from .volatile import functions_called, volatile_cells
 
 REL_TOLERANCE = 1e-9
 # Functions Excel solves by iteration, stopping near 1e-7 relative: their cells compare at that.
@@ -67,9 +68,6 @@ ITERATIVE = frozenset({"IRR", "XIRR", "RATE", "YIELD", "ODDFYIELD", "ODDLYIELD",
 ITERATIVE_TOLERANCE = 1e-7
 ABS_TOLERANCE = 1e-12
 NO_FUNCTION = "(none)"
-_PREFIXES = ("_XLFN.", "_XLWS.", "_XLUDF.")
-_CALLED = re.compile(r"([A-Za-z_][A-Za-z0-9_.]*)\s*\(")
-_STRING = re.compile(r'"(?:[^"]|"")*"')
 
 
 @lru_cache(maxsize=1)
@@ -150,68 +148,6 @@ class WorkbookScore:
     failed: list[tuple[str, str, object, object]] = field(default_factory=list)  # (cell, formula, Excel's, ours)
 
 
-def _called(formula_text: str) -> list[str]:
-    """Function names in a formula text the parser could not read (strings left out)."""
-    names = []
-    for m in _CALLED.finditer(_STRING.sub('""', formula_text)):
-        name = m.group(1).upper()
-        while name.startswith(_PREFIXES):
-            name = name.split(".", 1)[1]
-        names.append(name)
-    return names
-
-
-def _functions(engine: Recalc, fi: int, text: str) -> list[str]:
-    """The functions cell ``fi`` calls, in formula order without repeats."""
-    ast = engine.cells[fi].template.ast
-    if ast is None:
-        names = _called(text)
-    else:
-        names = []
-        for n in walk(ast):
-            if isinstance(n, Call):
-                name = n.name
-                while name.startswith(_PREFIXES):
-                    name = name.split(".", 1)[1]
-                names.append(name)
-    return list(dict.fromkeys(names))
-
-
-def _names_call_volatile(engine: Recalc, fi: int, volatile: frozenset[str]) -> bool:
-    """Whether a defined name the cell uses (or a name those use) calls a volatile function."""
-    fc = engine.cells[fi]
-    todo, seen = list(fc.template.names), set()
-    while todo:
-        key = engine.resolve_name(fc.sheet, todo.pop())
-        if key is None or key in seen:
-            continue
-        seen.add(key)
-        t = engine.name_template(key)
-        if t.ast is None:
-            if any(n in volatile for n in _called(engine.book.names[key])):
-                return True
-            continue
-        if any(isinstance(n, Call) and n.name in volatile for n in walk(t.ast)):
-            return True
-        todo += t.names
-    return False
-
-
-def _downstream(adj: list[list[int]], seeds: set[int]) -> set[int]:
-    """Units that need any of ``seeds``, directly or through others (seeds included)."""
-    users: list[list[int]] = [[] for _ in adj]
-    for u, needs in enumerate(adj):
-        for v in needs:
-            users[v].append(u)
-    out, todo = set(seeds), list(seeds)
-    while todo:
-        for w in users[todo.pop()]:
-            if w not in out:
-                out.add(w)
-                todo.append(w)
-    return out
-
-
 def _normalised(reason: str) -> str:
     """A reason with its particulars (quoted texts, numbers, addresses) blanked, so alike
     failures count as one cause."""
@@ -278,14 +214,11 @@ def score_workbook(path: Path, source: str) -> WorkbookScore:
     unit_of = {fi: u for u, members in enumerate(units) for fi in members}
     texts = {}
     calls: dict[int, list[str]] = {}
-    seeds = set()
     for fi, fc in enumerate(engine.cells):
         f = book.sheets[fc.sheet].scan.formulas[(fc.row, fc.col)]
         texts[fi] = f.text
-        calls[fi] = _functions(engine, fi, f.text)
-        if any(n in volatile for n in calls[fi]) or _names_call_volatile(engine, fi, volatile):
-            seeds.add(unit_of[fi])
-    left_out = _downstream(adj, seeds)
+        calls[fi] = functions_called(engine, fi, f.text)
+    left_out = {unit_of[fi] for fi in volatile_cells(engine, volatile)}
     results: dict[int, list[tuple[object, object, bool]]] = {}
     differs_units = set()
     for fi in range(len(engine.cells)):

@@ -242,6 +242,8 @@ class _Context:
         return mask
 
     def reference(self, sheet: str | None, ref: str) -> Value:
+        if sheet is not None and ":" in sheet:
+            return self._across(sheet, ref)
         if sheet is not None and sheet.startswith("["):
             linked = split_link(sheet)
             if linked is not None:
@@ -255,6 +257,26 @@ class _Context:
         if a.r1 == a.r2 and a.c1 == a.c2:
             return values.get((a.r1, a.c1))
         return self.engine.block(s, a)
+
+    def _across(self, span: str, ref: str) -> Value:
+        """A 3-D reference (``Jan:Dec!B4``): the area on each sheet of the span, stacked one
+        below the other, so that SUM, COUNT, AVERAGE and the like take every sheet's cells."""
+        sheets = self.engine.sheet_numbers(span, self.sheet)
+        if type(sheets) is CellError:
+            return sheets
+        parts = []
+        for s in sorted(sheets):
+            v = self.reference(self.engine.book.sheets[s].name, ref)
+            if type(v) is CellError:
+                return v
+            parts.append(v if type(v) is np.ndarray else np.array([[v]], dtype=object))
+        width = max(p.shape[1] for p in parts)
+        over = charge((sum(p.shape[0] for p in parts), width))
+        if over is not None:
+            return over
+        padded = [p if p.shape[1] == width else np.hstack([p, np.full((p.shape[0], width - p.shape[1]), None)])
+                  for p in parts]
+        return np.vstack(padded)
 
     def name(self, text: str) -> Value:
         engine = self.engine
@@ -484,6 +506,19 @@ class Recalc:
             return CellError(REF, f"sheet {name} has no cells (a chart sheet)")
         return CellError(REF, f"there is no sheet named {name}")
 
+    def sheet_numbers(self, name: str | None, current: int) -> list[int] | CellError:
+        """The sheets a reference's sheet part names: one, or for ``First:Last`` (a 3-D
+        reference) every worksheet from the one to the other in workbook order."""
+        if name is None or ":" not in name:
+            s = self.sheet_number(name, current)
+            return s if type(s) is CellError else [s]
+        ends = [self.sheet_number(end, current) for end in name.split(":", 1)]
+        for e in ends:
+            if type(e) is CellError:
+                return e
+        lo, hi = min(ends), max(ends)
+        return [s for s in self._sheet_numbers.values() if lo <= s <= hi]
+
     def resolve_name(self, sheet: int, text: str) -> tuple[int | None, str] | None:
         names = self.book.names
         if "!" in text:
@@ -658,14 +693,15 @@ class Recalc:
         first, last = self.cells[unit[0]], self.cells[unit[-1]]
         t = first.template
         for name, a in t.refs:
-            s = self.sheet_number(name, first.sheet)
-            if type(s) is not int:
+            sheets = self.sheet_numbers(name, first.sheet)
+            if type(sheets) is CellError:
                 continue
             top = shifted(a, first.row - t.row, first.col - t.col)
             bottom = shifted(a, last.row - t.row, last.col - t.col) if len(unit) > 1 else top
             if top is None or bottom is None:
                 continue
-            yield s, Area(top.r1, top.c1, max(top.r2, bottom.r2), max(top.c2, bottom.c2))
+            for s in sorted(sheets):
+                yield s, Area(top.r1, top.c1, max(top.r2, bottom.r2), max(top.c2, bottom.c2))
 
     def _graph(self, assumed: dict[int, Area]) -> Graph:
         """The dependency graph (see :class:`Graph`), components in evaluation order."""
@@ -735,8 +771,8 @@ class Recalc:
                     _, key, sheet = extra
                     t = self.name_template(key)
                     for ref_sheet, a in t.refs:
-                        s = self.sheet_number(ref_sheet, sheet)
-                        if type(s) is int:
+                        sheets = self.sheet_numbers(ref_sheet, sheet)
+                        for s in sheets if type(sheets) is list else ():
                             refer(s, a, needs)
                     refer_names(t.names, sheet, needs)
                 graph.adj.append(sorted(needs))

@@ -11,14 +11,17 @@ from __future__ import annotations
 
 import os
 from dataclasses import dataclass, field
-from typing import Callable
+from datetime import datetime
+from typing import Callable, NamedTuple
 
 from ..errors import CellError
+from ..formula.clock import fixed
 from .engine import Recalc
 from .limits import DEFAULTS, Limits
 from .model import load
 from .package import Package, Refused
 from .report import differences
+from .volatile import volatile_cells
 
 
 @dataclass
@@ -61,9 +64,19 @@ def unwritable(error: OSError) -> str:
     return f"{reason} ({where})" if where else reason
 
 
+class Volatility(NamedTuple):
+    """How volatile functions behave: ``now`` pins NOW and TODAY, ``seed`` the random numbers
+    of RAND and its kin (each workbook starts from it), and ``compared`` False leaves the
+    cells that depend on them out of ``--check`` (see :mod:`.volatile`)."""
+
+    now: datetime | None = None
+    seed: int | None = None
+    compared: bool = True
+
+
 def recalc_file(path: str, dest: str | None = None, check: bool = False, tolerance: float = 1e-9,
                 progress: Callable[[int, int], None] | None = None, limits: Limits = DEFAULTS,
-                split_links: bool = False) -> Outcome:
+                split_links: bool = False, volatility: Volatility | None = None) -> Outcome:
     """Recalculate the workbook at ``path``; write it to ``dest`` if given (``dest == path``:
     in place, to the file :func:`in_place_target` names).
 
@@ -82,12 +95,15 @@ def recalc_file(path: str, dest: str | None = None, check: bool = False, toleran
         pkg = Package(path)
         book = load(pkg)
         pkg.validate(book.parsed)
+        volatility = volatility or Volatility()
         engine = Recalc(book, pack_functions(), progress, limits)
-        engine.run()
+        with fixed(volatility.now, volatility.seed):
+            engine.run()
         outcome.cells = len(engine.cells)
         outcome.errors = list(engine.error_cells())
         if check:
-            outcome.differences = differences(engine, book, tolerance)
+            skipped = set() if volatility.compared else volatile_cells(engine)
+            outcome.differences = differences(engine, book, tolerance, skipped)
         if dest is not None:
             from .writer import plan
             from .zipout import write_package

@@ -73,12 +73,13 @@ def _shape(a: Area | None) -> str:
     return f"{h}x{w}"
 
 
-def differences(engine: Recalc, book: Book, rel: float) -> list[tuple[str, str, str]]:
+def differences(engine: Recalc, book: Book, rel: float, skipped: set[int] = frozenset()) -> list[tuple[str, str, str]]:
     """(``Sheet!A1``, cached, computed) of every cell whose cached value differs from the
-    recalculated one; a spill that changed size is one line for its anchor."""
+    recalculated one (formula cells in ``skipped`` left out); a spill that changed size is
+    one line for its anchor."""
     out = []
-    order = sorted(range(len(engine.cells)), key=lambda fi: (engine.cells[fi].sheet, engine.cells[fi].row,
-                                                             engine.cells[fi].col))
+    order = sorted((fi for fi in range(len(engine.cells)) if fi not in skipped),
+                   key=lambda fi: (engine.cells[fi].sheet, engine.cells[fi].row, engine.cells[fi].col))
     for fi in order:
         fc = engine.cells[fi]
         scan = book.sheets[fc.sheet].scan

@@ -135,7 +135,7 @@ def _batchable(ast: Node, refs: tuple) -> bool:
             return False
         if isinstance(n, Call) and n.name in BUILTINS and n.name not in ELEMENTWISE:
             return False
-    return all(a.single for _, a in refs)
+    return all(a.single and (sheet is None or ":" not in sheet) for sheet, a in refs)  # no 3-D references
 
 
 def _read_refs(ast: Node) -> list[Ref]:
