@@ -21,10 +21,10 @@ came from the Analysis ToolPak): a blank cell is 0, "" is #VALUE!.
 from __future__ import annotations
 
 from ..errors import NUM, VALUE, CellError
-from .arrays import elementwise
+from .arrays import elementwise, numeric
 from .coerce import to_number, to_text
 from .evaluate import builtin
-from .fn_math import argument_number, screened
+from .fn_math import argument_number
 from .nodes import Scalar
 
 DIGITS = 10
@@ -138,7 +138,7 @@ def _base(number: float, radix: float, min_length: float = 0.0) -> str | CellErr
     return "".join(reversed(digits)).rjust(int(min_length), "0") or "0"
 
 
-builtin("BASE", 2, 3)(screened(_base))
+builtin("BASE", 2, 3)(numeric(_base))
 
 
 @builtin("DECIMAL", 2)

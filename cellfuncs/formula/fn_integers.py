@@ -19,9 +19,10 @@ from functools import reduce
 import numpy as np
 
 from ..errors import DIV0, NA, NUM, VALUE, CellError
+from .arrays import numeric
 from .coerce import to_number
 from .evaluate import Context, builtin, collect, evaluate
-from .fn_math import argument_number, screened, toolpak
+from .fn_math import argument_number, toolpak
 from .nodes import Missing, Node, Scalar
 
 _BIT_LIMIT = 2.0**48  # Excel's bitwise functions take 0 <= n < 2^48
@@ -86,7 +87,7 @@ def lcm(context: Context, *nodes: Node) -> float | CellError:
 
 
 @builtin("MOD", 2)
-@screened
+@numeric
 def mod(x: float, d: float) -> float | CellError:
     """The remainder of ``x / d`` with the sign of ``d``: the exact remainder of the two
     doubles, plus ``d`` when their signs differ (Excel's stored values to the last bit, where
@@ -114,12 +115,12 @@ def quotient(x: float, d: float) -> float | CellError:
     return float(math.trunc(x / d)) if d != 0.0 else CellError(DIV0, "QUOTIENT by 0")
 
 
-builtin("SIGN", 1)(screened(lambda x: float((x > 0) - (x < 0))))
+builtin("SIGN", 1)(numeric(lambda x: float((x > 0) - (x < 0))))
 builtin("SQRTPI", 1)(toolpak(lambda x: math.sqrt(x * math.pi) if x >= 0 else CellError(NUM, "SQRTPI of a negative number")))
 
 
 @builtin("LOG", 1, 2)
-@screened
+@numeric
 def log(x: float, base: float = 10.0) -> float | CellError:
     """The logarithm of ``x`` to ``base`` (default 10).
 
@@ -145,12 +146,12 @@ def _factorial(n: float, step: int) -> float | CellError:
     return out if math.isfinite(out) else CellError(NUM, "the factorial is too large")
 
 
-builtin("FACT", 1)(screened(lambda n: _factorial(n, 1)))
+builtin("FACT", 1)(numeric(lambda n: _factorial(n, 1)))
 builtin("FACTDOUBLE", 1)(toolpak(lambda n: _factorial(n, 2)))
 
 
 @builtin("COMBIN", 2)
-@screened
+@numeric
 def combin(n: float, k: float) -> float | CellError:
     """Combinations of ``k`` out of ``n`` (both truncated).
 
@@ -164,7 +165,7 @@ def combin(n: float, k: float) -> float | CellError:
 
 
 @builtin("COMBINA", 2)
-@screened
+@numeric
 def combina(n: float, k: float) -> float | CellError:
     """Combinations with repetitions.
 
@@ -180,7 +181,7 @@ def combina(n: float, k: float) -> float | CellError:
 
 
 @builtin("PERMUT", 2)
-@screened
+@numeric
 def permut(n: float, k: float) -> float | CellError:
     """Permutations of ``k`` out of ``n``.
 
@@ -208,7 +209,7 @@ def _bits(name: str, fn) -> None:
             return CellError(NUM, f"{name} takes whole numbers from 0 to 2^48-1")
         return float(fn(int(a), int(b)))
 
-    builtin(name, 2)(screened(op))
+    builtin(name, 2)(numeric(op))
 
 
 _bits("BITAND", lambda a, b: a & b)
@@ -224,7 +225,7 @@ def _shift(name: str, left: bool) -> None:
         out = int(a) << k if k >= 0 else int(a) >> -k
         return float(out) if out < _BIT_LIMIT else CellError(NUM, f"{name}'s result is 2^48 or more")
 
-    builtin(name, 2)(screened(op))
+    builtin(name, 2)(numeric(op))
 
 
 _shift("BITLSHIFT", True)

@@ -45,11 +45,11 @@ def argument_number(v: Scalar, logicals: bool = True) -> float | CellError:
     return to_number(v)
 
 
-def screened(fn: Callable[..., float | CellError], logicals: bool = True) -> Callable[..., Value]:
-    """:func:`numeric` with the arguments converted by :func:`argument_number` (the first
-    error, in argument order, wins).
+def toolpak(fn: Callable[..., float | CellError]) -> Callable[..., Value]:
+    """:func:`numeric` for a function of the former Analysis ToolPak: TRUE and FALSE are
+    #VALUE! rather than 1 and 0 (the first error, in argument order, wins).
 
-    >>> twice = screened(lambda x: 2 * x, logicals=False)
+    >>> twice = toolpak(lambda x: 2 * x)
     >>> twice("4"), twice(True).code, twice(" 2024-01-10 ").code
     (8.0, '#VALUE!', '#VALUE!')
     """
@@ -58,18 +58,13 @@ def screened(fn: Callable[..., float | CellError], logicals: bool = True) -> Cal
     def scalar(*args: Scalar) -> Scalar:
         numbers = []
         for a in args:
-            x = argument_number(a, logicals)
+            x = argument_number(a, logicals=False)
             if type(x) is CellError:
                 return x
             numbers.append(x)
         return computed(*numbers)
 
     return elementwise(functools.wraps(fn)(scalar))
-
-
-def toolpak(fn: Callable[..., float | CellError]) -> Callable[..., Value]:
-    """:func:`screened` for a function of the former Analysis ToolPak: no logical values."""
-    return screened(fn, logicals=False)
 
 
 def _number_element(x: Scalar) -> float | None:
@@ -125,8 +120,8 @@ def _log(fn: Callable[[float], float]) -> Callable[[float], float | CellError]:
 
 builtin("ABS", 1)(numeric(abs))
 builtin("SQRT", 1)(numeric(_sqrt))
-builtin("EXP", 1)(screened(math.exp))
-builtin("LN", 1)(screened(_log(math.log)))
-builtin("LOG10", 1)(screened(_log(math.log10)))
+builtin("EXP", 1)(numeric(math.exp))
+builtin("LN", 1)(numeric(_log(math.log)))
+builtin("LOG10", 1)(numeric(_log(math.log10)))
 builtin("POWER", 2)(numeric(power))
 builtin("PI", 0)(lambda: math.pi)

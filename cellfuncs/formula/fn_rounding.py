@@ -21,9 +21,10 @@ from decimal import ROUND_DOWN
 from typing import Callable
 
 from ..errors import DIV0, NUM, CellError
+from .arrays import numeric
 from .coerce import decimal_round
 from .evaluate import builtin
-from .fn_math import screened, toolpak
+from .fn_math import toolpak
 
 
 def _quotient(x: float, step: float) -> float:
@@ -37,7 +38,7 @@ def _multiple(x: float, step: float, rounding: Callable[[float], float]) -> floa
 
 
 @builtin("FLOOR", 2)
-@screened
+@numeric
 def floor(x: float, step: float) -> float | CellError:
     """``x`` rounded toward minus infinity (both negative: toward zero) to a multiple of ``step``.
 
@@ -52,7 +53,7 @@ def floor(x: float, step: float) -> float | CellError:
 
 
 @builtin("CEILING", 2)
-@screened
+@numeric
 def ceiling(x: float, step: float) -> float | CellError:
     """``x`` rounded toward plus infinity (both negative: away from zero) to a multiple of ``step``;
     a multiple of 0 gives 0.
@@ -79,7 +80,7 @@ def _math_form(name: str, up: bool) -> None:
         return _multiple(x, step, math.ceil if toward_plus else math.floor)
 
     fn.__doc__ = f"{name}(number, [significance], [mode]): {'up' if up else 'down'} to a multiple."
-    builtin(name, 1, 3)(screened(fn))
+    builtin(name, 1, 3)(numeric(fn))
 
 
 _math_form("CEILING.MATH", True)
@@ -95,7 +96,7 @@ def _precise_form(name: str, up: bool) -> None:
         return 0.0 if step == 0.0 else _multiple(x, step, math.ceil if up else math.floor)
 
     fn.__doc__ = f"{name}(number, [significance]): {'up' if up else 'down'} to a multiple."
-    builtin(name, 1, 2)(screened(fn))
+    builtin(name, 1, 2)(numeric(fn))
 
 
 _precise_form("CEILING.PRECISE", True)
@@ -120,7 +121,7 @@ def mround(x: float, step: float) -> float | CellError:
 
 
 @builtin("INT", 1)
-@screened
+@numeric
 def int_(x: float) -> float:
     """``x`` rounded down to an integer.
 
@@ -131,7 +132,7 @@ def int_(x: float) -> float:
 
 
 @builtin("TRUNC", 1, 2)
-@screened
+@numeric
 def trunc(x: float, digits: float = 0.0) -> float:
     """``x`` cut to ``digits`` decimals (negative: tens, hundreds...), toward zero.
 
@@ -149,7 +150,7 @@ def _to_parity(x: float, odd: bool) -> float:
 
 
 @builtin("EVEN", 1)
-@screened
+@numeric
 def even(x: float) -> float:
     """``x`` rounded away from zero to an even integer.
 
@@ -160,7 +161,7 @@ def even(x: float) -> float:
 
 
 @builtin("ODD", 1)
-@screened
+@numeric
 def odd(x: float) -> float:
     """``x`` rounded away from zero to an odd integer.
 
