@@ -226,7 +226,7 @@ def test_no_font_is_below_8_points_and_nothing_shrinks_to_fit():
 
 
 def test_every_sheet_prints_one_page_wide_at_a_readable_scale():
-    build = _build_module()
+    kit = _kit_module()
     for name, formulas, _ in _books():
         for ws in formulas.worksheets:
             setup = ws.page_setup
@@ -241,17 +241,17 @@ def test_every_sheet_prints_one_page_wide_at_a_readable_scale():
             from openpyxl.utils import get_column_letter
 
             width = sum(ws.column_dimensions[get_column_letter(c)].width or 8.43 for c in range(1, last + 1))
-            orientation, scale = build.print_scale(width, last)
+            orientation, scale = kit.print_scale(width, last)
             assert setup.orientation == orientation and scale >= 60, (name, ws.title, scale)
 
 
-def _build_module():
+def _kit_module():
     sys.path.insert(0, str(FOLDER))
     try:
-        import build
+        import sheet_kit
     finally:
         sys.path.pop(0)
-    return build
+    return sheet_kit
 
 
 def test_every_legend_entry_is_a_phase_name():
