@@ -25,6 +25,7 @@ publication prints it::
     planck_einstein = { n = [...], theta = [...] }   # n ln(1 - exp(-theta tau))
     sinh = { n = [...], theta = [...] }              # n ln|sinh(theta tau)|   (GERG-2008)
     cosh = { n = [...], theta = [...] }              # -n ln cosh(theta tau)   (GERG-2008)
+    planck_einstein_general = { n = [...], c = [...], d = [...], theta = [...] }   # n ln(c + d exp(theta tau))
 
     [residual]                                       # alphar: the sum of the families
     power = { n = [...], d = [...], t = [...] }
@@ -59,7 +60,8 @@ CONSTANTS = {
 }
 TEXTS = ("title", "reference", "uncertainty")
 IDEAL_LEAD = ("a1", "a2", "a3")
-IDEAL_FAMILIES = {"power": "t", "planck_einstein": "theta", "sinh": "theta", "cosh": "theta"}
+IDEAL_FAMILIES = {"power": ("t",), "planck_einstein": ("theta",), "sinh": ("theta",), "cosh": ("theta",),
+                  "planck_einstein_general": ("c", "d", "theta")}
 RESIDUAL_FAMILIES = ("power", "exponential", "gaussian", "nonanalytic")
 
 
@@ -100,12 +102,13 @@ def _constant(file: str, key: str, entry: Mapping[str, Any], molar_mass: float |
                     reference=reference, note=str(entry.get("note", "")))
 
 
-def _pair(file: str, family: str, table: Mapping[str, Any], second: str) -> tuple[np.ndarray, np.ndarray]:
+def _family(file: str, family: str, table: Mapping[str, Any], columns: tuple[str, ...]) -> tuple[np.ndarray, ...]:
     n = np.asarray(table.get("n", []), dtype=float)
-    x = np.asarray(table.get(second, []), dtype=float)
-    if n.shape != x.shape:
-        raise SchemaError(f"{file}: ideal.{family} has {n.size} n and {x.size} {second}")
-    return n, x
+    cols = [np.asarray(table.get(c, []), dtype=float) for c in columns]
+    for name, x in zip(columns, cols):
+        if n.shape != x.shape:
+            raise SchemaError(f"{file}: ideal.{family} has {n.size} n and {x.size} {name}")
+    return (n, *cols)
 
 
 def read(file: str, raw: Mapping[str, Any]) -> Spec:
@@ -128,7 +131,7 @@ def read(file: str, raw: Mapping[str, Any]) -> Spec:
         raise SchemaError(f"{file}: unknown ideal-part keys {sorted(unknown)}")
     ideal = IdealTerms(
         *(float(ideal_raw.get(k, 0.0)) for k in IDEAL_LEAD),
-        *(_pair(file, fam, ideal_raw.get(fam, {}), col) for fam, col in IDEAL_FAMILIES.items()),
+        *(_family(file, fam, ideal_raw.get(fam, {}), cols) for fam, cols in IDEAL_FAMILIES.items()),
     )
 
     res_raw = raw["residual"]

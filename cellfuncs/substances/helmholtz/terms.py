@@ -18,6 +18,8 @@ and alpha0 from
     power            n tau^t
     planck_einstein  n ln(1 - exp(-theta tau))
     sinh / cosh      n ln|sinh(theta tau)|  and  -n ln cosh(theta tau)   (GERG-2008 form)
+    planck_einstein_general  n ln(c + d exp(theta tau))   (a vibration with c = -1, d = 1, or an
+                                                    excited electronic level with c = 1, theta < 0)
 
 Every family returns the *reduced* derivatives, the products that the property relations use
 and that stay finite as delta -> 0:
@@ -223,7 +225,7 @@ class NonanalyticTerms:
 @dataclass(frozen=True)
 class IdealTerms:
     """alpha0 = ln delta + a1 + a2 tau + a3 ln tau + sum n tau^t + sum n ln(1 - exp(-theta tau))
-    + sum n ln|sinh(theta tau)| - sum n ln cosh(theta tau)."""
+    + sum n ln|sinh(theta tau)| - sum n ln cosh(theta tau) + sum n ln(c + d exp(theta tau))."""
 
     a1: float
     a2: float
@@ -232,6 +234,7 @@ class IdealTerms:
     planck_einstein: tuple[np.ndarray, np.ndarray]
     sinh: tuple[np.ndarray, np.ndarray]
     cosh: tuple[np.ndarray, np.ndarray]
+    planck_einstein_general: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]  # n, c, d, theta
 
     def add(self, tau: np.ndarray, delta: np.ndarray, out: dict) -> None:
         """Adds alpha0 (to 'a') and its tau-derivatives ('t', 'tt'; asked for together); the
@@ -268,6 +271,16 @@ class IdealTerms:
             tn = np.tanh(x)
             out["t"] += (-n * x * tn).sum(axis=1)
             out["tt"] += (-n * x * x * (1.0 - tn * tn)).sum(axis=1)
+        n, c, d, th = self.planck_einstein_general
+        if n.size:
+            x = th * ta
+            u = np.exp(-np.abs(x))  # exp(theta tau) factored out where it is large, so nothing overflows
+            up = x > 0.0
+            inner = np.where(up, d + c * u, c + d * u)
+            out["a"] += (n * (np.where(up, x, 0.0) + np.log(inner))).sum(axis=1)
+            q = np.where(up, d, d * u) / inner  # d exp(x) / (c + d exp(x))
+            out["t"] += (n * x * q).sum(axis=1)
+            out["tt"] += (n * x * x * q * (1.0 - q)).sum(axis=1)
 
 
 def evaluate(families: Sequence, tau: np.ndarray, delta: np.ndarray,
