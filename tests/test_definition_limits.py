@@ -26,7 +26,8 @@ from cellfuncs.sheet.functions import (BOIL_PRESSURE, BOIL_TEMP, MASS_DENSITY, M
 from cellfuncs.substances import define
 from cellfuncs.substances.general.bounds import FIELDS
 from cellfuncs.substances.general.consistency import check, check_published
-from cellfuncs.substances.general.definition import builtin_keys, load_builtin
+from cellfuncs.substances import builtin_keys
+from cellfuncs.substances.general.definition import load_builtin
 from cellfuncs.substances.general.model import GeneralSubstance
 from cellfuncs.substances.constants import R
 from cellfuncs.substances.result import ModelError

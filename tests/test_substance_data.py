@@ -35,7 +35,8 @@ from cellfuncs.substances.constants import R
 from cellfuncs.sheet.functions import (BOIL_PRESSURE, BOIL_TEMP, CRITICAL_POINT, MASS_DENSITY, MELT_TEMP, SUBSTANCE_INFO,
                                        TRIPLE_POINT)
 from cellfuncs.substances import ideal_gas
-from cellfuncs.substances.general.definition import (NUMBERS, Definition, builtin_keys, load_builtin)
+from cellfuncs.substances import builtin_keys
+from cellfuncs.substances.general.definition import NUMBERS, Definition, load_builtin
 from cellfuncs.substances.general.model import GeneralSubstance
 from cellfuncs.substances.lines import FORMS, line_pressure
 from cellfuncs.substances.result import ModelError
@@ -644,8 +645,9 @@ TRC_298 = {"ethane": 52.49, "ethylene": 42.90, "propane": 73.60, "propylene": 64
 
 
 def test_every_substance_with_a_correlation_has_an_independent_check_value():
-    # the files without an [ideal_gas_cp] table: no correlation was recalled with confidence
-    assert set(JANAF_298) | set(TRC_298) == {key for key in KEYS if "ideal_gas_cp" in _file(key)}
+    # every file has a table (tests/test_ideal_gas_cp.py); those of the newer correlations are checked
+    # there against their own handbook values
+    assert set(JANAF_298) | set(TRC_298) <= {key for key in KEYS if "ideal_gas_cp" in _file(key)}
 
 
 @pytest.mark.parametrize("key, cp", sorted({**JANAF_298, **TRC_298}.items()))

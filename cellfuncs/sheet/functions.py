@@ -406,9 +406,11 @@ def LATENT_HEAT(substance, boundary, temperature, t_unit=None, h_unit=None):
 
 @sheet_function
 def FLASH_FRACTION(substance, t_from, p_from, p_to, t_unit=None, p_unit=None):
-    """Vapour fraction after liquid at (t_from, p_from) is let down adiabatically to saturation at p_to.
+    """Vapour mass fraction after liquid at (t_from, p_from) is let down adiabatically to saturation at p_to.
 
-    0 when nothing flashes (the liquid stays below its boiling point at p_to).
+    0 when nothing flashes (the liquid stays below its boiling point at p_to); the rest is liquid, or
+    solid below the triple-point pressure (liquid CO2 let down to 1 atm: the rest is snow). A p_to above
+    p_from is #VALUE!.
 
     Arguments:
     substance: name of the substance, e.g. "water"

@@ -28,14 +28,20 @@ def _keys(name: str, formula: str, designation: str, aliases) -> set[str]:
     return {" ".join(k.split()).lower() for k in keys if k}
 
 
+def builtin_keys() -> tuple[str, ...]:
+    """The keys of the data files of cellfuncs/data/substances, sorted."""
+    from importlib import resources
+
+    folder = resources.files("cellfuncs.data").joinpath("substances")
+    return tuple(sorted(p.name[:-5] for p in folder.iterdir() if p.name.endswith(".toml")))
+
+
 @lru_cache(maxsize=None)
 def _index() -> tuple[dict[str, list[str]], dict[str, str]]:
     """(lower-case name -> substance keys, key -> substance name), read from the data files' headers
     alone, so that finding a substance builds only its own model."""
     import tomllib
     from importlib import resources
-
-    from .general.definition import builtin_keys
 
     table: dict[str, list[str]] = {}
     titles = {}

@@ -15,7 +15,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from .line_ends import TYPED_P, onto_ends
+from .line_ends import LINE_TOL, TYPED_P, onto_ends
 from .props import Props
 from .result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
 
@@ -341,17 +341,45 @@ class Substance:
         return t_boil
 
     def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
-        """Vapour fraction after liquid at (T1, p1) expands at constant enthalpy to saturation at p2.
+        """Vapour mass fraction after liquid at (T1, p1) is let down at constant enthalpy to p2.
 
-        0 when the liquid's enthalpy is below the saturated liquid's at p2 (nothing flashes).
-        For one substance the mass and mole fractions are equal.
+        At or above the triple-point pressure the liquid-vapour split at the boiling temperature
+        (0 when nothing flashes, the rest liquid); below it the solid-vapour split at the
+        sublimation temperature (the rest solid: liquid carbon dioxide let down to 1 atm makes
+        snow), the solid's enthalpy being the vapour's less the enthalpy of sublimation. For one
+        substance the mass and mole fractions are equal. A let-down to a higher pressure is refused.
         """
-        liquid, inlet = self.props(T1, p1, LIQUID)
-        t_sat = self.boil_temperature(p2)
-        sat_liquid, liquid_result = self.props(t_sat.values, p2, LIQUID)
-        sat_vapor, vapor_result = self.props(t_sat.values, p2, VAPOR)
-        out = Result.joined(inlet, t_sat, liquid_result, vapor_result)
-        out.fill(np.maximum((liquid.h - sat_liquid.h) / (sat_vapor.h - sat_liquid.h), 0.0))
+        T1, p1, p2 = np.broadcast_arrays(np.asarray(T1, float), np.asarray(p1, float), np.asarray(p2, float))
+        liquid, inlet = self.props(T1, p1, LIQUID, want=("h",))
+        out = Result.joined(inlet)
+        out.flag(p2 > p1, BAD_ARGUMENT, lambda a, b: f"the pressure after a let-down ({fmt(b)} Pa) must not be above "
+                 f"the pressure before it ({fmt(a)} Pa)", p1, p2)
+        self._no_enthalpy(out, liquid.h)
+        pt = self.triple.pressure
+        snow = p2 < pt * (1 - LINE_TOL) if np.isfinite(pt) else np.zeros(p2.shape, bool)
+        x = np.full(p2.shape, np.nan)
+        if (~snow).any():
+            x[~snow] = self._split(out, ~snow, liquid.h, p2, "boil", LIQUID)
+        if snow.any():
+            x[snow] = self._split(out, snow, liquid.h, p2, "sublime", SOLID)
+        out.fill(np.clip(x, 0.0, 1.0))
         return out
 
+    def _no_enthalpy(self, out: Result, h: np.ndarray) -> None:
+        """Flag states whose enthalpy the model leaves NaN (a model without the heat capacity to give it)."""
+        out.flag(np.isnan(h), NOT_AVAILABLE, f"the enthalpy of {self.name} is not modelled")
 
+    def _split(self, out: Result, sel: np.ndarray, h_in: np.ndarray, p2: np.ndarray, boundary: str, dense: int
+               ) -> np.ndarray:
+        """(h_in - h_dense) / (h_vapour - h_dense) at the line's temperature at p2, for the selection."""
+        q = p2[sel]
+        t_line, _ = self.line_temperature(boundary, q)
+        vapor, vapor_result = self.props(t_line.values, q, VAPOR, want=("h",))
+        if dense == LIQUID:
+            condensed, dense_result = self.props(t_line.values, q, LIQUID, want=("h",))
+            h_dense = condensed.h
+        else:
+            heat = self.latent_heat("sublime", t_line.values)
+            dense_result, h_dense = heat, vapor.h - heat.values
+        self._report(out, sel, Result.joined(t_line, vapor_result, dense_result))
+        return (h_in[sel] - h_dense) / (vapor.h - h_dense)

@@ -343,12 +343,6 @@ def _validate_line(line: str, table: dict[str, Any]) -> None:
 
 
 @lru_cache(maxsize=None)
-def builtin_keys() -> tuple[str, ...]:
-    folder = resources.files("cellfuncs.data").joinpath("substances")
-    return tuple(sorted(p.name[:-5] for p in folder.iterdir() if p.name.endswith(".toml")))
-
-
-@lru_cache(maxsize=None)
 def load_builtin(key: str) -> Definition:
     """The definition in cellfuncs/data/substances/<key>.toml."""
     text = resources.files("cellfuncs.data").joinpath("substances", f"{key}.toml").read_text(encoding="utf-8")

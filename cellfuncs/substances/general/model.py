@@ -19,6 +19,10 @@ Phases:
   liquid: Rackett saturated volume with the COSTALD-Tait compression (see liquid.py); the
           compressed liquid only where the Tait form holds, up to a few per cent below Tc
   solid: constant molar volume from the solid density (no expansivity or compressibility)
+Enthalpy (FLASH_FRACTION): the ideal gas's from the data's ideal-gas heat capacity (or the estimate
+  of ideal_gas.estimate from the liquid heat capacity) plus the Peng-Robinson departure; the
+  liquid's the saturated vapour's less the Clapeyron enthalpy of boiling, compressed by
+  (v - T v alpha) dp; NaN (FLASH_FRACTION #N/A) without either heat capacity
 Chemical potential (one consistent model; CHEM_POTENTIAL's reference state is the ideal
 gas at the same temperature and 101.325 kPa):
   mu_vapour(T, p) = R T ln(phi p / p0)                       (Peng-Robinson fugacity)
@@ -38,6 +42,7 @@ import numpy as np
 from ...numerics import MonotoneInverse
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..constants import P_STANDARD, R
+from .. import ideal_gas
 from ..lines import line_pressure
 from ..phase_map import LINE_TOL, classify, onto_ends, state_table
 from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, fmt
@@ -50,6 +55,8 @@ P_MAX = 100e6  # Pa, highest pressure the liquid and fluid estimates are used at
 VERTICAL_P_MAX = P_MAX  # Pa, top of a melting line taken as pressure-independent
 _LABELS, _STATE_PHASE = state_table(("solid",))
 _NO_TRIPLE = "the data give no triple point (triple_point_temperature)"
+_NO_CP0 = ("the data give no ideal-gas heat capacity (ideal_gas_cp.* rows) and no liquid heat capacity to estimate it "
+           "from (the estimate is not made for an associating substance)")
 
 
 def _lee_kesler_terms(tr):
@@ -107,6 +114,8 @@ class GeneralSubstance(Substance):
         self.omega = v.get("acentric_factor", omega_tb)
         self._omega_line = omega_tb if omega_tb is not None else self.omega
         self.eos = PengRobinson(self.tc, self.pc, self.omega)
+        self.ideal_gas = d.ideal_gas or (None if d.associating else ideal_gas.estimate(
+            self.tc, self.omega, v.get("liquid_heat_capacity"), v.get("liquid_heat_capacity.temperature")))
         rho_l, t_l = v.get("liquid_density"), v.get("liquid_density.temperature")
         self.liquid = (LiquidVolume.anchored(self.tc, self.pc, self.omega, t_l, self.molar_mass / rho_l)
                        if rho_l and t_l and t_l < self.tc else LiquidVolume(self.tc, self.pc, self.omega))
@@ -496,6 +505,11 @@ class GeneralSubstance(Substance):
                       kappa=np.where(tait, self.liquid.compressibility(t_in, q, p_sat), np.nan))
         if fields.wants("g"):  # the chemical potential needs the vapour's fugacity: only when asked
             values["g"] = self._mu_liquid(t_in, q)
+        if fields.wants("h"):
+            # the saturated vapour's less the Clapeyron enthalpy of boiling, then compressed:
+            # dh = (v - T v alpha) dp, with the volume and expansivity at the state
+            h_sat = self._h_gas(t_in, p_sat, self.eos.compressibility(t_in, p_sat, "vapor")) - self._latent_boil(t_in)
+            values["h"] = h_sat + volume * (1.0 - t_in * np.where(tait, alpha, 0.0)) * (q - p_sat)
         self._store(fields, sel, r, sub, **values)
 
     def _flag_frozen(self, sub: Result, t: np.ndarray, q: np.ndarray, word: str = "liquid") -> None:
@@ -518,7 +532,15 @@ class GeneralSubstance(Substance):
             values.update(kappa=-1.0 / (volume * dp_dv), alpha=-dp_dT / (volume * dp_dv))
         if fields.wants("g"):
             values["g"] = R * t * (np.log(q / P0) + self.eos.ln_fugacity_coefficient(t, q, z))
+        if fields.wants("h"):
+            values["h"] = self._h_gas(t, q, z)
         self._store(fields, sel, r, sub, **values)
+
+    def _h_gas(self, T, p, z) -> np.ndarray:
+        """Ideal-gas enthalpy (from 298.15 K) plus the Peng-Robinson departure; NaN without a heat capacity."""
+        if self.ideal_gas is None:
+            return np.full(np.shape(T), np.nan)
+        return ideal_gas.enthalpy(self.ideal_gas, T) + self.eos.departure_enthalpy(T, p, z)
 
     def _vapor(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
@@ -610,19 +632,8 @@ class GeneralSubstance(Substance):
         out.fill(T * (high.v - low.v) * slope)
         return out
 
-    def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
-        """cp_liquid (T1 - Tsat(p2)) / H_vap(Tsat(p2)), with the liquid heat capacity of the data."""
-        cp = self.definition.values.get("liquid_heat_capacity")
-        _, inlet = self.props(T1, p1, LIQUID)
-        t_sat = self.boil_temperature(p2)
-        out = Result.joined(inlet, t_sat)
-        if cp is None:
-            out.flag(True, NOT_AVAILABLE, f"{self.name} has no liquid heat capacity in its data")
-            return out
-        heat = self.latent_heat("boil", t_sat.values)
-        out = Result.joined(out, heat)
-        out.fill(np.maximum(cp * (T1 - t_sat.values) / heat.values, 0.0))
-        return out
+    def _no_enthalpy(self, out: Result, h: np.ndarray) -> None:
+        out.flag(np.isnan(h), NOT_AVAILABLE, f"the enthalpy of {self.name} is not modelled: {_NO_CP0}")
 
     def info(self) -> dict[str, InfoItem]:
         d = self.definition
@@ -642,6 +653,8 @@ class GeneralSubstance(Substance):
         line = {"boil": self._boil, "melt": self._melt, "sublime": self._sub}.get(key)
         if line is not None:
             return d.sources.get(key, "") + ("; continued by " + _METHOD_SOURCES["boil"] if key == "boil" else "")
+        if key == "ideal_gas_cp":
+            return d.sources.get(key, "") if d.ideal_gas else ideal_gas.ESTIMATE_SOURCE if self.ideal_gas else ""
         if key == "melt" and self._melt_slope == np.inf:
             return "the data's triple-point temperature (without a solid density there is no Clapeyron slope)"
         return _METHOD_SOURCES.get(key, "")
@@ -664,7 +677,14 @@ class GeneralSubstance(Substance):
         sub = ("published " + self._sub["form"] + " equation" if self._sub is not None else
                "Clausius-Clapeyron from the triple point (estimate)" if self._sub_range else "none")
         rng = lambda r_: f"{fmt(r_[0])} K to {fmt(r_[1])} K" if r_ else ""
+        ig = self.ideal_gas
+        cp0 = (("none: " + _NO_CP0, "") if ig is None else
+               (f"the data's {ig['form']} correlation", rng((ig["T_min"], ig["T_max"])))
+               if self.definition.ideal_gas else
+               (f"constant {fmt(ig['a'][0] * R)} J/(mol K), estimated from the liquid heat capacity (Rowlinson-Bondi)",
+                "the same value at every temperature"))
         return {
+            "ideal_gas_cp": cp0,
             "boil": (boil, f"{fmt(self.t_low)} K to {fmt(self.tc)} K"),
             "melt": (melt, rng(self._melt_range)),
             "sublime": (sub, rng(self._sub_range)),

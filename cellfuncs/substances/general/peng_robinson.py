@@ -70,6 +70,13 @@ class PengRobinson:
         B = self.b * p / (R * T)
         return z - 1.0 - np.log(z - B) - A / (2.0 * _SQRT2 * B) * np.log((z + (1 + _SQRT2) * B) / (z + (1 - _SQRT2) * B))
 
+    def departure_enthalpy(self, T, p, z) -> np.ndarray:
+        """h - h_ideal_gas at (T, p) on the root z: R T (z - 1) + (T a' - a) / (2 sqrt2 b) ln((z + (1 + sqrt2) B) / (z + (1 - sqrt2) B))."""
+        a, da_dT = self._a(np.asarray(T, float))
+        B = self.b * p / (R * T)
+        return R * T * (z - 1.0) + (T * da_dT - a) / (2.0 * _SQRT2 * self.b) * np.log(
+            (z + (1 + _SQRT2) * B) / (z + (1 - _SQRT2) * B))
+
     def derivatives(self, T, v) -> tuple[np.ndarray, np.ndarray]:
         """(dp/dv)_T and (dp/dT)_v at molar volume v."""
         a, da_dT = self._a(np.asarray(T, float))

@@ -59,7 +59,7 @@ class MappedSubstance(EquationSubstance):
         try:
             equation = MappedEquation(
                 definition.name, estimate.name, estimate.tc, estimate.pc, estimate.molar_mass, estimate.t_low,
-                estimate.boil_pressure_estimate, lambda T: 1.0 / estimate.liquid.saturated(T), definition.ideal_gas,
+                estimate.boil_pressure_estimate, lambda T: 1.0 / estimate.liquid.saturated(T), estimate.ideal_gas,
                 reference.equation, table)
         except ArithmeticError as e:
             raise ModelError(BAD_ARGUMENT, f"{e}: the definition's vapour-pressure line and liquid density are "
@@ -69,14 +69,6 @@ class MappedSubstance(EquationSubstance):
 
     def liquid_density_guess(self, T: np.ndarray) -> np.ndarray:
         return self.equation.saturated_liquid(T)
-
-    def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
-        """As EquationSubstance's where the data give an ideal-gas heat capacity (a let-down moves
-        between temperatures, so it needs the ideal-gas part); without one, the general model's
-        estimate from the data's liquid heat capacity, with the equation's enthalpy of boiling."""
-        if self.equation.caloric:
-            return super().flash_fraction(T1, p1, p2)
-        return GeneralSubstance.flash_fraction(self, T1, p1, p2)
 
     def _models(self) -> dict[str, tuple[str, str]]:
         models = super()._models()

@@ -32,7 +32,7 @@ from functools import cached_property
 
 import numpy as np
 
-from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint
+from ..base import FLUID, LIQUID, VAPOR, FixedPoint
 from ..general.definition import Definition
 from ..general.model import P0, GeneralSubstance
 from ..phase_map import LINE_TOL
@@ -246,42 +246,6 @@ class EquationSubstance(GeneralSubstance):
         n = T.size
         return (h[:n] - h[n:]).reshape(T.shape)
 
-    def flash_fraction(self, T1: np.ndarray, p1: np.ndarray, p2: np.ndarray) -> Result:
-        """Vapour fraction after liquid at (T1, p1) is let down at constant enthalpy to p2.
-
-        At or above the triple-point pressure the liquid-vapour split at the boiling temperature
-        (0 when nothing flashes); below it the solid-vapour split at the sublimation temperature,
-        with the solid's enthalpy the vapour's less the enthalpy of sublimation (Clapeyron).
-        """
-        T1, p1, p2 = np.broadcast_arrays(np.asarray(T1, float), np.asarray(p1, float), np.asarray(p2, float))
-        liquid, inlet = self.props(T1, p1, LIQUID, want=("h",))
-        out = Result.joined(inlet)
-        out.flag(p2 > p1, BAD_ARGUMENT, lambda a, b: f"the pressure after a let-down ({fmt(b)} Pa) must not be above "
-                 f"the pressure before it ({fmt(a)} Pa)", p1, p2)
-        snow = p2 < self.triple.pressure * (1 - LINE_TOL) if self.has_triple else np.zeros(p2.shape, bool)
-        x = np.full(p2.shape, np.nan)
-        if (~snow).any():
-            x[~snow] = self._split(out, ~snow, liquid.h, p2, "boil", LIQUID)
-        if snow.any():
-            x[snow] = self._split(out, snow, liquid.h, p2, "sublime", SOLID)
-        out.fill(np.clip(x, 0.0, 1.0))
-        return out
-
-    def _split(self, out: Result, sel: np.ndarray, h_in: np.ndarray, p2: np.ndarray, boundary: str, dense: int
-               ) -> np.ndarray:
-        """(h_in - h_dense) / (h_vapour - h_dense) at the line's temperature at p2, for the selection."""
-        q = p2[sel]
-        t_line, _ = self.line_temperature(boundary, q)
-        vapor, vapor_result = self.props(t_line.values, q, VAPOR, want=("h",))
-        if dense == LIQUID:
-            condensed, dense_result = self.props(t_line.values, q, LIQUID, want=("h",))
-            h_dense = condensed.h
-        else:
-            heat = self.latent_heat("sublime", t_line.values)
-            dense_result, h_dense = heat, vapor.h - heat.values
-        self._report(out, sel, Result.joined(t_line, vapor_result, dense_result))
-        return (h_in[sel] - h_dense) / (vapor.h - h_dense)
-
     # --- what SUBSTANCE_INFO says ------------------------------------------------------------
     def _models(self) -> dict[str, tuple[str, str]]:
         models = super()._models()
@@ -304,10 +268,13 @@ class EquationSubstance(GeneralSubstance):
                             "model's volumes and the lines' slopes", models["boil"][1]),
             "uncertainty": (eq.uncertainty, span),
         })
+        if self.definition.equation:  # its own equation: the heat capacity is the equation's ideal part
+            models["ideal_gas_cp"] = (f"ideal part of the {eq.title}", span)
         return models
 
     def _model_source(self, key: str) -> str:
-        if key in ("equation", "boil", "vapor", "liquid", "fluid", "chem_potential", "uncertainty"):
+        if key in ("equation", "boil", "vapor", "liquid", "fluid", "chem_potential", "uncertainty") or (
+                key == "ideal_gas_cp" and self.definition.equation):
             return self.equation.reference
         if key == "latent_heat":
             return self.equation.reference + "; " + self.definition.sources.get("melt", "")

@@ -5,12 +5,15 @@ Boundaries (these decide the stable phase):
   melting      IAPWS R14-08 ice Ih, III, V, VI, VII lines (251.165 K .. 715 K, to 20.6 GPa)
   sublimation  IAPWS R14-08 ice Ih line (50 K .. 273.16 K)
 Phases (these give volumes, enthalpies and chemical potentials):
-  liquid       IF97 region 1 to 623.15 K, region 3 (liquid-like root) above;
-               region 1 extended down to the ice Ih melting line and up to 210 MPa
+  liquid       IF97 region 1 to 623.15 K, region 3 (liquid-like root) above, to 100 MPa;
+               region 1 extended below 273.15 K down to the ice Ih melting line (to 100 MPa);
+               above 100 MPa IAPWS-95 (iapws95.py) to 1000 MPa, bounded by the melting lines
+               of ice Ih, III, V and VI
   vapour       IF97 region 2, region 3 (vapour-like root) between the B23 line and
                saturation; region 2 extended down to 200 K at or below the sublimation pressure
   fluid        above 647.096 K: region 2 / region 3 (split by B23), region 2 to 1073.15 K,
-               region 5 to 2273.15 K and 50 MPa
+               region 5 to 2273.15 K and 50 MPa; IAPWS-95 above them (above 100 MPa to
+               1073.15 K, above 50 MPa to 1273 K) up to 1000 MPa
   ice Ih       IAPWS R10-06 (T <= 273.16 K, p <= 210 MPa, not above its melting line)
   ice III..VII labels only: solid-solid boundaries (including ice II) are not modelled;
                a solid above the ice Ih line's top pressure (208.566 MPa) is named after the
@@ -18,7 +21,8 @@ Phases (these give volumes, enthalpies and chemical potentials):
 
 Chemical potentials are molar Gibbs energies on the IAPWS-95 reference state
 (internal energy and entropy of the saturated liquid at the triple point are zero),
-which IF97 and R10-06 share.
+which IF97 and R10-06 share; IAPWS-95 itself is shifted onto IF97's realisation of it
+(iapws95.shift: its h and s equal IF97 region 1's at the triple point).
 
 >>> w = Water()
 >>> round(float(w.boil_temperature(np.array(101325.0)).values), 4)
@@ -36,7 +40,7 @@ from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..phase_map import LINE_TOL, classify, state_table
 from ..props import Props
 from ..result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
-from . import ice_ih, ice_lines, if97, if97_region3, if97_saturation
+from . import iapws95, ice_ih, ice_lines, if97, if97_region3, if97_saturation
 
 _DATA = "water/water"
 M = constant(_DATA, "molar_mass").value
@@ -58,8 +62,9 @@ P_MAX_FLUID = if97.P_MAX  # regions 1, 2 and 3
 P_MAX_REGION5 = if97.REGION5_P_MAX
 ICE_IH_T_MAX = ice_ih.T_MAX
 ICE_IH_P_MAX = ice_ih.P_MAX
-# region 1 is extended along the ice Ih melting line as far up as the ice it melts from
-P_MAX_LIQUID = ICE_IH_P_MAX
+# IAPWS-95 takes the fluid beyond IF97's pressures, within its own validated range
+IAPWS95_T_MAX = iapws95.T_MAX
+IAPWS95_P_MAX = iapws95.P_MAX
 REGION2_T_MIN = constant(_DATA, "region2_extension_t_min").value  # along the sublimation line
 META_VAPOUR_P_MAX = constant(_DATA, "metastable_vapour_p_max").value
 META_VAPOUR_MOISTURE = constant(_DATA, "metastable_vapour_moisture").value
@@ -114,9 +119,11 @@ MESSAGES = {
                            + _k(_SUB_T_MIN) + ")",
     "above_formulations_t": "{} K is above the highest temperature of the water formulations ("
                             + _k(REGION5_T_MAX) + ")",
-    "liquid_above_p": "liquid water at {} Pa is above the formulation's range (" + _mpa(P_MAX_LIQUID) + ")",
-    "hot_liquid_above_p": "liquid water above " + _k(REGION1_T_MAX) + " is covered to " + _mpa(P_MAX_FLUID)
-                          + " only; got {} Pa",
+    "liquid_above_p": "liquid water at {} Pa is above the formulations' range (" + _mpa(IAPWS95_P_MAX)
+                      + ", IAPWS-95)",
+    "dense_liquid_below_melting": "liquid water at {} K and {} Pa is below its melting temperature ({} K): above "
+                                  + _mpa(P_MAX_FLUID) + " the liquid is taken from IAPWS-95, which holds from the "
+                                  "melting line up",
     "superheated_liquid": "liquid water at {} K and {} Pa is superheated by more than " + _k(SUPERHEAT_MARGIN)
                           + ", the limit of the metastable liquid (IF97 region 1, saturation at {} K)",
     "supercooled_below_triple_p": "liquid water at {} K and {} Pa is below the triple-point pressure ("
@@ -135,14 +142,16 @@ MESSAGES = {
                               + fmt(100 * META_VAPOUR_MOISTURE) + " % equilibrium moisture line, where IF97's "
                               "metastable-vapour equation ends",
     "fluid_hot": "{} K is above the water formulations' range (" + _k(REGION5_T_MAX) + ")",
-    "fluid_region5_above_p": "above " + _k(REGION2_T_MAX) + " water is covered to " + _mpa(P_MAX_REGION5)
+    "fluid_region5_above_p": "above " + _k(IAPWS95_T_MAX) + " water is covered to " + _mpa(P_MAX_REGION5)
                              + " only (IF97 region 5); got {} Pa",
-    "fluid_above_p": "{} Pa is above the water formulations' range for fluid (" + _mpa(P_MAX_FLUID) + ")",
+    "fluid_above_p": "{} Pa is above the water formulations' range for fluid (" + _mpa(IAPWS95_P_MAX)
+                     + ", IAPWS-95)",
     "ice_hot": "ice Ih above " + _k(ICE_IH_T_MAX) + " is outside IAPWS R10-06; got {} K",
     "ice_above_p": "ice Ih above " + _mpa(ICE_IH_P_MAX) + " is outside IAPWS R10-06; got {} Pa",
     "ice_melted": "ice Ih at {} K and {} Pa is above its melting temperature",
     **{f"no_region3_root_{branch}": "no " + branch + "-like density root of IF97 region 3 at {} K and {} Pa"
        for branch in ("liquid", "vapour")},
+    "no_iapws95_root": "no density root of IAPWS-95 at {} K and {} Pa",
     **{f"no_volume_{solid}": "no volume formulation for " + solid + " (only ice Ih has one, IAPWS R10-06)"
        for solid in SOLIDS[1:]},
     **{f"stable_without_volume_{solid}": "the stable phase is " + solid + ", which has no volume formulation "
@@ -296,12 +305,19 @@ class Water(Substance):
                    lambda k: MESSAGES[f"stable_without_volume_{SOLIDS[k - SOLID]}"], phase)
 
     def _liquid(self, t, q, sel, r: Result, fields) -> None:
-        """Region 1 (region 3 above REGION1_T_MAX); named as a phase, also metastable: superheated up to
-        SUPERHEAT_MARGIN above the saturation temperature, supercooled down to SUPERCOOL_MARGIN below
-        the melting temperature."""
+        """Region 1 (region 3 above REGION1_T_MAX) to P_MAX_FLUID, IAPWS-95 above; named as a phase, also
+        metastable: superheated up to SUPERHEAT_MARGIN above the saturation temperature, supercooled down
+        to SUPERCOOL_MARGIN below the melting temperature (region 1 extended, not IAPWS-95: its range
+        ends at the melting line)."""
         sub = Result(np.full(t.shape, np.nan))
-        sub.flag(q > P_MAX_LIQUID, OUT_OF_RANGE, MESSAGES["liquid_above_p"], q)
-        sub.flag((t > REGION1_T_MAX) & (q > P_MAX_FLUID), OUT_OF_RANGE, MESSAGES["hot_liquid_above_p"], q)
+        sub.flag(q > IAPWS95_P_MAX, OUT_OF_RANGE, MESSAGES["liquid_above_p"], q)
+        dense = q > P_MAX_FLUID
+        if dense.any():
+            t_melt = np.full(t.shape, -np.inf)
+            t_melt[dense], _ = ice_lines.melting_temperature_any(np.minimum(q[dense], _MELT_P_TOP))
+            # with the joins' slack: the line taken at a triple point's pressure may be the colder neighbour's
+            sub.flag(dense & (t < t_melt * (1 - MELT_JOIN_TOL)), OUT_OF_RANGE, MESSAGES["dense_liquid_below_melting"],
+                     t, q, t_melt)
         warm = t >= TT
         p_sat = if97_saturation.saturation_pressure(np.clip(t, TT, TC))
         superheated = warm & (q < p_sat * (1 - LINE_TOL))
@@ -310,7 +326,7 @@ class Water(Substance):
             t_sat[superheated] = if97_saturation.saturation_temperature(np.maximum(q[superheated], PT))
             sub.flag(superheated & ((t > t_sat + SUPERHEAT_MARGIN) | (t > REGION1_T_MAX)), OUT_OF_RANGE,
                      MESSAGES["superheated_liquid"], t, q, t_sat)
-        cold = t < TT
+        cold = (t < TT) & ~dense
         sub.flag(cold & (q < PT), OUT_OF_RANGE, MESSAGES["supercooled_below_triple_p"], t, q)
         if cold.any():
             t_melt = np.full(t.shape, -np.inf)
@@ -318,12 +334,14 @@ class Water(Substance):
             sub.flag(cold & ((t < t_melt - SUPERCOOL_MARGIN) | (t < _MELT_T_MIN * (1 - MELT_JOIN_TOL))), OUT_OF_RANGE,
                      MESSAGES["supercooled_liquid"], t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
-        low = ok & (t <= REGION1_T_MAX)
+        low = ok & ~dense & (t <= REGION1_T_MAX)
         if low.any():
             self._put_props(fields, sel, low, if97.region1(_where(t, low), _where(q, low), fields.want))
-        near = ok & (t > REGION1_T_MAX)
+        near = ok & ~dense & (t > REGION1_T_MAX)
         if near.any():
             self._put_region3(fields, sel, near, t, q, "liquid", sub)
+        if (ok & dense).any():
+            self._put_iapws95(fields, sel, ok & dense, t, q, sub)
         self._report(r, sel, sub)
 
     def _vapor(self, t, q, sel, r: Result, fields) -> None:
@@ -366,9 +384,12 @@ class Water(Substance):
     def _fluid(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(t > REGION5_T_MAX, OUT_OF_RANGE, MESSAGES["fluid_hot"], t)
-        sub.flag((t > REGION2_T_MAX) & (q > P_MAX_REGION5), OUT_OF_RANGE, MESSAGES["fluid_region5_above_p"], q)
-        sub.flag(q > P_MAX_FLUID, OUT_OF_RANGE, MESSAGES["fluid_above_p"], q)
+        sub.flag((t > IAPWS95_T_MAX) & (q > P_MAX_REGION5), OUT_OF_RANGE, MESSAGES["fluid_region5_above_p"], q)
+        sub.flag(q > IAPWS95_P_MAX, OUT_OF_RANGE, MESSAGES["fluid_above_p"], q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        # beyond IF97's pressures (region 5's above REGION2_T_MAX) the fluid is IAPWS-95's
+        dense = q > np.where(t > REGION2_T_MAX, P_MAX_REGION5, P_MAX_FLUID)
+        ok, dense = ok & ~dense, ok & dense
         three = ok & (t <= B23_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~three & (t <= REGION2_T_MAX)
         five = ok & (t > REGION2_T_MAX)
@@ -378,6 +399,8 @@ class Water(Substance):
             self._put_props(fields, sel, five, if97.region5(_where(t, five), _where(q, five), fields.want))
         if three.any():
             self._put_region3(fields, sel, three, t, q, "liquid", sub)
+        if dense.any():
+            self._put_iapws95(fields, sel, dense, t, q, sub)
         self._report(r, sel, sub)
 
     def _ice(self, t, q, sel, r: Result, fields) -> None:
@@ -401,14 +424,24 @@ class Water(Substance):
         self._put(fields, sel, part, _molar(props, fields))
 
     def _put_region3(self, fields, sel, part, t, q, branch: str, sub: Result) -> None:
-        rho = if97_region3.density(t[part], q[part], branch)
+        self._put_at_density(fields, sel, part, t, q, if97_region3.density(t[part], q[part], branch),
+                             if97_region3.properties_rho, MESSAGES[f"no_region3_root_{branch}"], sub)
+
+    def _put_iapws95(self, fields, sel, part, t, q, sub: Result) -> None:
+        self._put_at_density(fields, sel, part, t, q, iapws95.density(t[part], q[part]), iapws95.properties_rho,
+                             MESSAGES["no_iapws95_root"], sub)
+
+    def _put_at_density(self, fields, sel, part, t, q, rho: np.ndarray, at_density, message: str,
+                        sub: Result) -> None:
+        """The properties of a formulation in (rho, T) at the density roots ``rho`` of the elements in
+        ``part``; an element without a root (NaN) is flagged with ``message``."""
         missing = np.zeros(t.shape, bool)
         missing[part] = np.isnan(rho)
-        sub.flag(missing, OUT_OF_RANGE, MESSAGES[f"no_region3_root_{branch}"], t, q)
+        sub.flag(missing, OUT_OF_RANGE, message, t, q)
         good = part.copy()
         good[part] = ~np.isnan(rho)
         if good.any():
-            self._put_props(fields, sel, good, if97_region3.properties_rho(rho[~np.isnan(rho)], t[good]))
+            self._put_props(fields, sel, good, at_density(rho[~np.isnan(rho)], t[good]))
 
     # --- description --------------------------------------------------------------------
     def info(self) -> dict[str, InfoItem]:
@@ -428,24 +461,30 @@ _MODELS = {
              "IAPWS R14-08(2011), eqs. 1-5"),
     "sublime": ("IAPWS R14-08 sublimation-pressure equation of ice Ih", _k(_SUB_T_MIN) + " to " + _k(TT),
                 "IAPWS R14-08(2011), eq. 6"),
-    "liquid": ("IAPWS-IF97 region 1 (region 3 above " + _k(REGION1_T_MAX) + ")",
-               "melting line to " + _k(TC) + ", vapour pressure to " + _mpa(P_MAX_FLUID) + " (region 1 extended to "
-               + _mpa(P_MAX_LIQUID) + "); named as a phase also metastable: superheated to " + _k(SUPERHEAT_MARGIN)
-               + " above saturation, supercooled to " + _k(SUPERCOOL_MARGIN) + " below the melting line (region 1 "
-               "extended, not below the triple-point pressure)",
-               "IAPWS R7-97(2012), sections 5 and 7"),
+    "liquid": ("IAPWS-IF97 region 1 (region 3 above " + _k(REGION1_T_MAX) + ") to " + _mpa(P_MAX_FLUID)
+               + "; IAPWS-95 above " + _mpa(P_MAX_FLUID),
+               "IF97: melting line to " + _k(TC) + ", vapour pressure to " + _mpa(P_MAX_FLUID) + " (region 1 extended "
+               "below " + _k(if97.T_MIN) + " down to the melting line); IAPWS-95: above " + _mpa(P_MAX_FLUID) + " to "
+               + _mpa(IAPWS95_P_MAX) + ", from the melting lines of ice Ih, III, V and VI; named as a phase also "
+               "metastable: superheated to " + _k(SUPERHEAT_MARGIN) + " above saturation, supercooled to "
+               + _k(SUPERCOOL_MARGIN) + " below the melting line (region 1 extended, to " + _mpa(P_MAX_FLUID)
+               + ", not below the triple-point pressure)",
+               "IAPWS R7-97(2012), sections 5 and 7; IAPWS R6-95(2018), section 6.3.1"),
     "vapor": ("IAPWS-IF97 region 2 (region 3 between the B23 line and saturation); supersaturated vapour: "
               "IF97's metastable-vapour equation",
               _k(REGION2_T_MIN) + " to " + _k(TC) + " up to the vapour or sublimation pressure (region 2 extended "
               "below " + _k(if97.T_MIN) + "); supersaturated above " + _k(TT) + " to the "
               + fmt(100 * META_VAPOUR_MOISTURE) + " % equilibrium moisture line and " + _mpa(META_VAPOUR_P_MAX),
               "IAPWS R7-97(2012), sections 6 and 7 (metastable vapour: section 6.2)"),
-    "fluid": ("IAPWS-IF97 regions 2, 3 and 5", _k(TC) + " to " + _k(REGION2_T_MAX) + " up to " + _mpa(P_MAX_FLUID)
-              + "; to " + _k(REGION5_T_MAX) + " up to " + _mpa(P_MAX_REGION5),
-              "IAPWS R7-97(2012), sections 6, 7 and 9"),
+    "fluid": ("IAPWS-IF97 regions 2, 3 and 5; IAPWS-95 at the pressures above them",
+              "IF97: " + _k(TC) + " to " + _k(REGION2_T_MAX) + " up to " + _mpa(P_MAX_FLUID) + ", to "
+              + _k(REGION5_T_MAX) + " up to " + _mpa(P_MAX_REGION5) + "; IAPWS-95: from there up to "
+              + _mpa(IAPWS95_P_MAX) + ", to " + _k(IAPWS95_T_MAX),
+              "IAPWS R7-97(2012), sections 6, 7 and 9; IAPWS R6-95(2018), section 6.3.1"),
     "solid": ("IAPWS R10-06 Gibbs function of ice Ih",
               "up to " + _k(ICE_IH_T_MAX) + " and " + _mpa(ICE_IH_P_MAX) + ", not above the melting line",
               "IAPWS R10-06(2009)"),
     "chem_potential": ("molar Gibbs energy, IAPWS-95 reference state: u = 0 and s = 0 for the saturated "
-                       "liquid at the triple point", "", "IAPWS R6-95(2018); IAPWS R7-97(2012); IAPWS R10-06(2009)"),
+                       "liquid at the triple point; IAPWS-95's own values shifted to meet IF97 region 1's there",
+                       "", "IAPWS R6-95(2018); IAPWS R7-97(2012); IAPWS R10-06(2009)"),
 }
