@@ -19,7 +19,8 @@ CAUTION = (
 )
 
 
-def _parser() -> argparse.ArgumentParser:
+def _parser(command: str | None) -> argparse.ArgumentParser:
+    """The command line's parser; the options of ``recalc`` only when ``command`` is recalc."""
     from . import __version__
 
     parser = argparse.ArgumentParser(
@@ -51,16 +52,14 @@ def _parser() -> argparse.ArgumentParser:
         "combines with * / ** (kg/m3, kJ/(kg*K)); case does not matter where it is unambiguous; a gauge unit "
         "may state its atmosphere as a pressure or a standard-atmosphere altitude: barg@83kPa, psig@1600m.",
     )
-    from .workbook import command as recalc_command
+    recalc = commands.add_parser("recalc", help="recalculate workbooks (.xlsx/.xlsm) without Excel",
+                                 formatter_class=argparse.RawDescriptionHelpFormatter)
+    if command == "recalc":  # its options come with the workbook engine, imported for it alone
+        from .workbook import command as recalc_command
 
-    recalc = commands.add_parser(
-        "recalc",
-        help="recalculate workbooks (.xlsx/.xlsm) without Excel",
-        description=recalc_command.DESCRIPTION,
-        epilog=recalc_command.LIMITS + "\n\n" + CAUTION,
-        formatter_class=argparse.RawDescriptionHelpFormatter,
-    )
-    recalc_command.add_arguments(recalc)
+        recalc.description = recalc_command.DESCRIPTION
+        recalc.epilog = recalc_command.LIMITS + "\n\n" + CAUTION
+        recalc_command.add_arguments(recalc)
     setup = commands.add_parser(
         "excel-setup",
         help="print (and on Windows with Excel, take) the steps that make the functions appear in Excel",
@@ -193,7 +192,9 @@ def _units() -> int:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    args = _parser().parse_args(argv)
+    argv = sys.argv[1:] if argv is None else list(argv)
+    # the first word that is no option names the command (the top level has no option taking a value)
+    args = _parser(next((word for word in argv if not word.startswith("-")), None)).parse_args(argv)
     try:
         if args.command == "eval":
             return _evaluate(args.formulas, args.json)

@@ -115,6 +115,22 @@ def test_r10_table6_check_values(state, quantity):
     assert _gibbs_quantities(*state)[quantity] == printed(R10_TABLE6[state][quantity])
 
 
+def test_a_long_array_runs_in_blocks_and_each_state_keeps_its_own_numbers():
+    # R10-06 Table 6's states (from memory of R10-06 Table 6) at the edges of the blocks the Gibbs
+    # function is evaluated in: their printed density there, the scalar calls' numbers to the last bit
+    rng = np.random.default_rng(6)
+    n = 2 * ice_ih._BLOCK + 37
+    T, p = rng.uniform(50.0, 273.0, n), rng.uniform(1e3, 200e6, n)
+    edges = [ice_ih._BLOCK - 1, ice_ih._BLOCK, n - 1]
+    for k, (t, q) in zip(edges, R10_TABLE6):
+        T[k], p[k] = t, q
+    whole = properties(T, p)
+    for k, row in zip(edges, R10_TABLE6.values()):
+        assert 1.0 / whole.v[k] == printed(row["rho"])
+    for k in [0, *edges, *rng.integers(0, n, 5)]:
+        assert [f[k] for f in whole] == list(properties(T[k], p[k]))
+
+
 def test_ice_ih_validity_constants():
     assert (ice_ih.T_MAX, ice_ih.P_MAX) == (273.16, 210e6)  # IAPWS R10-06(2009), section 1
 

@@ -173,6 +173,16 @@ def test_boundaries_scalar_and_array_agree(func, lo, hi):
         np.testing.assert_allclose(many[k], func(x[k]), rtol=1e-14, atol=0)
 
 
+@pytest.mark.parametrize("func, x", [(saturation_pressure, 373.15), (saturation_temperature, 101325.0)])
+def test_a_value_broadcast_over_an_array_is_its_scalar_everywhere(func, x):
+    # a pressure typed once against a column of temperatures reaches the line as a broadcast view
+    column = np.broadcast_to(np.array([[x], [x / 2]]), (2, 300))
+    many = func(column)
+    assert many.shape == (2, 300) and many.flags.writeable
+    assert (many[0] == func(x)).all() and (many[1] == func(x / 2)).all()
+    assert func(np.broadcast_to(x, (0, 3))).shape == (0, 3)
+
+
 def test_saturation_equations_are_inverse():
     # IAPWS R7-97(2012), section 8.1: eqs. (30) and (31) are consistent with each other
     T = np.linspace(273.16, 647.09, 20001)

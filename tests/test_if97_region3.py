@@ -228,3 +228,34 @@ def test_alpha_kappa_match_numerical_derivatives(T, p, branch):
     kappa = derivative(lambda q: r3.density(T, q, branch), p, 1e-6 * p) / rho
     assert pr.alpha == pytest.approx(alpha, rel=1e-7)
     assert pr.kappa == pytest.approx(kappa, rel=1e-7)
+
+
+def test_long_arrays_run_in_blocks_and_each_state_keeps_its_own_numbers():
+    # Table 33's states (from memory of IAPWS R7-97(2012), Table 33) at the edges of the blocks the
+    # scan for density and the Helmholtz sums run in: their printed digits there, the scalar calls'
+    # numbers to the last bit, and a field asked for alone the same as among all seven
+    rng = np.random.default_rng(33)
+    n = 2 * r3._BLOCK + 37
+    edges = [0, r3._BLOCK - 1, r3._BLOCK, n - 1]
+    rho, T = rng.uniform(100.0, 750.0, n), rng.uniform(650.0, 860.0, n)
+    for k, (t, density, p, h, *_) in zip(edges, TABLE_33):
+        rho[k], T[k] = density, t
+    whole = r3.properties_rho(rho, T)
+    for k, (t, density, p, h, *_) in zip(edges, TABLE_33):
+        assert_printed(whole.h[k] / 1e3, h)
+    for k in edges + list(rng.integers(0, n, 5)):
+        assert [f[k] for f in whole] == list(r3.properties_rho(rho[k], T[k]))
+    for name in whole._fields:
+        alone = r3.properties_rho(rho, T, (name,))
+        np.testing.assert_array_equal(getattr(alone, name), getattr(whole, name))
+        assert all(np.isnan(getattr(alone, other)).all() for other in whole._fields if other != name)
+    m = 2 * r3._SCAN_BLOCK + 5
+    T, p = rng.uniform(650.0, 860.0, m), rng.uniform(25e6, 95e6, m)
+    for k, (t, density, p_printed, *_) in zip([0, r3._SCAN_BLOCK - 1, r3._SCAN_BLOCK, m - 1], TABLE_33):
+        T[k], p[k] = t, p_printed * 1e6
+    for branch in ("liquid", "vapour"):
+        rho = r3.density(T, p, branch)
+        for k, (t, density, *_) in zip([0, r3._SCAN_BLOCK - 1, r3._SCAN_BLOCK, m - 1], TABLE_33):
+            assert rho[k] == pytest.approx(density, rel=1e-7)  # p printed to 9 digits, near-critical at 650 K
+        for k in [0, r3._SCAN_BLOCK - 1, r3._SCAN_BLOCK, r3._SCAN_BLOCK + 1, m - 1]:
+            assert rho[k] == r3.density(T[k], p[k], branch)

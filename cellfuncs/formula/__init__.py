@@ -11,7 +11,8 @@ and workbook recalculation. Values are scalars (float, bool, str, CellError, Non
 '2'
 """
 
-from . import fn_bases, fn_bessel, fn_cashflow, fn_cells, fn_complex, fn_convert, fn_count, fn_database, fn_date, fn_distributions, fn_distributions_more, fn_finance, fn_hyperlink, fn_hypothesis, fn_info, fn_integers, fn_lambda, fn_logic, fn_lookup, fn_math, fn_matrix, fn_ranks, fn_reference, fn_regex, fn_regression, fn_roman, fn_rounding, fn_securities, fn_shape, fn_sort, fn_stats, fn_strings, fn_subtotal, fn_sums, fn_text, fn_trig, fn_trimrange, fn_value_text, fn_volatile, fn_workdays  # noqa: F401  (register the built-ins)
+from importlib import import_module
+
 from .arrays import Value, as_value
 from .coerce import format_number, to_bool, to_number, to_text
 from .evaluate import BUILTINS, Builtin, Context, SimpleContext, builtin, collect, compute, evaluate, value_of
@@ -24,3 +25,21 @@ __all__ = [
     "collect", "compute", "evaluate", "format_number", "parse", "to_bool", "to_number", "to_text", "value_of",
     "walk",
 ]
+
+# The built-in families, each a module whose built-ins register as it is imported: all of them on the
+# first look-up that could find one (see registry.py), so a formula of the pack's functions alone
+# starts without them.
+BUILTIN_MODULES = (
+    "fn_bases", "fn_bessel", "fn_cashflow", "fn_cells", "fn_complex", "fn_convert", "fn_count", "fn_database",
+    "fn_date", "fn_distributions", "fn_distributions_more", "fn_finance", "fn_hyperlink", "fn_hypothesis",
+    "fn_info", "fn_integers", "fn_lambda", "fn_logic", "fn_lookup", "fn_math", "fn_matrix", "fn_ranks",
+    "fn_reference", "fn_regex", "fn_regression", "fn_roman", "fn_rounding", "fn_securities", "fn_shape",
+    "fn_sort", "fn_stats", "fn_strings", "fn_subtotal", "fn_sums", "fn_text", "fn_trig", "fn_trimrange",
+    "fn_value_text", "fn_volatile", "fn_workdays",
+)
+
+
+def load_builtins() -> None:
+    """Import every built-in module (each registers its built-ins in ``BUILTINS``)."""
+    for module in BUILTIN_MODULES:
+        import_module(f"{__name__}.{module}")

@@ -18,12 +18,13 @@ import numpy as np
 
 from ..errors import CALC, DIV0, NAME, NULL, NUM, REF, VALUE, CellError, internal_error, strict
 from .a1 import column_letters
-from .arrays import Value, as_value, object_array
+from .arrays import Value, as_value, filled, object_array
 from .budget import charge
 from .lambdas import OMITTED, Lambda, param_key
-from .nodes import Array, Binary, Call, Invoke, Literal, Missing, Name, Node, Ref, Scalar, Unary
+from .nodes import Areas, Array, Binary, Call, Invoke, Literal, Missing, Name, Node, Ref, Scalar, Unary
 from .operators import BINARY, UNARY
 from .parser import parse
+from .registry import Registry
 
 
 class Context(Protocol):
@@ -92,19 +93,29 @@ class Builtin:
     takes_values: bool = False  # every parameter a single value (see :func:`intersect`)
     arrays: frozenset[int] = frozenset()  # array-class parameters (see :func:`in_array_mode`)
     place_only: bool = False  # reads where a reference argument is, not its cells (ROW, FORMULATEXT)
+    left_out: CellError | None = None  # what a left-out argument is, where not a blank (MROUND(,5))
 
 
-BUILTINS: dict[str, Builtin] = {}
+
+
+def _load_builtins() -> None:
+    from . import load_builtins  # the package lists the built-in modules
+
+    load_builtins()
+
+
+BUILTINS: dict[str, Builtin] = Registry(_load_builtins)  # filled on first need (see registry.py)
 ALL_ARGUMENTS = frozenset(range(255))  # Excel's most arguments
 
 
 def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = False,
-            arrays: Iterable[int] = (), place_only: bool = False) -> Callable:
+            arrays: Iterable[int] = (), place_only: bool = False, left_out: CellError | None = None) -> Callable:
     """Register the decorated function as built-in ``name`` (``max_args`` defaults to ``min_args``).
     ``arrays`` holds the positions (from 0) of its array-class parameters, ``ALL_ARGUMENTS``
     for all: a legacy formula evaluates what is written there as an array (SUMPRODUCT,
     LOOKUP's vectors, INDEX's array), where elsewhere it intersects ranges with its cell.
     ``place_only``: a reference written as an argument is not read (ROW(A1) in A1 is no loop).
+    ``left_out``: the error a left-out argument gives (a blank cell it refers to stays blank).
 
     >>> @builtin("HALF", 1)
     ... def _half(x):
@@ -117,7 +128,7 @@ def builtin(name: str, min_args: int, max_args: int | None = -1, lazy: bool = Fa
     def register(fn: Callable[..., Value]) -> Callable[..., Value]:
         BUILTINS[name] = Builtin(fn, min_args, min_args if max_args == -1 else max_args, lazy,
                                  takes_values=getattr(fn, "takes_values", False), arrays=frozenset(arrays),
-                                 place_only=place_only)
+                                 place_only=place_only, left_out=left_out)
         return fn
 
     return register
@@ -147,16 +158,17 @@ def reference_builtin(name: str, min_args: int, max_args: int, value: Callable[.
     return register
 
 
-def reference_of(node: Node, context: Context) -> Ref | Name | CellError | None:
+def reference_of(node: Node, context: Context) -> Ref | Areas | Name | CellError | None:
     """The reference an argument stands for: a reference as written, a defined name, the
-    reference a function returns (``OFFSET(A1,1,0)``) or a range between two of them
-    (``A1:INDEX(B:B,3)``); None for an argument that gives a value."""
+    reference a function returns (``OFFSET(A1,1,0)``), a range between two of them
+    (``A1:INDEX(B:B,3)``) or a union of several (``(A1:B2,C5)``, :class:`Areas`); None for an
+    argument that gives a value."""
     kind = type(node)
     if kind is Name:
         bound = _bound(node.text, context)
         if bound is _UNSET:
             return node
-        return bound if type(bound) is Ref else None
+        return bound if type(bound) is Ref or type(bound) is Areas else None
     if kind is Ref:
         return node
     if kind is Call:
@@ -171,7 +183,77 @@ def reference_of(node: Node, context: Context) -> Ref | Name | CellError | None:
         return _range_between(node, context)
     if kind is Binary and node.op == " ":
         return _intersection(node, context)
+    if kind is Binary and node.op == ",":
+        return _union(node, context)
     return None
+
+
+def _union_sides(node: Binary) -> list[Node]:
+    """The references a chain of union operators joins, in the order written (walked in a
+    loop: ``(A1,A2,...,A300)`` is a left-leaning tree)."""
+    sides = []
+    while type(node) is Binary and node.op == ",":
+        sides.append(node.right)
+        node = node.left
+    sides.append(node)
+    return sides[::-1]
+
+
+def _union(node: Binary, context: Context) -> Areas | CellError:
+    """``left,right``: every area of both references, each anchored, in the order written;
+    areas on one sheet, as the range operator's."""
+    parts: list[Ref] = []
+    bounds = getattr(context, "bounds", None)
+    for side in _union_sides(node):
+        found = reference_of(side, context)
+        if type(found) is Name:
+            found = _name_reference(found, context)
+        if found is None:
+            return CellError(VALUE, "the union operator ',' joins references, not values")
+        if type(found) is CellError:
+            return found
+        if type(found) is Areas:
+            parts += found.parts
+            continue
+        if bounds is None:
+            return CellError(REF, "the formula has no workbook")
+        b = bounds(found.sheet, found.ref)
+        if type(b) is CellError:
+            return b
+        parts.append(anchored(found.sheet, *b))
+    if len({p.sheet for p in parts} - {None}) > 1:
+        return CellError(VALUE, "the union operator ',' joins references on one sheet")
+    return Areas(tuple(parts))
+
+
+def _union_value(node: Binary, context: Context) -> Value:
+    found = _union(node, context)
+    if type(found) is CellError:
+        return found
+    written = all(type(side) is Ref or type(side) is Name for side in _union_sides(node))
+    return areas_value(found, context, written)
+
+
+def areas_value(found: Areas, context: Context, written: bool = False) -> Value:
+    """The cells of every area of a union as one column, area after area, each row by row:
+    what SUM, COUNT, LARGE or RANK go through. ``written``: every area is written in the
+    formula, so the recalculation order already holds its cells (else they are read as found,
+    see :func:`dereference`)."""
+    columns = []
+    for part in found.parts:
+        v = context.reference(part.sheet, part.ref) if written else dereference(part, context)
+        if type(v) is np.ndarray:
+            columns.append(v.reshape(-1, 1))
+        elif type(v) is CellError and ":" in part.ref:  # not a cell's value: the range cannot be read
+            return v
+        else:
+            columns.append(filled((1, 1), v))
+    over = charge((sum(len(c) for c in columns), 1))
+    return over if over is not None else np.vstack(columns)
+
+
+def _several(what: str) -> CellError:
+    return CellError(REF, f"{what} takes a reference of one area, not a union of several")
 
 
 def _range_between(node: Binary, context: Context) -> Ref | CellError:
@@ -207,6 +289,8 @@ def _corners(node: Binary, context: Context, what: str) -> tuple | CellError:
             return CellError(VALUE, f"{what} joins references, not values")
         if type(found) is CellError:
             return found
+        if type(found) is Areas:
+            return _several(what)
         ends.append(found)
     bounds = getattr(context, "bounds", None)
     if bounds is None:
@@ -232,11 +316,13 @@ def anchored(sheet: str | None, r1: int, c1: int, r2: int, c2: int) -> Ref:
     return Ref(sheet, first if (r1, c1) == (r2, c2) else f"{first}:${column_letters(c2)}${r2}")
 
 
-def dereference(found: Ref | Name, context: Context) -> Value:
+def dereference(found: Ref | Areas | Name, context: Context) -> Value:
     """The values a reference found while evaluating stands for; the workbook context is told
     (``read_found``) so that its recalculation order can take the cells into account."""
     if type(found) is Name:
         return context.name(found.text)
+    if type(found) is Areas:
+        return areas_value(found, context)
     read = getattr(context, "read_found", None)
     return read(found.sheet, found.ref) if read is not None else context.reference(found.sheet, found.ref)
 
@@ -291,6 +377,8 @@ def _call(node: Call, context: Context) -> Value:
             else:
                 result = spec.fn(context, *node.args)
         else:
+            if spec.left_out is not None and any(type(a) is Missing for a in node.args):
+                return spec.left_out
             if not implicit:
                 args = [evaluate(a, context) for a in node.args]
             else:
@@ -326,9 +414,11 @@ def _binary(node: Binary, context: Context) -> Value:
     if node.op == ":" or node.op == " ":
         found = _range_between(node, context) if node.op == ":" else _intersection(node, context)
         return found if type(found) is CellError else dereference(found, context)
+    if node.op == ",":
+        return _union_value(node, context)
     # a chain such as A1+A2+...+A300 is a left-leaning tree: walked in a loop, not by recursion
     spine = [node]
-    while type(spine[-1].left) is Binary and spine[-1].left.op not in (":", " "):
+    while type(spine[-1].left) is Binary and spine[-1].left.op not in (":", " ", ","):
         spine.append(spine[-1].left)
     value = _operand(spine[-1].left, context)
     for b in reversed(spine):
@@ -355,7 +445,7 @@ def _name(node: Name, context: Context) -> Value:
     bound = _bound(node.text, context)
     if bound is _UNSET:
         return context.name(node.text)
-    if type(bound) is Ref:
+    if type(bound) is Ref or type(bound) is Areas:
         return dereference(bound, context)
     return None if bound is OMITTED else bound
 
@@ -370,7 +460,7 @@ def bind(node: Node, context: Context) -> Any:
         found = reference_of(node, context)
         if type(found) is Name:
             found = _name_reference(found, context)
-        if type(found) is CellError:
+        if type(found) is CellError or type(found) is Areas:  # a union's areas are anchored already
             return found
         bounds = getattr(context, "bounds", None)
         if type(found) is Ref and bounds is not None:
@@ -416,7 +506,10 @@ def _invoke(node: Invoke, context: Context) -> Value:
 
 
 def _operand(node: Node, context: Context) -> Value:
-    """An operand or a single-value argument: in a legacy formula a reference is intersected."""
+    """An operand or a single-value argument: in a legacy formula a reference is intersected;
+    a union of several areas has no single value (#VALUE!, as in Excel)."""
+    if type(node) is Binary and node.op == ",":
+        return _no_value(node, context)
     if getattr(context, "implicit", False) and is_reference(node):
         return intersect(node, context)
     return evaluate(node, context)
@@ -450,6 +543,8 @@ def intersect(node: Node, context: Context) -> Value:
         return evaluate(node, context)
     if type(found) is CellError:
         return found
+    if type(found) is Areas:
+        return _no_value(node, context)
     bounds, position = getattr(context, "bounds", None), getattr(context, "position", None)
     if bounds is None or position is None:
         return CellError(VALUE, "implicit intersection needs a workbook")
@@ -470,6 +565,12 @@ def intersect(node: Node, context: Context) -> Value:
     if type(node) is Ref or type(node) is Name:  # written in the formula: the order already holds its cells
         return context.reference(target.sheet, target.ref)
     return dereference(target, context)
+
+
+def _no_value(node: Node, context: Context) -> CellError:
+    """Where a single value is needed: a union's own error, else #VALUE!."""
+    found = _union(node, context) if type(node) is Binary and node.op == "," else None
+    return found if type(found) is CellError else CellError(VALUE, "a union of several areas has no single value")
 
 
 def implicit_value(node: Node, context: Context) -> Value:
@@ -507,13 +608,16 @@ def value_of(node: Node, context: Context, legacy: bool = False, may_be_function
     """:func:`evaluate` (with ``legacy``, :func:`implicit_value`), with a tree too deep for
     Python's recursion (the parser accepts 200 levels; some functions take five frames a
     level) giving an error value, not an exception. A function value (LAMBDA) not called is
-    #CALC! unless ``may_be_function`` (a defined name may hold one).
+    #CALC!, and a union of several areas #VALUE!, unless ``may_be_function`` (a defined name
+    may hold either).
 
     >>> print(value_of(parse("=" + "SUM(" * 199 + "1" + ")" * 199), SimpleContext()))
     #VALUE! the formula nests functions too deeply to evaluate
     >>> print(value_of(parse("=LAMBDA(x, x+1)"), SimpleContext()))
     #CALC! a function (LAMBDA) is used as a value without being called
     """
+    if type(node) is Binary and node.op == "," and not may_be_function:
+        return _no_value(node, context)
     try:
         v = implicit_value(node, context) if legacy else evaluate(node, context)
     except RecursionError:
@@ -539,7 +643,7 @@ def is_reference(node: Node) -> bool:
     if kind is Call:
         spec = BUILTINS.get(node.name)
         return spec is not None and spec.reference is not None
-    return kind is Binary and (node.op == ":" or node.op == " ")
+    return kind is Binary and (node.op == ":" or node.op == " " or node.op == ",")
 
 
 def collect(

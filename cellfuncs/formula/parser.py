@@ -18,13 +18,17 @@ import re
 from functools import lru_cache
 from typing import NamedTuple
 
-from ..errors import parse_error_text
+from ..errors import REF, CellError, parse_error_text
 from .a1 import MAX_COL, MAX_ROW, column_number
 from .budget import MAX_FORMULA_TEXT
 from .nodes import Array, Binary, Call, Invoke, Literal, Missing, Name, Node, Ref, Scalar, Unary, children
+from .tokenizer import tokenizer
 
+# The reference operators bind tighter than any other: the range operator most (A1:INDEX(B:B,3)*2),
+# then intersection (a space), then union (a comma inside parentheses: SUM((A1,C1:C3)), -(A1,B1)).
 _INFIX = {"=": 1, "<>": 1, "<": 1, ">": 1, "<=": 1, ">=": 1, "&": 2, "+": 3, "-": 3, "*": 4, "/": 4, "^": 5,
-          " ": 8, ":": 9}  # the range operator binds tightest: A1:INDEX(B:B,3)*2; then intersection (a space)
+          ",": 7, " ": 8, ":": 9}
+_REFERENCE_OPERATORS = (":", " ", ",")
 _PREFIX_POWER = 6  # above ^: Excel negates before raising to a power
 _PREFIXES = ("_XLFN.", "_XLWS.")
 # Deeper trees would exhaust Python's recursion while evaluating; Excel itself allows
@@ -72,6 +76,8 @@ def _operand(text: str) -> Node:
         local = m.group(3)
         if "[" in sheet and not _LINKED.match(sheet + "!"):  # 'C:\dir\[Book.xlsx]Sheet'!A1
             raise FormulaSyntaxError(f"{text}: references to other workbooks are not supported")
+        if local.upper() == REF:  # Sheet1!#REF!: a reference whose cells were deleted
+            return Literal(CellError(REF, f"{text}: the cells referred to were deleted"))
     elif text.upper() in ("TRUE", "FALSE"):
         return Literal(text.upper() == "TRUE")
     area = _AREA.match(local)
@@ -105,7 +111,7 @@ def _starts_reference(tok: _Tok) -> bool:
 
 def _is_reference(node: Node) -> bool:
     """Whether ``node`` may stand for a reference, so a space after it intersects."""
-    return type(node) in (Ref, Name, Call) or (type(node) is Binary and node.op in (":", " "))
+    return type(node) in (Ref, Name, Call) or (type(node) is Binary and node.op in _REFERENCE_OPERATORS)
 
 
 class _Parser:
@@ -127,8 +133,6 @@ class _Parser:
     def unexpected(self, tok: _Tok) -> FormulaSyntaxError:
         if tok.type == "OPERAND" or tok.subtype == "OPEN":  # a value follows a value
             return FormulaSyntaxError(f"an operator is missing before {tok.value!r}")
-        if tok.value == ",":
-            return FormulaSyntaxError("the union operator ',' is not supported")
         return FormulaSyntaxError(f"unexpected {tok.value!r}")
 
     def expect(self, type_: str, subtype: str, what: str) -> None:
@@ -145,6 +149,8 @@ class _Parser:
             if tok.type == "OPERATOR-POSTFIX":
                 self.pos += 1
                 left = Unary("%", left)
+            elif tok.type == "OPERATOR-INFIX" and tok.value == "," and self.invoking:
+                break  # between the arguments of an invocation, not a union
             elif tok.type == "OPERATOR-INFIX" and tok.value in _INFIX:
                 power = _INFIX[tok.value]
                 if power < min_power:
@@ -153,8 +159,6 @@ class _Parser:
                 left = Binary(tok.value, left, self.expression(power + 1))
             elif tok.spaced and _starts_reference(tok) and _INFIX[" "] >= min_power and _is_reference(left):
                 left = Binary(" ", left, self.expression(_INFIX[" "] + 1))  # A1:C3 B2:D2, the cells in both
-            elif tok.type == "OPERATOR-INFIX" and tok.value == "," and self.invoking:
-                break
             elif tok.type == "OPERATOR-INFIX":
                 raise self.unexpected(tok)
             elif tok.type == "PAREN" and tok.subtype == "OPEN" and type(left) in (Call, Invoke):
@@ -194,7 +198,11 @@ class _Parser:
         if tok.type == "FUNC" and tok.subtype == "OPEN":
             return self.call(tok.value[:-1])
         if tok.type == "PAREN" and tok.subtype == "OPEN":
-            inner = self.expression()
+            invoking, self.invoking = self.invoking, 0  # inside parentheses a comma is a union again
+            try:
+                inner = self.expression()
+            finally:
+                self.invoking = invoking
             self.expect("PAREN", "CLOSE", "a closing parenthesis")
             return inner
         if tok.type == "ARRAY" and tok.subtype == "OPEN":
@@ -268,10 +276,8 @@ def _split_range_operator(t) -> list[tuple[str, str, str]]:
 
 
 def _tokens(formula: str) -> list[_Tok]:
-    from openpyxl.formula.tokenizer import Tokenizer  # lazy: openpyxl takes ~0.1 s to import
-
     try:
-        items = Tokenizer(formula).items
+        items = tokenizer()(formula).items
     except IndexError:  # the tokenizer's bracket stack ran empty
         raise FormulaSyntaxError("a closing bracket has no opening one") from None
     except Exception as exc:
@@ -294,7 +300,7 @@ def _depth(node: Node) -> int:
     while stack:
         n, d = stack.pop()
         deepest = max(deepest, d)
-        if type(n) is Binary and n.op not in (":", " "):
+        if type(n) is Binary and n.op not in (":", " "):  # a union is a chain too: (A1,A2,...,A300)
             stack += [(n.left, d), (n.right, d + 1)]
         else:
             stack += [(c, d + 1) for c in children(n)]

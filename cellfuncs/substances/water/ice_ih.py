@@ -17,6 +17,7 @@ from numpy.typing import ArrayLike
 
 from cellfuncs.data import constant, table
 from cellfuncs.substances.props import Props
+from cellfuncs.substances.water.blocks import in_blocks
 
 _DATA = "water/ice_ih"
 T_MAX: float = constant(_DATA, "max_temperature").value  # K
@@ -32,6 +33,8 @@ _S0 = float(_COEF["s0"])
 _T12 = _COEF["t"][:, 0] + 1j * _COEF["t"][:, 1]  # t1, t2
 _R1 = complex(*_COEF["r1"])
 _R2 = _COEF["r2"][:, 0] + 1j * _COEF["r2"][:, 1]  # r20, r21, r22
+# Elements evaluated at a time: a call's complex temporaries (a dozen per element and k) stay bounded.
+_BLOCK = 512
 
 
 def _pressure_series(c: np.ndarray, x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -57,7 +60,11 @@ def properties(T: ArrayLike, p: ArrayLike) -> Props:
     >>> round(float(1.0 / ice.v), 6), round(float(ice.cp), 4)
     (916.709492, 2096.7843)
     """
-    T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
+    return Props(*in_blocks(_properties_block, T, p, block=_BLOCK))
+
+
+def _properties_block(T: np.ndarray, p: np.ndarray) -> Props:
+    """The properties at one block of states."""
     tau = (T / _TT)[..., np.newaxis]  # trailing axis runs over k = 1, 2
     dpi = p / _PT - _PI0
 

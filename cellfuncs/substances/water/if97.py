@@ -23,6 +23,7 @@ from numpy.typing import ArrayLike
 
 from cellfuncs.data import constant, table
 from cellfuncs.substances.props import Props
+from cellfuncs.substances.water.blocks import in_blocks
 
 _DATA = "water/if97"
 
@@ -112,36 +113,34 @@ class _PowerSeries:
         """The derivatives ``names`` (keys of ``_ORDERS``) at (x, y), broadcast against each other."""
         if not names:
             return {}
-        x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
-        if x.shape != y.shape:
-            x, y = np.broadcast_arrays(x, y)
-        shape = x.shape
-        x, y = x.reshape(-1), y.reshape(-1)
         x_powers, y_powers, ix, iy, coefs, width = self._plan(names)
-        out = np.empty((len(names), x.size))
-        for start in range(0, x.size, _BLOCK):
-            block = slice(start, start + _BLOCK)
+
+        def block(xb: np.ndarray, yb: np.ndarray) -> np.ndarray:
             # one row per monomial, one column per element
-            terms = np.power(x[block], x_powers).take(ix, axis=0)
-            terms *= np.power(y[block], y_powers).take(iy, axis=0)
+            terms = np.power(xb, x_powers).take(ix, axis=0)
+            terms *= np.power(yb, y_powers).take(iy, axis=0)
             terms *= coefs
-            out[:, block] = _fold(terms.reshape(len(names), width, -1))
-        return {name: row.reshape(shape) for name, row in zip(names, out)}
+            return _fold(terms.reshape(len(names), width, -1))
+
+        return dict(zip(names, in_blocks(block, x, y, block=_BLOCK)))
 
 
 def _fold(terms: np.ndarray) -> np.ndarray:
     """Sums over the middle axis of ``terms`` by halves: the first half's rows plus the second's,
-    until one row is left (an odd row is carried to the next round).
+    until one row is left (an odd row is carried to the next round); ``terms`` is overwritten.
 
     Only element-wise additions in a pattern fixed by the number of rows (not a BLAS product or a
     reduction, whose order numpy may choose by shape), so every element adds its terms in the same
     order whatever the array around it and a scalar and the same value inside an array agree to the
     last bit; vectorised across the elements, and pairwise, which rounds less than one by one.
     """
-    while terms.shape[1] > 1:
-        half = terms.shape[1] // 2
-        folded = terms[:, :half] + terms[:, half:2 * half]
-        terms = folded if terms.shape[1] % 2 == 0 else np.concatenate([folded, terms[:, 2 * half:]], axis=1)
+    rows = terms.shape[1]
+    while rows > 1:
+        half, odd = divmod(rows, 2)
+        np.add(terms[:, :half], terms[:, half:2 * half], out=terms[:, :half])
+        if odd:
+            terms[:, half] = terms[:, 2 * half]
+        rows = half + odd
     return terms[:, 0]
 
 

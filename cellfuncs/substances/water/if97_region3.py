@@ -19,6 +19,8 @@ applies.
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+
 import numpy as np
 from numpy.typing import ArrayLike
 
@@ -26,6 +28,7 @@ from cellfuncs.data import constant, table
 from cellfuncs.numerics import solve_bracketed
 from cellfuncs.substances.props import Props
 from cellfuncs.substances.result import BAD_ARGUMENT, ModelError
+from cellfuncs.substances.water.blocks import in_blocks
 
 _DATA = "water/if97_region3"
 _TABLE = table(_DATA, "region3")
@@ -52,12 +55,19 @@ RHO_SCAN_MIN = 80.0  # kg/m3
 RHO_SCAN_MAX = 800.0  # kg/m3
 # Scan nodes: every 2 kg/m3 across the span, plus nodes at rho* +- 0.005 * 1.1**k kg/m3
 # (k = 0..94, out to 39 kg/m3), so near rho* (where the roots of near-critical isotherms
-# crowd together) each cell is narrower than a tenth of its distance from rho*.
-_RHO_GRID = np.union1d(
+# crowd together) each cell is narrower than a tenth of its distance from rho*. No node is in
+# both sets; sorted rather than np.union1d, whose check for masked arrays imports numpy.ma (some
+# 10 ms of every start).
+_RHO_GRID = np.sort(np.concatenate([
     np.linspace(RHO_SCAN_MIN, RHO_SCAN_MAX, 361),
     RHO_STAR + np.outer([-1.0, 1.0], 0.005 * 1.1 ** np.arange(95)).ravel(),
-)
+]))
 _BRANCHES = ("liquid", "vapour")
+# Elements scanned at a time: a block's isotherms on the grid (64 x 551 nodes, about 280 kB a
+# temporary) stay in cache, and a call's memory does not grow with its size beyond a few arrays.
+_SCAN_BLOCK = 64
+# Elements whose properties are summed at a time (each has one array of the 40 terms per sum).
+_BLOCK = 512
 
 # delta*phi_delta = sum_k c_k delta^k (k = 0..11) with c_0 = n1 and c_k = k * (sum of n tau^J over
 # the terms with I = k). The table lists the terms by ascending I with every I from 0 to 11
@@ -100,35 +110,65 @@ def pressure_rho(rho: ArrayLike, T: ArrayLike) -> np.ndarray:
     return _pressure(rho, T, coef)
 
 
-def properties_rho(rho: ArrayLike, T: ArrayLike) -> Props:
+# The sums of the terms n delta^I tau^J each field of Props needs (Table 31's relations below): phi,
+# delta*phi_delta ("d"), delta^2*phi_deltadelta ("dd"), tau*phi_tau ("t"), tau^2*phi_tautau ("tt")
+# and delta*tau*phi_deltatau ("dt"); v = 1/rho needs none.
+_NEEDS = {"v": (), "h": ("t", "d"), "s": ("t", "phi"), "g": ("t", "d", "phi"), "cp": ("tt", "d", "dt", "dd"),
+          "alpha": ("d", "dt", "dd"), "kappa": ("d", "dd")}
+
+
+def properties_rho(rho: ArrayLike, T: ArrayLike, fields: Iterable[str] | None = None) -> Props:
     """Specific properties (SI, per kg) at density ``rho`` (kg/m3) and temperature ``T`` (K).
 
     Uses the relations of IAPWS R7-97(2012), Table 31, with the Helmholtz derivatives
     written as delta*phi_delta, delta^2*phi_deltadelta, tau*phi_tau, tau^2*phi_tautau and
     delta*tau*phi_deltatau (each term n delta^I tau^J times I, I(I-1), J, J(J-1), I*J).
+    ``fields`` names the Props fields to compute (None: all); the others are NaN.
 
     >>> pr = properties_rho(500.0, 750.0)
     >>> round(float(pr.h) / 1e3, 5), round(float(pr.cp) / 1e3, 8)
     (2258.68845, 6.34165359)
     """
-    rho, T = np.broadcast_arrays(np.asarray(rho, dtype=float), np.asarray(T, dtype=float))
-    delta = rho / RHO_STAR
-    tau = T_STAR / T
-    terms = _N * delta[..., None] ** _I * tau[..., None] ** _J
-    phi = _N1 * np.log(delta) + terms.sum(axis=-1)
-    d_phi_d = _N1 + (_I * terms).sum(axis=-1)
-    d2_phi_dd = -_N1 + (_I * (_I - 1) * terms).sum(axis=-1)
-    t_phi_t = (_J * terms).sum(axis=-1)
-    t2_phi_tt = (_J * (_J - 1) * terms).sum(axis=-1)
-    dt_phi_dt = (_I * _J * terms).sum(axis=-1)
+    names = Props._fields if fields is None else tuple(name for name in Props._fields if name in fields)
+    values = dict(zip(names, in_blocks(lambda r, t: _properties_block(r, t, names), rho, T, block=_BLOCK)))
+    missing = np.broadcast_to(np.nan, np.broadcast_shapes(np.shape(rho), np.shape(T)))  # one read-only view for the rest
+    return Props(**{name: values.get(name, missing) for name in Props._fields})
 
-    h = R * T * (t_phi_t + d_phi_d)
-    s = R * (t_phi_t - phi)
-    dp_drho = R * T * (2.0 * d_phi_d + d2_phi_dd)  # (dp/drho)_T
-    dp_dT = rho * R * (d_phi_d - dt_phi_dt)  # (dp/dT)_rho
-    cp = R * (-t2_phi_tt + (d_phi_d - dt_phi_dt) ** 2 / (2.0 * d_phi_d + d2_phi_dd))
-    kappa = 1.0 / (rho * dp_drho)
-    return Props(v=1.0 / rho, h=h, s=s, g=h - T * s, cp=cp, alpha=dp_dT * kappa, kappa=kappa)
+
+def _properties_block(rho: np.ndarray, T: np.ndarray, names: tuple[str, ...]) -> list[np.ndarray]:
+    """The fields ``names`` of Props at one block of states, from only the sums they need."""
+    needed = tuple(dict.fromkeys(key for name in names for key in _NEEDS[name]))
+    sums = _helmholtz_sums(rho, T, needed) if needed else {}
+    phi, d_phi_d, d2_phi_dd, t_phi_t, t2_phi_tt, dt_phi_dt = (sums.get(key) for key in ("phi", "d", "dd", "t", "tt", "dt"))
+
+    def kappa() -> np.ndarray:
+        return 1.0 / (rho * (R * T * (2.0 * d_phi_d + d2_phi_dd)))  # 1 / (rho (dp/drho)_T)
+
+    formulas = {
+        "v": lambda: 1.0 / rho,
+        "h": lambda: R * T * (t_phi_t + d_phi_d),
+        "s": lambda: R * (t_phi_t - phi),
+        "g": lambda: formulas["h"]() - T * formulas["s"](),
+        "cp": lambda: R * (-t2_phi_tt + (d_phi_d - dt_phi_dt) ** 2 / (2.0 * d_phi_d + d2_phi_dd)),
+        "alpha": lambda: rho * R * (d_phi_d - dt_phi_dt) * kappa(),  # (dp/dT)_rho kappa
+        "kappa": kappa,
+    }
+    return [formulas[name]() for name in names]
+
+
+def _helmholtz_sums(rho: np.ndarray, T: np.ndarray, keys: tuple[str, ...]) -> dict[str, np.ndarray]:
+    """The sums ``keys`` (see ``_NEEDS``) of eq. (28)'s terms and their derivatives at (rho, T)."""
+    delta = rho / RHO_STAR
+    terms = _N * delta[..., None] ** _I * (T_STAR / T)[..., None] ** _J
+    sums = {
+        "phi": lambda: _N1 * np.log(delta) + terms.sum(axis=-1),
+        "d": lambda: _N1 + (_I * terms).sum(axis=-1),
+        "dd": lambda: -_N1 + (_I * (_I - 1) * terms).sum(axis=-1),
+        "t": lambda: (_J * terms).sum(axis=-1),
+        "tt": lambda: (_J * (_J - 1) * terms).sum(axis=-1),
+        "dt": lambda: (_I * _J * terms).sum(axis=-1),
+    }
+    return {key: sums[key]() for key in keys}
 
 
 def density(T: ArrayLike, p: ArrayLike, branch: str) -> np.ndarray:
@@ -156,9 +196,16 @@ def density(T: ArrayLike, p: ArrayLike, branch: str) -> np.ndarray:
     if branch not in _BRANCHES:
         raise ModelError(BAD_ARGUMENT, f"branch must be one of {_BRANCHES}, not {branch!r}")
     T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
+    lo, hi = in_blocks(lambda t, q: _root_cell(t, q, branch), T, p, block=_SCAN_BLOCK)
     coef = _reduced_pressure_coefficients(T_STAR / T)
+    return solve_bracketed(lambda rho: _pressure(rho, T, coef) - p, lo, hi, xtol=1e-15)
 
-    # residual on the grid: elements along the leading axes, grid nodes along the last
+
+def _root_cell(T: np.ndarray, p: np.ndarray, branch: str) -> tuple[np.ndarray, np.ndarray]:
+    """The ends of the grid cell holding the ``branch`` root at each (T, p) of a block; NaN where
+    the isotherm does not cross p inside the grid."""
+    coef = _reduced_pressure_coefficients(T_STAR / T)
+    # residual on the grid: elements along the leading axis, grid nodes along the last
     above = _pressure(_RHO_GRID, T[..., None], coef[..., None, :]) >= p[..., None]
     crossing = above[..., 1:] != above[..., :-1]
     found = crossing.any(axis=-1)
@@ -166,6 +213,4 @@ def density(T: ArrayLike, p: ArrayLike, branch: str) -> np.ndarray:
         cell = crossing.shape[-1] - 1 - np.argmax(crossing[..., ::-1], axis=-1)
     else:
         cell = np.argmax(crossing, axis=-1)
-    lo = np.where(found, _RHO_GRID[cell], np.nan)
-    hi = np.where(found, _RHO_GRID[cell + 1], np.nan)
-    return solve_bracketed(lambda rho: _pressure(rho, T, coef) - p, lo, hi, xtol=1e-15)
+    return np.where(found, _RHO_GRID[cell], np.nan), np.where(found, _RHO_GRID[cell + 1], np.nan)

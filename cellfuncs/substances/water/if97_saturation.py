@@ -14,6 +14,9 @@ the published limits are the module constants below.
 
 from __future__ import annotations
 
+from functools import wraps
+from typing import Callable
+
 import numpy as np
 from numpy.typing import ArrayLike
 
@@ -36,6 +39,23 @@ _N4 = tuple(table(_DATA, "region4")["n"])
 _NB = tuple(table(_DATA, "b23")["n"])
 
 
+def _once_per_stored_value(line: Callable[[np.ndarray], np.ndarray]) -> Callable[[ArrayLike], np.ndarray]:
+    """``line`` evaluated once per value an array stores: a pressure typed once and broadcast against a
+    column of temperatures is one value however many elements it fills (numpy gives such a view stride 0),
+    and the line's arithmetic per element is the same either way."""
+
+    @wraps(line)
+    def once(x: ArrayLike) -> np.ndarray:
+        x = np.asarray(x, dtype=float)
+        if x.size == 0 or 0 not in x.strides:
+            return line(x)
+        stored = x[tuple(slice(None) if stride else slice(0, 1) for stride in x.strides)]
+        return np.array(np.broadcast_to(line(stored), x.shape))
+
+    return once
+
+
+@_once_per_stored_value
 def saturation_pressure(T: ArrayLike) -> np.ndarray:
     """Saturation pressure in Pa at temperature ``T`` in K, IAPWS R7-97(2012) eq. (30).
 
@@ -55,6 +75,7 @@ def saturation_pressure(T: ArrayLike) -> np.ndarray:
     return np.asarray((2.0 * c / (-b + np.sqrt(b * b - 4.0 * a * c))) ** 4 * _P_STAR)
 
 
+@_once_per_stored_value
 def saturation_temperature(p: ArrayLike) -> np.ndarray:
     """Saturation temperature in K at pressure ``p`` in Pa, IAPWS R7-97(2012) eq. (31).
 
