@@ -170,6 +170,8 @@ def test_row_and_column_of_references_and_of_the_formula_cell():
     assert compute("=ROW()", ctx) == 5.0 and compute("=COLUMN()", ctx) == 3.0
     assert compute("=ROW(A2:A4)", ctx).tolist() == [[2.0], [3.0], [4.0]]
     assert compute("=ROWS(A:A)", ctx) == 1048576.0 and compute("=COLUMNS(1:1)", ctx) == 16384.0
+    # Microsoft's AREAS examples
+    assert [compute(f, ctx) for f in ("=AREAS(B2:D4)", "=AREAS((B2:D4,E5,F6:I9))", "=AREAS(B2:D4 B2)")] == [1.0, 3.0, 1.0]
     assert compute("=ROW()").code == "#VALUE!"  # engine contract: no workbook, no cell
 
 NUMBERS = [

@@ -18,7 +18,7 @@ from test_tables import _reference
 
 @pytest.mark.parametrize("formula, expected", [
     ("=ADDRESS(2,3)", "$C$2"), ("=ADDRESS(2,3,2)", "C$2"), ("=ADDRESS(2,3,2,FALSE)", "R2C[3]"),
-    ('=ADDRESS(2,3,1,FALSE,"[Book1]Sheet1")', "'[Book1]Sheet1'!R2C3"),
+    ('=ADDRESS(2,3,1,FALSE,"[Book1]Sheet1")', "[Book1]Sheet1!R2C3"),
     ('=ADDRESS(2,3,1,FALSE,"EXCEL SHEET")', "'EXCEL SHEET'!R2C3"),
     ("=ADDRESS(1,16384,4)", "XFD1"), ('=ADDRESS(5,1,3,TRUE,"Data")', "Data!$A5"),
 ])

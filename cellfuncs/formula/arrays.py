@@ -19,7 +19,7 @@ from typing import Any, Callable, Sequence, Union
 
 import numpy as np
 
-from ..errors import CALC, DIV0, NUM, VALUE, CellError
+from ..errors import CALC, DIV0, NA, NUM, VALUE, CellError
 from .budget import charge
 from .coerce import to_number
 from .nodes import Scalar
@@ -28,6 +28,7 @@ Value = Union[Scalar, np.ndarray]
 
 _NOT_FINITE = CellError(NUM, "the result is not a finite number")
 _TOO_LARGE = CellError(NUM, "the result is too large")
+_BEYOND = CellError(NA, "beyond the end of the shorter array")
 
 
 def shape_text(shape: tuple[int, ...]) -> str:
@@ -85,34 +86,43 @@ def first_error(values: np.ndarray) -> CellError | None:
 
 
 def map_values(fn: Callable[..., Scalar], *values: Value) -> Value:
-    """``fn`` applied to scalars, or element by element over arrays broadcast to a common
-    shape (1x1 with anything, a row with a column, equal sizes along each axis).
+    """``fn`` applied to scalars, or element by element over arrays brought to a common
+    shape as Excel pairs them: the most rows and the most columns of any; along an axis where
+    an array has one row (or column) it repeats, a scalar everywhere; elsewhere a shorter
+    array is padded with #N/A (Excel's stored values of IF(A1:A4>2, H1:H2, E1:E2),
+    IFERROR(G4:G7/H4:H7, G12:G13) and DATE(A2:A6, B2:B4, C2:C3) end in #N/A).
 
-    Incompatible shapes give one #VALUE! naming them; a result over the active work budget
-    (see :mod:`.budget`) is that budget's error value.
+    A result over the active work budget (see :mod:`.budget`) is that budget's error value.
 
     >>> map_values(max, object_array([[1.0, 5.0]]), 3.0).tolist()
     [[3.0, 5.0]]
-    >>> print(map_values(max, filled((2, 3), 1.0), filled((4, 1), 2.0)))
-    #VALUE! array shapes 2x3 and 4x1 do not match
+    >>> map_values(lambda x, y: y, object_array([[1.0, 2.0, 3.0]]), object_array([[0.0, 9.0]]))[0].tolist()
+    [0.0, 9.0, CellError(code='#N/A', reason='beyond the end of the shorter array')]
     """
     for v in values:
         if type(v) is np.ndarray:
             break
     else:  # all scalars: the common case, kept free of array work
         return fn(*values)
-    arrays = [as_array(v) for v in values]
-    try:
-        shape = np.broadcast_shapes(*(a.shape for a in arrays))
-    except ValueError:
-        shapes = [shape_text(v.shape) for v in values if type(v) is np.ndarray]
-        listed = ", ".join(shapes[:-1]) + " and " + shapes[-1]
-        return CellError(VALUE, f"array shapes {listed} do not match")
-    over = charge(shape)  # a whole column against a whole row: refused before it is built
+    arrays = [v for v in values if type(v) is np.ndarray]
+    rows, cols = max(a.shape[0] for a in arrays), max(a.shape[1] for a in arrays)
+    over = charge((rows, cols))  # a whole column against a whole row: refused before it is built
     if over is not None:
         return over
+    fitted = [_fit(v, rows, cols) if type(v) is np.ndarray else as_array(v) for v in values]
     with np.errstate(all="ignore"):  # fn turns overflow into error values; numpy need not warn
-        return np.frompyfunc(fn, len(arrays), 1)(*arrays)
+        return np.frompyfunc(fn, len(fitted), 1)(*fitted)
+
+
+def _fit(a: np.ndarray, rows: int, cols: int) -> np.ndarray:
+    """``a`` padded with #N/A to ``rows`` x ``cols`` along each axis where it is shorter and
+    not a single row or column (which numpy's broadcasting repeats)."""
+    h, w = a.shape
+    if h in (1, rows) and w in (1, cols):
+        return a
+    out = filled((1 if h == 1 else rows, 1 if w == 1 else cols), _BEYOND)
+    out[:h, :w] = a
+    return out
 
 
 def elementwise(fn: Callable[..., Scalar]) -> Callable[..., Value]:

@@ -152,9 +152,10 @@ def fold(text: str) -> str:
     return text.lower()
 
 
-def format_number(x: float) -> str:
+def format_number(x: float, smallest: int = -9) -> str:
     """A number as Excel's general format writes it into text: up to 15 significant digits,
-    no trailing zeros, scientific notation from 1E+15 up and below 1E-9.
+    no trailing zeros, scientific notation from 1E+15 up and below 1E``smallest`` (-9; the
+    complex-number functions write down to 1E-18 in full).
 
     >>> format_number(1.5), format_number(2.0), format_number(1e20), format_number(1 / 3)
     ('1.5', '2', '1E+20', '0.333333333333333')
@@ -169,7 +170,7 @@ def format_number(x: float) -> str:
         return "0"
     sign = "-" if x < 0 else ""
     exp = int(exp_text)
-    if -10 < exp < 15:
+    if smallest <= exp < 15:
         if exp >= 0:
             whole, frac = digits[: exp + 1].ljust(exp + 1, "0"), digits[exp + 1 :]
         else:

@@ -162,18 +162,24 @@ def ispmt(rate: float, per: float, nper: float, pv: float) -> float | CellError:
 
 # --- depreciation --------------------------------------------------------------------------
 
-def _declining(cost: float, salvage: float, life: float, factor: float, no_switch: bool) -> list[float]:
-    """Each whole period's depreciation: declining balance at factor/life, never below
-    salvage, switching to straight line over the rest of the life once that is larger."""
+def _declining(cost: float, salvage: float, life: float, factor: float, no_switch: bool,
+               offset: float) -> list[tuple[float, float, float]]:
+    """Each period's (first, last, depreciation per unit of time): declining balance at
+    factor/life (pro rata in a partial period), never below salvage, switching to straight
+    line over the rest of the life once that is larger. The periods start at ``offset`` (a
+    partial first period before it), so a fractional start period is a period boundary, as
+    Excel's stored values show: VDB(1, 0, 14, 3.5, 4.5, 1.25) is the straight line from 3.5."""
+    edges = [0.0] + [offset + k for k in range(0 if offset > 0.0 else 1, math.ceil(life - offset))] + [life]
     out, book, straight = [], cost, None
-    for i in range(math.ceil(life)):
+    for first, last in zip(edges, edges[1:]):
+        length = last - first
         if straight is None:
-            d = min(book * min(factor / life, 1.0), max(book - salvage, 0.0))
-            sl = (book - salvage) / (life - i)
+            d = min(book * min(factor / life, 1.0) * length, max(book - salvage, 0.0)) / length
+            sl = (book - salvage) / (life - first)
             if not no_switch and sl > d:
                 straight = sl
-        out.append(d if straight is None else straight)
-        book -= out[-1]
+        out.append((first, last, d if straight is None else straight))
+        book -= out[-1][2] * length
     return out
 
 
@@ -182,7 +188,8 @@ def _declining(cost: float, salvage: float, life: float, factor: float, no_switc
 def vdb(cost: float, salvage: float, life: float, start: float, end: float, factor: float = 2.0,
         no_switch: float = 0.0) -> float | CellError:
     """Declining-balance depreciation from ``start`` to ``end`` (parts of periods pro rata),
-    switching to straight line when that is larger unless ``no_switch``.
+    switching to straight line when that is larger unless ``no_switch``; a fractional start
+    begins a period.
 
     >>> round(vdb(2400.0, 300.0, 10.0 * 365, 0.0, 1.0), 2), round(vdb(2400.0, 300.0, 10.0, 0.0, 0.875, 1.5), 2)
     (1.32, 315.0)
@@ -191,8 +198,8 @@ def vdb(cost: float, salvage: float, life: float, start: float, end: float, fact
         return CellError(NUM, "VDB needs positive arguments and 0 <= start <= end <= life")
     if life > 100_000:
         return CellError(NUM, "VDB beyond 100000 periods is not supported")
-    amounts = _declining(cost, salvage, life, factor, bool(no_switch))
-    return math.fsum(d * max(0.0, min(end, i + 1.0) - max(start, float(i))) for i, d in enumerate(amounts))
+    periods = _declining(cost, salvage, life, factor, bool(no_switch), start - math.floor(start))
+    return math.fsum(d * max(0.0, min(end, last) - max(start, first)) for first, last, d in periods)
 
 
 # --- growth --------------------------------------------------------------------------------

@@ -20,7 +20,9 @@ from .evaluate import Context, builtin, compute  # noqa: F401  (compute: doctest
 from .fn_reference import found_reference, required_reference
 from .nodes import Node, Scalar
 
-_PLAIN_SHEET = re.compile(r"[A-Za-z_][A-Za-z0-9_.]*\Z")
+# A sheet name ADDRESS writes without quotes, after a workbook's name in brackets or not
+# (Excel's stored value for "[Book1]Sheet1" is [Book1]Sheet1!$C2)
+_PLAIN_SHEET = re.compile(r"(?:\[[^\]']+\])?[A-Za-z_][A-Za-z0-9_.]*\Z")
 
 
 @builtin("ADDRESS", 2, 5)
@@ -97,5 +99,5 @@ def isref(context: Context, node: Node) -> Value:
     >>> compute("=ISREF(A1)"), compute('=ISREF("A1")')
     (True, False)
     """
-    found = found_reference(context, node)
+    found = found_reference(context, node, several=True)
     return found is not None and type(found) is not CellError

@@ -69,11 +69,17 @@ def format_complex(z: complex, suffix: str = "i") -> str | CellError:
         return CellError(NUM, "the complex result is too large")
     re_part = 0.0 if abs(re_part) < 1e-300 else re_part
     if im == 0.0:
-        return format_number(re_part)
-    im_text = {1.0: "", -1.0: "-"}.get(im, format_number(im)) + (suffix or "i")
+        return _part(re_part)
+    im_text = {1.0: "", -1.0: "-"}.get(im, _part(im)) + (suffix or "i")
     if re_part == 0.0:
         return im_text
-    return format_number(re_part) + ("" if im_text.startswith("-") else "+") + im_text
+    return _part(re_part) + ("" if im_text.startswith("-") else "+") + im_text
+
+
+def _part(x: float) -> str:
+    """One part of a complex result: the general format, but in full down to 1E-18 (Excel's
+    stored COMPLEX values: 1E-16 is "0.0000000000000001", 1E-20 stays "1E-20")."""
+    return format_number(x, smallest=-18)
 
 
 def _suffix(suffixes: list[str]) -> str | CellError:

@@ -304,7 +304,8 @@ _conditional("MINIFS", lambda v: min(v, default=0.0), True)
 @builtin("SUMPRODUCT", 1, None, arrays=ALL_ARGUMENTS)
 def sumproduct(*arrays: Value) -> Value:
     """The sum of the element-wise products of equally shaped arrays; elements that are not
-    numbers count as 0, errors propagate.
+    numbers count as 0, errors propagate, and a single value that is text is #VALUE! (Excel's
+    stored value for a one-cell range holding "4").
 
     >>> from cellfuncs.formula import compute
     >>> compute('=SUMPRODUCT({1,"x";3,4}, {2,2;2,TRUE})'), compute("=SUMPRODUCT({1,2},{1;2})").code
@@ -315,6 +316,8 @@ def sumproduct(*arrays: Value) -> Value:
         if type(v) is CellError:
             return v
         a = as_array(v)
+        if a.size == 1 and type(a.flat[0]) is str:
+            return CellError(VALUE, "SUMPRODUCT of a single text value")
         if shape is not None and a.shape != shape:
             return CellError(VALUE, f"SUMPRODUCT's arrays of shapes {shape_text(shape)} and {shape_text(a.shape)} differ")
         shape = a.shape

@@ -16,6 +16,7 @@ from .arrays import elementwise, numeric
 from .coerce import to_text
 from .dates import LAST_SERIAL, date_serial, in_1900, parse_date_text, serial, ymd
 from .evaluate import builtin
+from .fn_securities import numbers
 from .nodes import Scalar
 
 
@@ -115,7 +116,9 @@ def _months_later(x: float, months: float, end: bool) -> float | CellError:
     if type(x) is CellError:
         return x
     y, m, d = ymd(x)
-    if d == 0:  # day 0 is 1899-12-31 for month arithmetic
+    if d == 0:  # day 0 is 1899-12-31 for month arithmetic, but no month later it is day 0 itself
+        if int(months) == 0 and not end:
+            return 0.0
         y, m, d = 1899, 12, 31
     total = y * 12 + (m - 1) + int(months)
     y, m = divmod(total, 12)
@@ -138,9 +141,9 @@ def edate(start: float, months: float) -> float | CellError:
 
 
 @builtin("EOMONTH", 2)
-@numeric
+@numbers
 def eomonth(start: float, months: float) -> float | CellError:
-    """The last day of the month ``months`` later.
+    """The last day of the month ``months`` later; TRUE or FALSE for either is #VALUE!.
 
     >>> eomonth(45293.0, 0.0), eomonth(45293.0, -1.0)
     (45322.0, 45291.0)

@@ -21,6 +21,7 @@ from ..errors import DIV0, NUM, CellError
 from .arrays import Value, map_values, numeric
 from .coerce import to_bool
 from .evaluate import builtin
+from .fn_securities import numbers
 
 
 def _sp():
@@ -251,6 +252,9 @@ def _with_flag(fn: Callable[..., Value], position: int) -> Callable[..., Value]:
     return call
 
 
+# The error functions refuse TRUE and FALSE (#VALUE!), as Excel's stored values show.
+_NO_LOGICAL = {"ERF", "ERF.PRECISE", "ERFC", "ERFC.PRECISE"}
+
 for _name, _fn, _lo, _hi in _TABLE:
-    _checked = numeric(_fn)
+    _checked = (numbers if _name in _NO_LOGICAL else numeric)(_fn)
     builtin(_name, _lo, _hi)(_with_flag(_checked, _FLAG[_name]) if _name in _FLAG else _checked)

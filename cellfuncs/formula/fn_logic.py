@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import NA, VALUE, CellError
-from .arrays import Value, elementwise, filled, first_error, map_values
+from .arrays import Value, elementwise, first_error, map_values
 from .coerce import compare, to_bool
 from .evaluate import Context, builtin, collect, evaluate
 from .nodes import Missing, Node, Scalar
@@ -46,7 +46,7 @@ def if_(context: Context, test: Node, then: Node, otherwise: Node | None = None)
             return _argument(then, context)
         return False if otherwise is None else _argument(otherwise, context)
     no = False if otherwise is None else _argument(otherwise, context)
-    return map_values(_pick, *_padded(t, _argument(then, context), no))
+    return map_values(_pick, t, _argument(then, context), no)
 
 
 @builtin("IFERROR", 2, lazy=True)
@@ -61,27 +61,8 @@ def iferror(context: Context, value: Node, fallback: Node) -> Value:
     if type(v) is CellError:
         return _argument(fallback, context)
     if type(v) is np.ndarray and first_error(v) is not None:
-        return map_values(lambda x, g: g if type(x) is CellError else x, *_padded(v, _argument(fallback, context)))
+        return map_values(lambda x, g: g if type(x) is CellError else x, v, _argument(fallback, context))
     return v
-
-
-def _padded(*values: Value) -> list[Value]:
-    """The arrays among ``values`` at their common size, as Excel pairs arrays of different
-    sizes: along an axis where one has a single row (or column) it repeats, else the shorter
-    one is padded with #N/A (Excel's stored values of IF(A1:A4>2, H1:H2, E1:E2) and of
-    IFERROR(G4:G7/H4:H7, G12:G13) end in #N/A). Scalars stay as they are."""
-    shapes = [v.shape for v in values if type(v) is np.ndarray]
-    rows, cols = max(s[0] for s in shapes), max(s[1] for s in shapes)
-
-    def fit(x: Value) -> Value:
-        if type(x) is not np.ndarray:
-            return x
-        h, w = x.shape
-        out = filled((rows, cols), CellError(NA, "beyond the end of the shorter array"))
-        out[:rows if h == 1 else h, :cols if w == 1 else w] = x
-        return out
-
-    return [fit(v) for v in values]
 
 
 @builtin("ISERROR", 1)

@@ -17,7 +17,7 @@ from .arrays import Value, as_array, map_values, shape_text
 from .coerce import compare, to_bool, to_number, to_text
 from .evaluate import Context, anchored, builtin, evaluate, reference_builtin
 from .fn_reference import found_reference
-from .nodes import Missing, Node, Ref, Scalar
+from .nodes import Areas, Missing, Node, Ref, Scalar
 
 _ABSENT = object()  # an argument left out, as opposed to an empty one (None)
 
@@ -85,17 +85,22 @@ def index_reference(context: Context, array: Node, row: Node, column: Node | Non
                     area: Node | None = None) -> Ref | CellError | None:
     """INDEX of a reference is a reference (``A1:INDEX(B:B, 3)``, ``ROW(INDEX(…))``): the cell,
     or with 0 the whole row or column, of the reference. Of an array, or with arrays of row
-    or column numbers, it is a value (None here)."""
-    found = found_reference(context, array)
+    or column numbers, it is a value (None here). Of a union, ``area`` picks the area (the
+    first by default)."""
+    found = found_reference(context, array, several=True)
     if found is None or type(found) is CellError:
         return found
+    parts = found.parts if type(found) is Areas else (found,)
     if area is not None and type(area) is not Missing:
         n = evaluate(area, context)
         n = CellError(VALUE, "INDEX takes one area number") if type(n) is np.ndarray else to_number(n)
         if type(n) is CellError:
             return n
-        if int(n) != 1:
+        if not 1 <= int(n) <= len(parts):
             return CellError(REF, f"the reference has no area {int(n)}")
+        found = parts[int(n) - 1]
+    else:
+        found = parts[0]
     bounds = getattr(context, "bounds", None)
     if bounds is None:  # no workbook: the values the context gives
         return None
@@ -199,15 +204,38 @@ def _find(x: Scalar, values: list, mode: int) -> float | CellError:
     elif mode == 0:
         found = next((i for i, v in enumerate(values) if type(v) is type(x) and compare(v, x) == 0), None)
     else:
-        # A scan that stops where the order breaks gives what Excel's binary search gives on
-        # sorted data; values of another type than x are skipped, as there.
-        found = None
-        for i, v in enumerate(values):
-            if type(v) is type(x):
-                if compare(v, x) * mode > 0:
-                    break
-                found = i
+        found = _halving(x, values, mode)
     return CellError(NA, f"{_shown(x)} was not found") if found is None else float(found + 1)
+
+
+def _halving(x: Scalar, values: list, mode: int) -> int | None:
+    """Excel's approximate search: the position of the last value not after ``x`` in the
+    order ``mode`` (1 rising, -1 falling), by halvings of the whole list. A halving looks at
+    the middle value, or the first after it of the type of ``x`` (blanks, errors and other
+    types are passed over, so LOOKUP(2, 1/(A:A="x"), B:B) finds the last match), and stops at
+    a value equal to ``x``, moving on to the last of its equal neighbours. On sorted data this
+    is the last value not after ``x``; on unsorted data it is what Excel's stored values show
+    (LOOKUP("DOUBLE", {"DOUBLE","BLANK","STRING","REF","AREA (rows)"}) finds the first)."""
+    def comparable(i: int) -> bool:
+        return type(values[i]) is type(x)
+
+    lo, hi, found = 0, len(values) - 1, None
+    while lo <= hi:
+        mid = (lo + hi) // 2
+        j = next((i for i in range(mid, hi + 1) if comparable(i)), None)
+        if j is None:
+            hi = mid - 1
+            continue
+        order = compare(values[j], x) * mode
+        if order == 0:
+            while j + 1 < len(values) and comparable(j + 1) and compare(values[j + 1], x) == 0:
+                j += 1
+            return j
+        if order < 0:
+            found, lo = j, j + 1
+        else:
+            hi = mid - 1
+    return found
 
 
 @builtin("MATCH", 2, 3)

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import NUM, VALUE, CellError
+from ..errors import CALC, NUM, VALUE, CellError
 from .arrays import Value, as_array, as_value, shape_text
 from .budget import charge
 from .coerce import to_number
@@ -120,8 +120,10 @@ def sequence(rows: Value, columns: Value = 1.0, start: Value = 1.0, step: Value 
         if type(x) is CellError:
             return x
     r, c, first, inc = int(args[0]), int(args[1]), args[2], args[3]
-    if r < 1 or c < 1:
+    if r < 0 or c < 0:
         return CellError(VALUE, "SEQUENCE needs at least one row and one column")
+    if r == 0 or c == 0:  # an empty array is a calculation Excel cannot show
+        return CellError(CALC, "SEQUENCE of no rows or no columns is an empty array")
     if r * c > 1_048_576:
         return CellError(NUM, "SEQUENCE would be larger than a sheet column")
     return charge((r, c)) or as_value(first + inc * np.arange(r * c, dtype=float).reshape(r, c))

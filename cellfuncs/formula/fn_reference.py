@@ -1,4 +1,4 @@
-"""Built-in functions about references and array shapes: ROW, COLUMN, ROWS, COLUMNS,
+"""Built-in functions about references and array shapes: ROW, COLUMN, ROWS, COLUMNS, AREAS,
 SHEET, SHEETS, INDIRECT, OFFSET, CHOOSE, TRANSPOSE.
 
 ROW and COLUMN need the reference itself, not its values: the evaluation context answers
@@ -22,20 +22,24 @@ from ..errors import NA, REF, VALUE, CellError
 from .a1 import MAX_COL, MAX_ROW
 from .arrays import Value, as_array, map_values
 from .coerce import to_bool, to_number, to_text
-from .evaluate import Context, anchored, builtin, evaluate, implicit_value, reference_builtin, reference_of
-from .nodes import Missing, Name, Node, Ref
+from .evaluate import (Context, anchored, builtin, evaluate, implicit_value, intersect, is_reference,
+                       reference_builtin, reference_of)
+from .nodes import Areas, Missing, Name, Node, Ref
 from .parser import FormulaSyntaxError, parse
 
 _R1C1 = re.compile(r"R(\[-?\d+\]|\d+)?C(\[-?\d+\]|\d+)?\Z")
 
 
-def found_reference(context: Context, node: Node) -> Ref | CellError | None:
+def found_reference(context: Context, node: Node, several: bool = False) -> Ref | Areas | CellError | None:
     """The reference an argument is written as or evaluates to (a defined name that is one
-    reference included); None when it gives a value."""
+    reference included); None when it gives a value. A union of several areas is #REF!, as
+    Excel gives for ROWS of one (MS-OI29500 2.1.1035), unless the caller takes ``several``."""
     found = reference_of(node, context)
     if type(found) is Name:
         find = getattr(context, "name_reference", None)
         found = find(found.text) if find is not None else None
+    if type(found) is Areas and not several:
+        return CellError(REF, "the argument must be a reference of one area, not a union of several")
     return found
 
 
@@ -99,6 +103,22 @@ def _size(name: str, axis: int) -> None:
 
 _size("ROWS", 0)
 _size("COLUMNS", 1)
+
+
+@builtin("AREAS", 1, lazy=True, place_only=True)
+def areas(context: Context, node: Node) -> Value:
+    """How many areas a reference has: 1, or as many as a union joins.
+
+    >>> from cellfuncs.formula import compute
+    >>> compute("=AREAS(1)").code
+    '#VALUE!'
+    """
+    found = found_reference(context, node, several=True)
+    if found is None:
+        return CellError(VALUE, "AREAS takes a reference")
+    if type(found) is CellError:
+        return found
+    return float(len(found.parts)) if type(found) is Areas else 1.0
 
 
 @builtin("SHEET", 0, 1, lazy=True, place_only=True)
@@ -250,7 +270,8 @@ def anchorarray(context: Context, anchor: Node) -> Ref | CellError:
 def offset(context: Context, base: Node, rows: Node, cols: Node, height: Node | None = None,
            width: Node | None = None) -> Ref | CellError:
     """The reference ``rows`` down and ``cols`` right of a reference, ``height`` rows by
-    ``width`` columns (by default the base's size); off the sheet it is #REF!.
+    ``width`` columns (by default the base's size), each truncated (a size under 1 is 1);
+    off the sheet it is #REF!.
 
     >>> from cellfuncs.formula import compute
     >>> compute("=OFFSET({1,2},1,1)").code
@@ -273,13 +294,16 @@ def offset(context: Context, base: Node, rows: Node, cols: Node, height: Node | 
         if node is None or type(node) is Missing:
             numbers.append(default)
             continue
-        v = evaluate(node, context)
+        # a legacy formula intersects a range given as a number (Excel's stored values)
+        legacy = getattr(context, "implicit", False) and is_reference(node)
+        v = intersect(node, context) if legacy else evaluate(node, context)
         if type(v) is np.ndarray:
             return CellError(VALUE, "OFFSET takes single numbers for its offsets and size")
         x = to_number(v)
         if type(x) is CellError:
             return x
-        numbers.append(float(int(x)))
+        # a size between 0 and 1 is one row or column (Excel's stored value for a width of 0.9)
+        numbers.append(1.0 if len(numbers) >= 2 and 0.0 < x < 1.0 else float(int(x)))
     down, right, h, w = (int(x) for x in numbers)
     if h == 0 or w == 0:
         return CellError(REF, "OFFSET's height and width must not be 0")
@@ -333,7 +357,7 @@ def choose(context: Context, index: Node, *options: Node) -> Ref | CellError | N
     if type(i) is np.ndarray:
         return None
     chosen = _chosen(i, options)
-    return chosen if type(chosen) is CellError else found_reference(context, chosen)
+    return chosen if type(chosen) is CellError else found_reference(context, chosen, several=True)
 
 
 def _scalar(v: Value):

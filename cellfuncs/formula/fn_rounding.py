@@ -20,7 +20,7 @@ import math
 from decimal import ROUND_DOWN
 from typing import Callable
 
-from ..errors import DIV0, NUM, CellError
+from ..errors import DIV0, NA, NUM, CellError
 from .arrays import numeric
 from .coerce import decimal_round
 from .evaluate import builtin
@@ -104,10 +104,11 @@ _precise_form("ISO.CEILING", True)
 _precise_form("FLOOR.PRECISE", False)
 
 
-@builtin("MROUND", 2)
+@builtin("MROUND", 2, left_out=CellError(NA, "MROUND: an argument is left out"))
 @toolpak
 def mround(x: float, step: float) -> float | CellError:
-    """``x`` rounded to the nearest multiple of ``step`` (halves away from zero); signs must agree.
+    """``x`` rounded to the nearest multiple of ``step`` (halves away from zero); signs must agree;
+    a left-out argument is #N/A, a blank cell 0.
 
     >>> mround(10.0, 3.0), mround(-10.0, -3.0), mround(1.3, 0.2), mround(5.0, -2.0).code
     (9.0, -9.0, 1.4000000000000001, '#NUM!')

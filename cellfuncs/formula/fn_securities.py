@@ -34,12 +34,13 @@ from .nodes import Scalar
 
 # --- arguments -----------------------------------------------------------------------------
 
-_LOGICAL = CellError(VALUE, "a security's argument cannot be TRUE or FALSE")
+_LOGICAL = CellError(VALUE, "this function's arguments cannot be TRUE or FALSE")
 
 
 def numbers(fn: Callable[..., float | CellError]) -> Callable[..., object]:
-    """:func:`numeric` for the securities functions, which refuse TRUE and FALSE (#VALUE!)
-    where other functions read them as 1 and 0."""
+    """:func:`numeric` for the functions that refuse TRUE and FALSE (#VALUE!) where others
+    read them as 1 and 0: the securities, EOMONTH and the error functions (Excel's stored
+    values)."""
     scalar = numeric(fn)
 
     @functools.wraps(fn)
@@ -513,15 +514,20 @@ class _Piece(NamedTuple):
 
 
 def _pieces(schedule: Schedule, ks: range, start: int, end: int, settlement: int, basis: int,
-            frequency: int) -> list[_Piece]:
+            frequency: int, actual: bool = False) -> list[_Piece]:
     """The odd period ``start`` to ``end`` cut into the quasi-coupon periods ending at the
     schedule's dates ``ks``. A whole quasi period counts as one period, whatever its days
-    (actual/360 has more days in a half year than its normal 180)."""
+    (actual/360 has more days in a half year than its normal 180). ``actual``: a quasi
+    period's normal length is its actual days under every actual-day basis (1, 2 and 3), as
+    Excel's stored ODDLPRICE values at bases 2 and 3 show."""
     out = []
     for k in ks:
         begin, finish = schedule.date(k + 1), schedule.date(k)
         lo, hi = max(begin, start), min(finish, end)
-        length = period_days(begin, finish, basis, frequency)
+        if actual and basis in (1, 2, 3):
+            length = float(finish - begin)
+        else:
+            length = period_days(begin, finish, basis, frequency)
 
         def periods(a: int, b: int) -> float:
             return 1.0 if (a, b) == (begin, finish) else day_count(a, b, basis) / length
@@ -620,7 +626,7 @@ class _OddLast(NamedTuple):
         schedule = Schedule.every(self.last, self.frequency)
         n = -schedule.index(self.maturity, strict=True) + 1
         pieces = _pieces(schedule, range(-1, -n - 1, -1), self.last, self.maturity, self.settlement,
-                         self.basis, self.frequency)
+                         self.basis, self.frequency, actual=True)
         return tuple(math.fsum(column) for column in zip(*pieces))
 
     def price(self, rate: float, y: float, redemption: float) -> float:

@@ -46,6 +46,15 @@ class Ref:
 
 
 @dataclass(frozen=True, slots=True)
+class Areas:
+    """A reference of several areas, as the union operator ``,`` joins them (``(A1:B2,C5)``):
+    each part anchored, in the order written. The parser writes the operator (a
+    :class:`Binary` ``,``); the evaluator finds this reference from it."""
+
+    parts: tuple[Ref, ...]
+
+
+@dataclass(frozen=True, slots=True)
 class Name:
     """A defined name as written, e.g. ``Rate`` or ``Sheet1!Rate``."""
 
@@ -62,7 +71,8 @@ class Unary:
 
 @dataclass(frozen=True, slots=True)
 class Binary:
-    """An infix operator: arithmetic, ``&`` or a comparison."""
+    """An infix operator: arithmetic, ``&``, a comparison or a reference operator (``:``,
+    a space for intersection, ``,`` for union)."""
 
     op: str
     left: Node

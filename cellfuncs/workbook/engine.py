@@ -9,7 +9,10 @@ Decisions:
 
 - A circular reference gives ``#CALC!`` in every cell of the loop, with a reason naming
   it (``circular reference: Sheet1!A1 -> Sheet1!B1 -> Sheet1!A1``); cells that use
-  those cells get the error in turn.
+  those cells get the error in turn. A loop of the references written in the formulas is
+  first evaluated on demand, each cell waiting for the cells of the loop it reads: only a
+  cell that reads itself, directly or through others, is circular (Excel computes
+  ``=CHOOSE(2, B40, "x")`` in B40, which never reads B40).
 - A formula whose result is an array spills (Excel 365 dynamic arrays) unless a cell of
   the spill range holds a value or a formula or another spill: then ``#SPILL!``.
   A legacy array formula ({=...}) fills its stored range, as Excel does.
@@ -40,8 +43,9 @@ from typing import Any, Callable, Iterator, Mapping, NamedTuple
 import numpy as np
 
 from ..errors import CALC, NA, NAME, REF, SPILL, CellError
-from ..formula import Call, Ref, Value, value_of, walk
-from ..formula.evaluate import anchored
+from ..formula import Binary, Call, Ref, Value, value_of, walk
+from ..formula.evaluate import anchored, reference_of
+from ..formula.nodes import Areas
 from ..formula.budget import active, charge
 from ..formula.dates import date_system
 from .areas import AreaIndex, Overlap
@@ -57,6 +61,8 @@ from .tables import Tables
 from .templates import Template, Templates, build
 
 MAX_PASSES = 4
+RESOLVED_LOOP_CELLS = 1000  # larger loops of written references are taken as circular without a try
+RESOLVED_DEPTH = 40  # cells of a loop waiting for one another at once; deeper is taken as circular
 KEPT_BLOCK_CELLS = 4_194_304  # ranges read are kept for reuse up to this many cells (32 MiB of references)
 _PREFIXES = ("_XLUDF.", "_XLFN.", "_XLWS.")
 
@@ -206,18 +212,23 @@ class _Context:
         s, a = found
         return formula_at(self.engine.book.sheets[s].scan, self.engine.shared_firsts.get(s, {}), a.r1, a.c1)
 
-    def name_reference(self, text: str) -> Ref | None:
-        """The reference a defined name stands for when it is one reference (``=Data!$A$1:$A$9``)."""
+    def name_reference(self, text: str) -> Ref | Areas | CellError | None:
+        """The reference a defined name stands for when it is one reference (``=Data!$A$1:$A$9``)
+        or a union of references (``=Data!$A$1:$A$9,Data!$C$1``)."""
         key = self.engine.resolve_name(self.sheet, text)
         if key is None:
             return None
         ast = self.engine.name_template(key).ast
+        s = key[0] if key[0] is not None else self.sheet
+        sheet = self.engine.book.sheets[s].name
+        if type(ast) is Binary and ast.op == ",":
+            found = reference_of(ast, _NameContext(self.engine, s, None))
+            if type(found) is not Areas:
+                return found
+            return Areas(tuple(Ref(p.sheet or sheet, p.ref) for p in found.parts))
         if type(ast) is not Ref:
             return None
-        sheet = ast.sheet
-        if sheet is None:
-            sheet = self.engine.book.sheets[key[0] if key[0] is not None else self.sheet].name
-        return Ref(sheet, ast.ref)
+        return Ref(ast.sheet or sheet, ast.ref)
 
     def left_out(self, sheet: str | None, ref: str, hidden: bool) -> np.ndarray | None:
         """The cells of a reference that SUBTOTAL leaves out (True): SUBTOTAL and AGGREGATE
@@ -253,6 +264,8 @@ class _Context:
         if type(found) is CellError:
             return found
         s, a = found
+        if self.engine.pending:
+            self.engine.wait_for(s, a)
         values = self.engine.values[s]
         if a.r1 == a.r2 and a.c1 == a.c2:
             return values.get((a.r1, a.c1))
@@ -394,6 +407,10 @@ class Recalc:
         self.found: dict[int, set[tuple[int, tuple[int, int, int, int]]]] = {}
         self.found_new = False
         self.current: int | None = None  # the formula cell being evaluated
+        # while a loop of the graph is resolved (see _resolve): per sheet, its cells not evaluated yet
+        self.pending: dict[int, dict[tuple[int, int], int]] = {}
+        self._waiting: list[int] = []  # the loop's cells being evaluated, each waiting for the next
+        self._circular = False
         self._name_templates: dict = {}
         self.name_values: dict[tuple[tuple[int | None, str], int], Value] = {}  # (name, sheet using it) -> value
         n = len(book.sheets)
@@ -923,6 +940,10 @@ class Recalc:
         if self.book.iteration is not None:
             self._iterate(graph, comp)
             return
+        if self._resolve(graph, comp):
+            return
+        self._blocks.clear()  # ranges read while resolving it may hold values the loop's errors replace
+        self._kept = 0
         units = graph.units
         members = set(comp)
         shared = None
@@ -938,6 +959,63 @@ class Recalc:
             else:
                 _, key, sheet = graph.extras[u - len(units)]
                 self.name_values[(key, sheet)] = CellError(CALC, shared)
+
+    def _resolve(self, graph: Graph, comp: list[int]) -> bool:
+        """Evaluate a loop of plain formula cells on demand, in sheet order, a cell reading a cell of
+        the loop that is not evaluated yet evaluating it first (:meth:`wait_for`). True when every cell
+        got its value so; False when one read a cell still being evaluated (a real circular
+        reference), or the loop holds names, array formulas or too many cells to try."""
+        units = graph.units
+        if any(u >= len(units) and graph.extras[u - len(units)][0] == "name" for u in comp):
+            return False
+        cells = sorted((fi for u in comp if u < len(units) for fi in units[u]), key=self._sort_key)
+        if len(cells) > RESOLVED_LOOP_CELLS or any(self.cells[fi].kind != "normal" for fi in cells):
+            return False
+        for fi in cells:
+            fc = self.cells[fi]
+            self.pending.setdefault(fc.sheet, {})[(fc.row, fc.col)] = fi
+        self._circular = False
+        try:
+            for fi in cells:
+                fc = self.cells[fi]
+                if (fc.row, fc.col) in self.pending[fc.sheet]:
+                    self._evaluate_waited(fi)
+        finally:
+            self.pending = {}
+        return not self._circular
+
+    def wait_for(self, s: int, a: Area) -> None:
+        """Before a formula reads area ``a`` of sheet ``s`` while a loop is resolved: the loop's cells
+        there that are not evaluated yet, evaluated first."""
+        pending = self.pending.get(s)
+        if not pending:
+            return
+        if a.single:
+            fi = pending.get((a.r1, a.c1))
+            waited = [] if fi is None else [fi]
+        else:
+            waited = [fi for (r, c), fi in pending.items() if a.contains(r, c)]
+        for fi in waited:
+            self._evaluate_waited(fi)
+
+    def _evaluate_waited(self, fi: int) -> None:
+        """Formula cell ``fi`` of the loop being resolved, evaluated in the middle of another's
+        evaluation (whose context, cell and budget are put back after)."""
+        if self._circular:
+            return
+        if fi in self._waiting or len(self._waiting) >= RESOLVED_DEPTH:
+            self._circular = True
+            return
+        fc = self.cells[fi]
+        saved = self._context, self.current, self.budget.left
+        self._context = _Context(self)
+        self._waiting.append(fi)
+        try:
+            self._cell(fi)
+        finally:
+            self._waiting.pop()
+            self._context, self.current, self.budget.left = saved
+            self.pending[fc.sheet].pop((fc.row, fc.col), None)
 
     def _node_key(self, graph: Graph, u: int) -> tuple:
         """Cells in sheet order, then names, then ranges."""

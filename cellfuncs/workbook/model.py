@@ -11,12 +11,13 @@ from __future__ import annotations
 
 import posixpath
 from dataclasses import dataclass, field
-from typing import NamedTuple
+from typing import Iterator, NamedTuple
 from xml.etree.ElementTree import Element
 
+from ..errors import CALC, CODES, DIV0, NA, NAME, NULL, NUM, REF, SPILL, VALUE, CellError
 from .external import ExternalBook, read_link
 from .package import Package, Refused
-from .sheetxml import MAX_FORMULAS, NAMESPACES, SheetScan, scan
+from .sheetxml import MAX_FORMULAS, NAMESPACES, SheetScan, scan, xstring
 from .tables import Table, read_table
 from .structure import CONTENT_TYPES, check_content_types, check_defined_name, check_relationship, check_sheet
 
@@ -25,6 +26,14 @@ DOC_RELS = ("http://schemas.openxmlformats.org/officeDocument/2006/relationships
             "http://purl.oclc.org/ooxml/officeDocument/relationships")
 DYNAMIC_ARRAY_NS = "http://schemas.microsoft.com/office/spreadsheetml/2017/dynamicarray"
 DYNAMIC_TYPE = "XLDAPR"
+RICH_DATA_NS = "http://schemas.microsoft.com/office/spreadsheetml/2017/richdata"
+RICH_TYPE = "XLRICHVALUE"
+RICH_PARTS = ("rdRichValue", "rdRichValueStructure")  # the workbook's relationships to the rich values and structures
+# A rich error value's errorType is its ERROR.TYPE number less one (the reference workbooks
+# store 8 for #SPILL! and 13 for #CALC!). Excel keeps #VALUE! in the cell's <v> for the errors
+# that came after the seven of the file format; those the engine has no code for stay #VALUE!.
+RICH_ERRORS = (NULL, DIV0, VALUE, REF, NAME, NUM, NA, "#GETTING_DATA", SPILL, "#CONNECT!", "#BLOCKED!",
+               "#UNKNOWN!", "#FIELD!", CALC, "#BUSY!")
 
 
 _REL_IDS = tuple(f"{{{ns}}}id" for ns in DOC_RELS)
@@ -124,7 +133,7 @@ def shared_strings(root: Element) -> list[str]:
                 parts.append(child.text or "")
             elif child.tag in r_tags:
                 parts += [(t.text or "") for t in child if t.tag in t_tags]
-        out.append("".join(parts))
+        out.append(xstring("".join(parts)))
     return out
 
 
@@ -141,20 +150,84 @@ def dynamic_cm(root: Element) -> str | None:
     >>> dynamic_cm(parse_xml(xml, "m"))
     '1'
     """
-    types = [t.get("name") for block in _children(root, "metadataTypes") for t in _children(block, "metadataType")]
     dynamic_blocks = []
     for future in _children(root, "futureMetadata"):
         if future.get("name") == DYNAMIC_TYPE:
             for bk in _children(future, "bk"):
                 props = bk.find(f".//{{{DYNAMIC_ARRAY_NS}}}dynamicArrayProperties")
                 dynamic_blocks.append(props is not None and props.get("fDynamic") in ("1", "true"))
-    for block in _children(root, "cellMetadata"):
+    for n, v in _records(root, "cellMetadata", DYNAMIC_TYPE):
+        if 0 <= v < len(dynamic_blocks) and dynamic_blocks[v]:
+            return str(n)
+    return None
+
+
+def _records(root: Element, blocks: str, kind: str) -> Iterator[tuple[int, int]]:
+    """(block number counted from 1, index into the futureMetadata of ``kind``) of each record
+    of the ``blocks`` (cellMetadata or valueMetadata) that is of metadata type ``kind``."""
+    types = [t.get("name") for block in _children(root, "metadataTypes") for t in _children(block, "metadataType")]
+    for block in _children(root, blocks):
         for n, bk in enumerate(_children(block, "bk"), start=1):
             for rc in _children(bk, "rc"):
-                t, v = _integer(rc.get("t"), 0), _integer(rc.get("v"), -1)
-                if 1 <= t <= len(types) and types[t - 1] == DYNAMIC_TYPE and 0 <= v < len(dynamic_blocks) and dynamic_blocks[v]:
-                    return str(n)
-    return None
+                t = _integer(rc.get("t"), 0)
+                if 1 <= t <= len(types) and types[t - 1] == kind:
+                    yield n, _integer(rc.get("v"), -1)
+
+
+def _rich(local: str) -> str:
+    return f"{{{RICH_DATA_NS}}}{local}"
+
+
+def rich_errors(metadata: Element, values: Element | None, structures: Element | None) -> dict[str, CellError]:
+    """The error each value-metadata index (a cell's ``vm``, counted from 1) stands for, where it
+    points through a futureMetadata XLRICHVALUE block at a rich value of the ``_error`` structure.
+
+    >>> from cellfuncs.workbook.package import parse_xml
+    >>> main, rd = 'xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"', f'xmlns="{RICH_DATA_NS}"'
+    >>> meta = parse_xml(f'<metadata {main} xmlns:x="{RICH_DATA_NS}"><metadataTypes count="1"><metadataType '
+    ...                  f'name="XLRICHVALUE"/></metadataTypes><futureMetadata name="XLRICHVALUE" count="1"><bk><extLst>'
+    ...                  f'<ext uri="u"><x:rvb i="0"/></ext></extLst></bk></futureMetadata><valueMetadata count="1">'
+    ...                  f'<bk><rc t="1" v="0"/></bk></valueMetadata></metadata>'.encode(), "m")
+    >>> rv = parse_xml(f'<rvData {rd} count="1"><rv s="0"><v>13</v><v>3</v></rv></rvData>'.encode(), "v")
+    >>> rs = parse_xml(f'<rvStructures {rd} count="1"><s t="_error"><k n="errorType" t="i"/><k n="subType" t="i"/>'
+    ...                f'</s></rvStructures>'.encode(), "s")
+    >>> rich_errors(meta, rv, rs)
+    {'1': CellError(code='#CALC!', reason='')}
+    """
+    if values is None or structures is None:
+        return {}
+    # per structure, where its errorType sits among a rich value's fields (None: not an error)
+    places = []
+    for s in structures:
+        if s.tag == _rich("s"):
+            names = [k.get("n") for k in s if k.tag == _rich("k")]
+            places.append(names.index("errorType") if s.get("t") == "_error" and "errorType" in names else None)
+    codes: list[CellError | None] = []
+    for rv in values:
+        if rv.tag == _rich("rv"):
+            s = _integer(rv.get("s"), -1)
+            place = places[s] if 0 <= s < len(places) else None
+            fields = [(v.text or "").strip() for v in rv if v.tag == _rich("v")]
+            codes.append(None if place is None or place >= len(fields) else _rich_error(_integer(fields[place], -1)))
+    future = []  # per futureMetadata XLRICHVALUE block, the rich value it points at
+    for block in _children(metadata, "futureMetadata"):
+        if block.get("name") == RICH_TYPE:
+            for bk in _children(block, "bk"):
+                rvb = bk.find(f".//{_rich('rvb')}")
+                future.append(-1 if rvb is None else _integer(rvb.get("i"), -1))
+    out = {}
+    for n, v in _records(metadata, "valueMetadata", RICH_TYPE):
+        i = future[v] if 0 <= v < len(future) else -1
+        if 0 <= i < len(codes) and codes[i] is not None:
+            out[str(n)] = codes[i]
+    return out
+
+
+def _rich_error(number: int) -> CellError:
+    code = RICH_ERRORS[number] if 0 <= number < len(RICH_ERRORS) else None
+    if code in CODES:
+        return CellError(code)
+    return CellError(VALUE, f"the stored error {code or f'of type {number}'}, which this engine holds as #VALUE!")
 
 
 def _integer(text: str | None, missing: int) -> int:
@@ -178,16 +251,18 @@ def load(pkg: Package) -> Book:
     strings: list[str] = []
     metadata_part = None
     cm = None
-    for r in rels.values():
-        if r.external or r.target not in pkg:
-            continue
-        if r.kind == "sharedStrings":
-            strings = shared_strings(pkg.xml(r.target))
-            parsed.add(r.target)
-        elif r.kind == "sheetMetadata":
-            metadata_part = r.target
-            cm = dynamic_cm(pkg.xml(r.target))
-            parsed.add(r.target)
+    rich: dict[str, CellError] = {}
+    parts = {r.kind: r.target for r in rels.values() if not r.external and r.target in pkg}
+    if "sharedStrings" in parts:
+        strings = shared_strings(pkg.xml(parts["sharedStrings"]))
+        parsed.add(parts["sharedStrings"])
+    if "sheetMetadata" in parts:
+        metadata_part = parts["sheetMetadata"]
+        metadata = pkg.xml(metadata_part)
+        cm = dynamic_cm(metadata)
+        rich_parts = [parts.get(kind) for kind in RICH_PARTS]
+        rich = rich_errors(metadata, *(pkg.xml(part) if part else None for part in rich_parts))
+        parsed.update([metadata_part] + [part for part in rich_parts if part])
     budget = [MAX_FORMULAS]
     sheets = []
     tables: list[Table] = []
@@ -203,7 +278,7 @@ def load(pkg: Package) -> Book:
             part = rel.target if rel is not None and rel.kind == "worksheet" and not rel.external else None
             if part is not None and part not in pkg:
                 raise Refused(f"sheet {el.get('name')!r}: part {part} missing")
-            sheet_scan = scan(pkg.utf8(part), part, budget, strings) if part else None
+            sheet_scan = scan(pkg.utf8(part), part, budget, strings, rich) if part else None
             if part:
                 parsed.add(part)
                 tables += _tables(pkg, part, n, el.get("name", ""), parsed)

@@ -35,6 +35,7 @@ MAX_TOTAL = 200 * 2**20
 MAX_RATIO = 100
 RATIO_FLOOR = 2**20
 MAX_MEMBERS = 10_000
+ENTITY_REFUSAL = "XML with a DTD or entity declaration (possible entity bomb)"
 
 
 class Refused(Exception):
@@ -78,7 +79,7 @@ def parse_xml(data: bytes, part: str, target: Any = None) -> Any:
         parser.feed(data)
         return parser.close()
     except DefusedXmlException:
-        raise Refused(f"{part}: XML with a DTD or entity declaration (possible entity bomb)") from None
+        raise Refused(f"{part}: {ENTITY_REFUSAL}") from None
     except ParseError as exc:
         raise Refused(f"{part}: corrupt XML ({exc})") from None
     except (LookupError, ValueError) as exc:  # an encoding name the parser does not know, and the like

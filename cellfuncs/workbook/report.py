@@ -17,15 +17,22 @@ import sys
 import time
 from typing import TextIO
 
-from ..errors import CellError
+from ..errors import VALUE, CellError
 from .engine import Recalc
 from .model import Book
 from .refs import Area
+from .writer import FILE_ERRORS
 
 
 def same(cached: object, computed: object, rel: float) -> bool:
     """Whether a cached value matches the computed one: numbers within ``rel`` relative,
-    text exactly, errors by code; a missing cached value never matches."""
+    text exactly, errors by code; a missing cached value never matches. A plain #VALUE! stored
+    matches an error the file can hold only as #VALUE! (#CALC!, #SPILL!: see writer.FILE_ERRORS),
+    so a file this engine wrote checks clean against itself.
+
+    >>> same(CellError("#VALUE!"), CellError("#CALC!"), 1e-9), same(CellError("#CALC!"), CellError("#VALUE!"), 1e-9)
+    (True, False)
+    """
     if cached is None:
         return False
     if computed is None:
@@ -34,7 +41,7 @@ def same(cached: object, computed: object, rel: float) -> bool:
     if tc is float and tv is float:
         return abs(cached - computed) <= rel * max(abs(cached), abs(computed))
     if tc is CellError and tv is CellError:
-        return cached.code == computed.code
+        return cached.code == computed.code or (cached.code == VALUE and computed.code not in FILE_ERRORS)
     return tc is tv and cached == computed
 
 

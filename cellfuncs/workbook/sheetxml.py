@@ -29,7 +29,27 @@ CELL_TYPES = ("b", "d", "e", "inlineStr", "n", "s", "str")  # the t attribute of
 MAX_FORMULAS = 1_000_000
 MAX_CELLS = 5_000_000
 
+_XSTRING = re.compile(r"_x([0-9A-Fa-f]{4})_")
+_SURROGATE = re.compile("[\ud800-\udfff]")
 _TAG_END = re.compile(rb"""<[^\s/>]+(?:\s+[^\s=/>]+\s*=\s*(?:"[^"]*"|'[^']*'))*\s*/?>""")
+
+
+def xstring(text: str) -> str:
+    """Stored text with its ``_xHHHH_`` escapes decoded (OOXML's ST_Xstring): Excel writes so
+    the characters XML cannot hold (CHAR(1), a carriage return, which XML would read as a line
+    feed) and ``_x005F_`` for an underscore that would otherwise start such an escape.
+
+    >>> xstring("a_x0001_b"), xstring("_x005F_x0001_"), xstring("_x000d_") == chr(13)
+    ('a\\x01b', '_x0001_', True)
+    >>> xstring("_xD83D__xDE00_") == chr(0x1F600)  # beyond the BMP: its UTF-16 pair
+    True
+    """
+    if "_x" not in text:
+        return text
+    out = _XSTRING.sub(lambda m: chr(int(m.group(1), 16)), text)
+    if _SURROGATE.search(out):
+        out = out.encode("utf-16-le", "surrogatepass").decode("utf-16-le", "replace")
+    return out
 
 
 def tag_end(data: bytes, start: int) -> int:
@@ -116,10 +136,11 @@ class SheetScan:
 class _Scanner:
     """A parser target building a :class:`SheetScan`; element positions come from expat."""
 
-    def __init__(self, data: bytes, part: str, strings: list[str], budget: list[int]):
+    def __init__(self, data: bytes, part: str, strings: list[str], budget: list[int], rich: dict[str, CellError]):
         self.bytes = data
         self.out = SheetScan(part)
         self.strings = strings
+        self.rich = rich  # value-metadata index (vm) -> the error a rich value holds
         self.budget = budget  # [formula cells left]: shared by all sheets of a workbook
         self.cells_left = MAX_CELLS
         self.depth = 0
@@ -249,7 +270,7 @@ class _Scanner:
         elif d == 3 and self.cell is not None:
             if local == "f":
                 self.cell.formula.close = closing(data, self.cell.formula.start, pos)
-                self.f_text = "".join(self.text)
+                self.f_text = xstring("".join(self.text))
                 self.text = None
             elif local == "v":
                 self.value_text = "".join(self.text)
@@ -278,6 +299,8 @@ class _Scanner:
         if kind not in CELL_TYPES:
             raise Refused(f"{out.part}: cell type {kind[:20]!r} is not one of {', '.join(CELL_TYPES)}")
         value = self._value(kind, self.value_text)
+        if kind == "e" and self.cell_attrs.get("vm") in self.rich:  # <v> holds #VALUE! in place of the error
+            value = self.rich[self.cell_attrs["vm"]]
         if self.f_attrs is None:
             if value is not None:
                 out.values[key] = value
@@ -298,13 +321,15 @@ class _Scanner:
         return self.out
 
 
-def scan(data: bytes, part: str, budget: list[int], strings: list[str] | None = None) -> SheetScan:
+def scan(data: bytes, part: str, budget: list[int], strings: list[str] | None = None,
+         rich: dict[str, CellError] | None = None) -> SheetScan:
     """Read worksheet ``part`` (UTF-8 bytes, see :meth:`.Package.utf8`): values, formulas and
     element positions.
 
-    ``budget`` is a one-element list holding how many formula cells may still be read.
+    ``budget`` is a one-element list holding how many formula cells may still be read;
+    ``rich`` the errors of the workbook's rich values by value-metadata index (a cell's ``vm``).
     """
-    scanner = _Scanner(data, part, strings or [], budget)
+    scanner = _Scanner(data, part, strings or [], budget, rich or {})
     return parse_xml(data, part, scanner)
 
 
@@ -318,7 +343,9 @@ def stored_value(kind: str, text: str | None, strings: list[str], part: str) -> 
             return strings[int(text)]
         except (ValueError, IndexError):
             raise Refused(f"{part}: shared string {text!r} does not exist") from None
-    if kind in ("str", "inlineStr", "d"):
+    if kind in ("str", "inlineStr"):
+        return xstring(text)
+    if kind == "d":
         return text
     if kind == "b":
         return text.strip() in ("1", "true")

@@ -17,7 +17,7 @@ import re
 from typing import Callable
 
 from .. import __version__
-from ..errors import CellError
+from ..errors import DIV0, NA, NAME, NULL, NUM, REF, VALUE, CellError
 from .engine import Recalc
 from .model import Book, Rel, relationships, rels_part
 from .package import Package, Refused
@@ -43,6 +43,10 @@ _XLDAPR_FUTURE = (b'<%sfutureMetadata name="XLDAPR" count="1"><%sbk><%sextLst><%
                   b'3c3f30c029c3}"><xda:dynamicArrayProperties xmlns:xda="' + _XDA_NS + b'" fDynamic="1" fCollapsed="0"/>'
                   b'</%sext></%sextLst></%sbk></%sfutureMetadata>')
 _CELL_CHANGES = {b"t", b"cm", b"vm"}
+# The error values a cell's <v> may hold (Office's implementation notes on ECMA-376, MS-OI29500).
+# Excel stores the later ones (#SPILL!, #CALC!) as #VALUE! there, the true error in a rich value
+# the cell's vm points at; a file with another text in <v> is not one Excel need open.
+FILE_ERRORS = (NULL, DIV0, VALUE, REF, NAME, NUM, NA, "#GETTING_DATA")
 
 
 def value_xml(v: object) -> tuple[bytes | None, bytes]:
@@ -50,13 +54,15 @@ def value_xml(v: object) -> tuple[bytes | None, bytes]:
 
     >>> value_xml(2.0), value_xml(0.1), value_xml(True), value_xml("a&b"), value_xml(CellError("#NUM!", "x"))
     ((None, b'2'), (None, b'0.1'), (b'b', b'1'), (b'str', b'a&amp;b'), (b'e', b'#NUM!'))
+    >>> value_xml(CellError("#SPILL!"))
+    (b'e', b'#VALUE!')
     """
     if type(v) is bool:
         return b"b", b"1" if v else b"0"
     if type(v) is str:
         return b"str", text(v)
     if type(v) is CellError:
-        return b"e", v.code.encode()
+        return b"e", (v.code if v.code in FILE_ERRORS else VALUE).encode()
     x = 0.0 if v is None else float(v)
     if x.is_integer() and abs(x) < 1e15:
         return None, b"%d" % x

@@ -21,7 +21,9 @@ from .sheetxml import closing, tag_end
 
 _ATTR = re.compile(rb"""\s+([^\s=/>]+)\s*=\s*("[^"]*"|'[^']*')""")
 _NAME = re.compile(rb"<([^\s/>]+)")
-_INVALID = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
+# what ST_Xstring escapes as _xHHHH_: characters XML cannot hold, a carriage return (XML reads
+# it as a line feed), and the underscore that begins a literal "_xHHHH_" (so it is not decoded)
+_ESCAPED = re.compile("[\x00-\x08\x0b-\x1f\ud800-\udfff\ufffe\uffff]|_(?=x[0-9A-Fa-f]{4}_)")
 
 
 @dataclass(slots=True)
@@ -114,12 +116,13 @@ def splice(data: bytes, edits: list[tuple[int, int, bytes]]) -> bytes:
 
 
 def text(value: str) -> bytes:
-    """Text for element content: XML-escaped; characters XML cannot hold written as ``_xHHHH_``.
+    """Text for element content: XML-escaped, with the ``_xHHHH_`` escapes Excel reads back
+    (see :func:`.sheetxml.xstring`).
 
-    >>> text("a<b & \\x01")
-    b'a&lt;b &amp; _x0001_'
+    >>> text("a<b & \\x01\\r"), text("_x0041_ _x")
+    (b'a&lt;b &amp; _x0001__x000D_', b'_x005F_x0041_ _x')
     """
-    value = _INVALID.sub(lambda m: "_x%04X_" % ord(m.group()), value)
+    value = _ESCAPED.sub(lambda m: "_x%04X_" % ord(m.group()), value)
     return escape(value).encode("utf-8")
 
 
