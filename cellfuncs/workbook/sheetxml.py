@@ -329,6 +329,10 @@ def scan(data: bytes, part: str, budget: list[int], strings: list[str] | None = 
     ``budget`` is a one-element list holding how many formula cells may still be read;
     ``rich`` the errors of the workbook's rich values by value-metadata index (a cell's ``vm``).
     """
+    from .sheetfast import scan_fast  # the same scan from the bytes where the part allows it (built on this module)
+
+    if (fast := scan_fast(data, part, budget, strings or [], rich or {})) is not None:
+        return fast
     scanner = _Scanner(data, part, strings or [], budget, rich or {})
     return parse_xml(data, part, scanner)
 
