@@ -46,7 +46,9 @@ from cellfuncs.sheet.functions import (
 from cellfuncs.data import load
 from cellfuncs.substances.helmholtz.equation import equation
 from cellfuncs.substances.water import if97, if97_saturation
+from cellfuncs.substances import lookup
 from cellfuncs.substances.constants import R
+from cellfuncs.substances.result import ModelError
 from cellfuncs.substances.water import model as water_model
 
 W = "water"
@@ -579,6 +581,10 @@ def test_substances():
     for alias in ("Water", "H2O", "r-718", "R718", " water "):
         assert BOIL_TEMP(alias, ATM) == BOIL_TEMP(W, ATM)
     assert is_error(BOIL_TEMP("unobtainium", ATM), VALUE, "unknown substance")
+    # the sheet layer, not the physics, says where the names are listed
+    assert "SUBSTANCES() lists the known names" in BOIL_TEMP("unobtainium", ATM).reason
+    with pytest.raises(ModelError, match=r"^unknown substance 'unobtainium'$"):
+        lookup("unobtainium")
 
 
 def test_substance_info_fields():

@@ -18,7 +18,7 @@ import numpy as np
 
 from .. import units
 from ..errors import NA, NUM, VALUE, CellError
-from ..substances import Substance, define, lookup
+from ..substances import Substance, UnknownSubstance, define, lookup
 from ..substances.result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Problem, Result, fmt, indices
 
 _CODES = {OUT_OF_RANGE: NUM, NOT_AVAILABLE: NA, BAD_ARGUMENT: VALUE}
@@ -110,7 +110,12 @@ def substance(value: Any) -> Substance:
         value = value.flat[0]
     if value is None or (isinstance(value, str) and not value.strip()):
         raise CallError(VALUE, "substance is blank")
-    return model_call(lookup, value)
+    try:
+        return lookup(value)
+    except UnknownSubstance as exc:
+        raise CallError(VALUE, f"{exc.problem.reason}; SUBSTANCES() lists the known names") from None
+    except ModelError as exc:
+        raise CallError(_CODES[exc.problem.kind], exc.problem.reason) from None
 
 
 def _pair(key: Any, value: Any) -> tuple[Any, Any]:

@@ -104,6 +104,10 @@ def _mixtures() -> dict[str, tuple[str, str]]:
     return table
 
 
+class UnknownSubstance(ModelError):
+    """A name that is no substance of the catalogue (the sheet layer says where the names are listed)."""
+
+
 def lookup(name: str) -> Substance:
     """The substance called ``name``; an unknown or ambiguous name raises ModelError.
 
@@ -119,7 +123,7 @@ def lookup(name: str) -> Substance:
         if mixture is not None:
             raise ModelError(BAD_ARGUMENT, f"'{name}' is a mixture ({mixture[1]}); this pack models pure substances")
         shown = str(name) if len(str(name)) <= 60 else str(name)[:60] + "..."  # a cell may hold any length
-        raise ModelError(BAD_ARGUMENT, f"unknown substance '{shown}'; SUBSTANCES() lists the known names")
+        raise UnknownSubstance(BAD_ARGUMENT, f"unknown substance '{shown}'")
     if len(found) > 1:
         which = ", ".join(sorted(_index()[1][k] for k in found))
         raise ModelError(BAD_ARGUMENT, f"'{name}' fits several substances ({which}); give the name")
