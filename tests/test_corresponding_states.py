@@ -30,15 +30,17 @@ def pair(request):
 
 def test_saturated_liquid_within_1_percent_below_0_9_tc_and_3_percent_above(pair):
     # the criteria of the generalised equation: Rackett's anchored volume below 0.9 Tc, the
-    # reference's scaled shape above; measured at most 0.2 % (methane), 1.005 % (nitrogen, at 0.9 Tc
-    # itself, where the fade towards the reference's shape has begun) and 0.5 % (carbon dioxide)
+    # reference's scaled shape above, brought onto the substance's critical density by the volume
+    # translation; measured at most 0.12 / 0.92 % (methane), 0.40 / 1.31 % (nitrogen) and
+    # 0.40 / 0.41 % (carbon dioxide) below / above 0.9 Tc (to 0.99 Tc); 4-5 % at 0.97 Tc without
+    # the translation
     m, ref = pair
-    T = ref.tc * np.linspace(max(0.5, 1.01 * ref.t_low / ref.tc), 0.97, 30)
+    T = ref.tc * np.linspace(max(0.5, 1.01 * ref.t_low / ref.tc), 0.99, 40)
     p = ref.boil_pressure(T).values
     dev = 1.0 / m.props(T, p * (1 + 1e-9), LIQUID)[0].v * ref.props(T, p * (1 + 1e-9), LIQUID)[0].v - 1.0
     cold = T <= 0.9 * ref.tc
     assert np.abs(dev[cold]).max() < 0.0101
-    assert np.abs(dev[~cold]).max() < 0.06  # measured 4-5 % at 0.97 Tc: looser than asked, said in the README
+    assert np.abs(dev[~cold]).max() < 0.03
 
 
 def test_dense_and_supercritical_gas_against_the_reference_equation(pair):
@@ -95,10 +97,14 @@ def test_toluene_liquid_compressibility_and_expansivity_are_the_handbooks():
     assert THERMAL_EXPANSIVITY("toluene", 25, 1, "", "degC", "atm") == pytest.approx(1.07e-3, rel=0.05)
 
 
-@pytest.mark.parametrize("tau, delta", [(0.6, 2.5), (0.9, 1.8), (0.95, 0.05), (1.1, 1.0), (1.6, 0.4)])
+@pytest.mark.parametrize("tau, delta", [(0.6, 2.5), (0.9, 1.8), (0.95, 0.05), (1.1, 1.0), (1.6, 0.4), (1.3, 0.3),
+                                        (1.05, 2.2)])
 def test_the_mapped_derivatives_are_those_of_the_mapped_energy(tau, delta):
-    # the chain-rule derivatives (mapped.py docstring) against central differences of alphar itself
+    # the chain-rule derivatives (mapped.py docstring) against central differences of alphar itself:
+    # R-32's mapping has the polar term (faded from 0.8 Tc of the reference) and the volume
+    # translation (from 0.5 Tc, faded above Tc), so the points cover both and their fades
     eq = lookup("r-32").equation  # a mapped substance (ammonia has its own equation)
+    assert eq.polar < 0.0 and eq.rhoc != eq._rho_m
     # tau = Tc/T from 0.6 (supercritical, the shape factors' continuation) to 1.6 (liquid range)
     T, rho = eq.Tc / tau * np.ones(1), delta * eq.rhoc * np.ones(1)
     r = eq.residual(T, rho)
@@ -116,3 +122,46 @@ def test_the_mapped_derivatives_are_those_of_the_mapped_energy(tau, delta):
     assert r["d"] == pytest.approx(d, rel=1e-6, abs=1e-9)
     assert r["tt"] == pytest.approx(tt, rel=1e-4, abs=1e-6)
     assert r["dt"] == pytest.approx(dt, rel=1e-4, abs=1e-6)
+
+
+@pytest.mark.parametrize("name", ["r-32", "methanol", "acetone", "n-butane", "argon"])
+def test_the_critical_point_is_the_substances(name):
+    # the polar term vanishes from Tc up and the translation maps the plain mapping's critical point
+    # onto the substance file's critical density: p = pc, (dp/drho)_T = 0 and (d2p/drho2)_T = 0 there
+    sub = lookup(name)
+    eq = sub.equation
+    rho = eq.rhoc * (1.0 + np.array([-1e-3, 0.0, 1e-3]))
+    p, slope = eq.pressure(np.full(3, eq.Tc), rho)
+    rt = eq.R * eq.Tc
+    assert p[1] == pytest.approx(sub.pc, rel=1e-9)
+    assert abs(slope[1]) < 1e-7 * rt and abs(slope[2] - slope[0]) < 1e-5 * rt
+    # the substance's critical density where the translation needed is within its limit (10 %, the
+    # polar ones beyond it stop there)
+    ratio = sub.definition.values["critical_density"] / sub.molar_mass / eq._rho_m
+    assert eq.rhoc / eq._rho_m == pytest.approx(min(ratio, 1.1), rel=1e-12)
+
+
+@pytest.mark.parametrize("tau, delta", [(1.02, 0.3), (1.2, 0.9), (1.5, 0.05), (1.9, 2.4), (2.6, 0.4), (0.9, 0.5)])
+def test_the_polar_term_derivatives_are_those_of_its_energy(tau, delta):
+    # through its fade (Tr 0.8-1), its levelling off (tau near 2) and above Tc (zero): central differences
+    from cellfuncs.substances.helmholtz.mapped import PolarTerm
+
+    term = PolarTerm(-0.1, 8.0)
+
+    def value(tau, delta, want):
+        out = {k: np.zeros(1) for k in want}
+        term.add(np.atleast_1d(tau), np.atleast_1d(delta), out)
+        return out
+
+    r = value(tau, delta, ("a", "d", "dd", "t", "tt", "dt"))
+
+    def a(dl_tau=0.0, dl_delta=0.0):
+        return value(tau * np.exp(dl_tau), delta * np.exp(dl_delta), ("a",))["a"]
+
+    h, h2 = 1e-5, 1e-4
+    assert r["t"] == pytest.approx((a(h) - a(-h)) / (2 * h), rel=1e-6, abs=1e-10)
+    assert r["d"] == pytest.approx((a(0, h) - a(0, -h)) / (2 * h), rel=1e-6, abs=1e-10)
+    assert r["tt"] == pytest.approx((a(h2) - 2 * a() + a(-h2)) / h2**2 - r["t"], rel=1e-4, abs=1e-8)
+    assert r["dd"] == pytest.approx((a(0, h2) - 2 * a() + a(0, -h2)) / h2**2 - r["d"], rel=1e-4, abs=1e-8)
+    dt = (a(h2, h2) - a(h2, -h2) - a(-h2, h2) + a(-h2, -h2)) / (4 * h2 * h2)
+    assert r["dt"] == pytest.approx(dt, rel=1e-4, abs=1e-8)

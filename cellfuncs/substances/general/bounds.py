@@ -57,6 +57,11 @@ FIELDS: dict[str, Bound] = {
     "solid_density.temperature": Bound("K", "K", *_T, "the solid's temperature, below the critical"),
     "liquid_heat_capacity": Bound("J/(mol*K)", "J/(mol*K)", 5.0, 1000.0, "liquid helium to heavy organics"),
     "liquid_heat_capacity.temperature": Bound("K", "K", *_T, "the liquid's temperature, below the critical"),
+    "saturated_vapor_density": Bound("kg/m3", "kg/m3", 1e-10, 2000.0,
+                                     "propane at its triple point, 1e-8 kg/m3, to near-critical halides"),
+    "saturated_vapor_density.temperature": Bound("K", "K", *_T, "the vapour's temperature, below the critical"),
+    "enthalpy_of_vaporization": Bound("J/mol", "kJ/mol", 0.05, 200.0, "helium 0.08 kJ/mol to heavy organics"),
+    "enthalpy_of_vaporization.temperature": Bound("K", "K", *_T, "the boiling temperature, below the critical"),
 }
 
 # the lowest triple-point temperature of a real substance relative to its critical temperature is

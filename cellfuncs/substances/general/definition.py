@@ -269,7 +269,8 @@ def _validate(d: Definition) -> None:
         _refuse("the substance definition needs 'acentric_factor' or 'normal_boiling_point'")
     tc, pc = v["critical_temperature"], v["critical_pressure"]
     for key in ("triple_point_temperature", "normal_boiling_point", "normal_sublimation_point",
-                "liquid_density.temperature", "solid_density.temperature", "liquid_heat_capacity.temperature"):
+                "liquid_density.temperature", "solid_density.temperature", "liquid_heat_capacity.temperature",
+                "saturated_vapor_density.temperature", "enthalpy_of_vaporization.temperature"):
         if key in v and v[key] >= tc:
             _refuse(f"field '{key}' ({fmt(v[key])} K) must be below the critical temperature ({fmt(tc)} K)")
     tt, pt = v.get("triple_point_temperature"), v.get("triple_point_pressure")
@@ -291,8 +292,9 @@ def _validate(d: Definition) -> None:
     if ts is not None and (tt is not None and ts >= tt or pt is not None and pt <= atm):
         _refuse(f"field 'normal_sublimation_point' ({fmt(ts)} K) must lie below the triple point, whose pressure "
                 "must then be above 1 atm")
-    if "liquid_density" in v and "liquid_density.temperature" not in v:
-        _refuse("field 'liquid_density' needs 'liquid_density.temperature', the temperature it was measured at")
+    for key in ("liquid_density", "saturated_vapor_density", "enthalpy_of_vaporization"):
+        if key in v and f"{key}.temperature" not in v:
+            _refuse(f"field '{key}' needs '{key}.temperature', the temperature it was measured at")
     for line, table in d.lines.items():
         _validate_line(line, table)
     if d.ideal_gas:

@@ -10,15 +10,19 @@ Lines (these decide the stable phase):
   melting      the published equation (Simon-Glatzel or a reference-equation ancillary),
                shifted by the small difference between its triple-point pressure and the
                model's; else the Clapeyron equation integrated from the triple point with
-               the enthalpy of fusion and the two phases' volumes (estimate, to 100 MPa)
-  sublimation  the published equation scaled to the model's triple-point pressure; else the
-               Clausius-Clapeyron equation integrated from the triple point with
-               H_sub = H_fus + H_vap(T_t) (estimate, from T_t/2 to T_t)
+               the enthalpy of fusion and the two phases' volumes (estimate, to the fluid's highest
+               pressure: 100 MPa here, the equation's for an equation of state)
+  sublimation  the published equation scaled to the model's triple-point pressure, its slope at the
+               triple point brought onto the Clapeyron slope of H_sub = H_fus + H_vap(T_t) by a
+               correction fading out 5 % below it; else the Clausius-Clapeyron equation integrated
+               from the triple point with that H_sub (estimate, from T_t/2 to T_t): the triple point
+               closes (see _triple_sublimation)
 Phases:
   vapour, gas and supercritical fluid: Peng-Robinson (see peng_robinson.py)
   liquid: Rackett saturated volume with the COSTALD-Tait compression (see liquid.py); the
           compressed liquid only where the Tait form holds, up to a few per cent below Tc
-  solid: constant molar volume from the solid density (no expansivity or compressibility)
+  solid: constant molar volume from the solid density (no expansivity or compressibility); an
+         equation-of-state substance scales it along its melting line (helmholtz/substance.py)
 Enthalpy (FLASH_FRACTION): the ideal gas's from the data's ideal-gas heat capacity (or the estimate
   of ideal_gas.estimate from the liquid heat capacity) plus the Peng-Robinson departure; the
   liquid's the saturated vapour's less the Clapeyron enthalpy of boiling, compressed by
@@ -52,7 +56,7 @@ from .peng_robinson import PengRobinson
 
 P0 = P_STANDARD  # Pa, the pressure of the chemical potential's reference state
 P_MAX = 100e6  # Pa, highest pressure the liquid and fluid estimates are used at
-VERTICAL_P_MAX = P_MAX  # Pa, top of a melting line taken as pressure-independent
+SUB_FADE = 0.05  # a published sublimation line's correction at the triple point fades out 5 % below it
 _LABELS, _STATE_PHASE = state_table(("solid",))
 _NO_TRIPLE = "the data give no triple point (triple_point_temperature)"
 _NO_CP0 = ("the data give no ideal-gas heat capacity (ideal_gas_cp.* rows) and no liquid heat capacity to estimate it "
@@ -75,6 +79,18 @@ def _lee_kesler(tr: np.ndarray, omega: float) -> np.ndarray:
     """ln(p/pc) by Lee and Kesler (1975), exactly zero at the critical point."""
     f0, f1 = _lee_kesler_terms(tr)
     return (f0 - _F0_CRITICAL) + omega * (f1 - _F1_CRITICAL)
+
+
+def _derivative(f, T: np.ndarray, lo: float, hi: float) -> np.ndarray:
+    """df/dT by second-order differences: central inside [lo, hi], one-sided at its ends."""
+    T = np.asarray(T, float)
+    h = 1e-6 * T
+    up, down = T + h <= hi, T - h >= lo
+    at = lambda k: f(np.clip(T + k * h, lo, hi))  # noqa: E731 - clipped: no NaN from the unused side
+    central = (at(1) - at(-1)) / (2.0 * h)
+    forward = (-3.0 * at(0) + 4.0 * at(1) - at(2)) / (2.0 * h)
+    backward = (3.0 * at(0) - 4.0 * at(-1) + at(-2)) / (2.0 * h)
+    return np.where(up & down, central, np.where(up, forward, backward))
 
 
 def _in_u(inverse: MonotoneInverse, y: np.ndarray) -> np.ndarray:
@@ -238,15 +254,21 @@ class GeneralSubstance(Substance):
             tt, pt = self.triple
             dv = self._v_liquid_triple() - self.v_solid
             self._melt_slope = v["enthalpy_of_fusion"] / dv
-            t_top = tt * np.exp((P_MAX - pt) / self._melt_slope)
+            t_top = tt * np.exp((self._p_top - pt) / self._melt_slope)
             self._melt_range = (min(tt, t_top), max(tt, t_top))
         elif self.has_triple:
             # without the solid's density the melting temperature is taken as independent of
-            # pressure (in reality it rises by about 0.1-0.3 K/MPa), up to VERTICAL_P_MAX
+            # pressure (in reality it rises by about 0.1-0.3 K/MPa), up to the fluid's highest pressure
             self._melt_slope = np.inf
             self._melt_range = (self.triple.temperature, self.triple.temperature)
         else:
             self._melt_range = None
+
+    @property
+    def _p_top(self) -> float:
+        """The highest pressure of the fluid phases (Pa), where an estimated melting line stops: the
+        line bounds the fluid, which must not end below it."""
+        return P_MAX
 
     def _v_liquid_triple(self) -> float:
         """Molar volume of the liquid at the triple point (for the Clapeyron melting line)."""
@@ -272,7 +294,6 @@ class GeneralSubstance(Substance):
     def _setup_sublime(self) -> None:
         v = self.definition.values
         self._sub = self.definition.lines.get("sublime")
-        self._sub_enthalpy = None
         if not self.has_triple:
             self._sub_range = None
             return
@@ -281,17 +302,80 @@ class GeneralSubstance(Substance):
             self._sub_scale = float(pt / line_pressure(self._sub, tt))
             self._sub_range = (self._sub.get("T_min", 0.5 * tt), tt)
         elif "enthalpy_of_fusion" in v:
-            self._sub_enthalpy = v["enthalpy_of_fusion"] + float(self._latent_boil(np.array(tt)))
             self._sub_range = (0.5 * tt, tt)
         else:
             self._sub_range = None
+
+    # The triple point closes: H_sub = H_fus + H_vap there, H_fus being the model's own enthalpy of
+    # melting (Clapeyron on its melting line; the data's enthalpy of fusion where the solid's volume
+    # is not known) and H_vap its enthalpy of boiling. The sublimation line's slope at the triple
+    # point is the Clapeyron slope of that sum, dp/dT = H_sub / (T (v_vapour - v_solid)):
+    #   estimate        ln(p/pt) = -(H_sub / (R dZ)) (1/T - 1/Tt), dZ = pt (v_vapour - v_solid) / (R Tt)
+    #                   at the triple point (the vapour's non-ideality and the solid's volume there)
+    #   published line  ln p = ln(scale p_published) + d (T - Tt) w(T): d brings the slope at the triple
+    #                   point onto Clapeyron's; w, 1 at the triple point with zero slope and curvature,
+    #                   fades to 0 at SUB_FADE Tt below it (a quintic smoothstep), where the published
+    #                   line takes over unchanged. d Tt is how far the published slope disagrees with the
+    #                   other lines and the volumes at the triple point (carbon dioxide: -2.1 %).
+    # Since the solid's potential is anchored to the fluid's on both lines, the Clapeyron equation holds
+    # on each, and LATENT_HEAT("sublime") = LATENT_HEAT("melt") + LATENT_HEAT("boil") at the triple point.
+    def _triple_sublimation(self) -> tuple[float, float]:
+        """(H_fus + H_vap, v_vapour - v_solid) at the triple point, J/mol and m3/mol."""
+        tt, pt = self.triple
+        T = np.array(tt)
+        v_vapour = float(self.props(T, pt, VAPOR, want=("v",))[0].v)
+        v_solid = self.v_solid if np.isfinite(self.v_solid) else 0.0  # not known: its small share left out
+        fusion = float(self._clapeyron_fusion(T))
+        if not np.isfinite(fusion):
+            fusion = self.definition.values.get("enthalpy_of_fusion", np.nan)
+        return fusion + float(self._latent_boil(T)), v_vapour - v_solid
+
+    def _clapeyron_fusion(self, T: np.ndarray) -> np.ndarray:
+        """T (v_liquid - v_solid) dp/dT at the triple point T (NaN without the solid's volume)."""
+        p = self._p_melt(T) if self._melt_slope != np.inf else np.full(np.shape(T), np.nan)
+        liquid, _ = self.props(T, p, LIQUID, want=("v",))
+        with np.errstate(invalid="ignore"):
+            return T * (liquid.v - self.v_solid) * self._line_slope("melt", T)
+
+    @cached_property
+    def _sub_enthalpy(self) -> float:
+        """H_sub / dZ of the estimated line (J/mol)."""
+        tt, pt = self.triple
+        heat, dv = self._triple_sublimation()
+        return heat / (pt * dv / (R * tt))
+
+    @cached_property
+    def _sub_delta(self) -> float:
+        """d (1/K): the change of d ln p/dT that puts the published line's slope onto Clapeyron's."""
+        tt, pt = self.triple
+        heat, dv = self._triple_sublimation()
+        delta = heat / (tt * dv * pt) - float(self._published_dlnp(np.array(tt)))
+        return delta if np.isfinite(delta) else 0.0
+
+    def _published_dlnp(self, T: np.ndarray) -> np.ndarray:
+        return _derivative(lambda x: np.log(line_pressure(self._sub, x)), T, *self._sub_range)
+
+    def _sub_fade(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """w(T) and dw/dT of the published line's correction."""
+        tt = self.triple.temperature
+        y = np.clip((tt - T) / (SUB_FADE * tt), 0.0, 1.0)
+        w = 1.0 - y**3 * (10.0 - 15.0 * y + 6.0 * y * y)
+        return w, 30.0 * y * y * (1.0 - y) ** 2 / (SUB_FADE * tt)
 
     def _p_sub(self, T: np.ndarray) -> np.ndarray:
         T = np.asarray(T, float)
         tt, pt = self.triple
         if self._sub is not None:
-            return line_pressure(self._sub, T) * self._sub_scale
+            w, _ = self._sub_fade(T)
+            return line_pressure(self._sub, T) * self._sub_scale * np.exp(self._sub_delta * (T - tt) * w)
         return pt * np.exp(-self._sub_enthalpy / R * (1.0 / T - 1.0 / tt))
+
+    def _sub_dlnp(self, T: np.ndarray) -> np.ndarray:
+        """d ln p / dT of the model's sublimation line."""
+        if self._sub is None:
+            return self._sub_enthalpy / (R * T * T)
+        w, dw = self._sub_fade(T)
+        return self._published_dlnp(T) + self._sub_delta * (w + (T - self.triple.temperature) * dw)
 
     def _t_sub(self, p: np.ndarray) -> np.ndarray:
         tt, pt = self.triple
@@ -358,7 +442,7 @@ class GeneralSubstance(Substance):
     def _melt_p_range(self) -> tuple[float, float]:
         """Pressures at the ends of the melting line (fixed per substance: computed once)."""
         if self._melt_slope == np.inf:
-            return self.triple.pressure, VERTICAL_P_MAX
+            return self.triple.pressure, self._p_top
         lo, hi = self._melt_range
         a, b = float(self._p_melt(np.array(lo))), float(self._p_melt(np.array(hi)))
         return min(a, b), max(a, b)
@@ -588,14 +672,25 @@ class GeneralSubstance(Substance):
             p_m = self._p_melt(np.clip(t, lo, hi))
             sub.flag(~below & (q < p_m * (1 - LINE_TOL)), OUT_OF_RANGE, lambda tt_, qq: f"solid {self.name} at "
                      f"{fmt(tt_)} K and {fmt(qq)} Pa is above its melting temperature", t, q)
+            # the solid's potential is the fluid's on the melting line: none where that is beyond the fluid
+            sub.flag(~below & (p_m > self._p_top * (1 + LINE_TOL)), OUT_OF_RANGE, lambda tt_, pp: f"solid "
+                     f"{self.name} at {fmt(tt_)} K: its melting pressure ({fmt(pp)} Pa), where its chemical potential "
+                     f"is the fluid's, is above the fluid's range ({fmt(self._p_top)} Pa)", t, p_m)
         g = np.full(t.shape, np.nan)
+        v = np.full(t.shape, self.v_solid)
         if below.any() and self._sub_range is not None:
             p_s = self._p_sub(np.clip(t[below], *self._sub_range))
             g[below] = self._mu_vapor(t[below], p_s) + self.v_solid * (q[below] - p_s)
         if (~below).any() and self._melt_range is not None:
             p_m = self._p_melt(np.clip(t[~below], *self._melt_range))
-            g[~below] = self._mu_liquid(t[~below], p_m) + self.v_solid * (q[~below] - p_m)
-        self._store(fields, sel, r, sub, v=np.full(t.shape, self.v_solid), g=g)
+            mu_m, v[~below] = self._melt_anchor(t[~below], p_m)
+            g[~below] = mu_m + v[~below] * (q[~below] - p_m)
+        self._store(fields, sel, r, sub, v=v, g=g)
+
+    def _melt_anchor(self, T: np.ndarray, p_m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(chemical potential of the liquid, molar volume of the solid) at T on the melting line p_m:
+        here the data's constant solid volume."""
+        return self._mu_liquid(T, p_m), np.full(np.shape(T), self.v_solid)
 
     # --- quantities this model derives by the Clapeyron equation ------------------------
     def onto_line(self, boundary: str, x: np.ndarray, pressure: bool = False) -> np.ndarray:
@@ -618,19 +713,27 @@ class GeneralSubstance(Substance):
         """T * dV * dp/dT on the line, with the model's own volumes and line slope."""
         T = self.onto_line(boundary, T)
         p, phases = self.line_pressure(boundary, T)
-        step = 1e-5 * np.asarray(T, float)
-        up, _ = self.line_pressure(boundary, T + step)
-        down, _ = self.line_pressure(boundary, T - step)
-        # a step past an end gives NaN, or the end's own pressure where it lies within TYPED_T of a fixed point
-        has_up = np.isfinite(up.values) & (up.values != p.values)
-        has_down = np.isfinite(down.values) & (down.values != p.values)
-        slope = np.where(has_up & has_down, (up.values - down.values) / (2 * step),
-                         np.where(has_up, (up.values - p.values) / step, (p.values - down.values) / step))
-        low, low_result = self.props(T, p.values, phases[0])
-        high, high_result = self.props(T, p.values, phases[1])
+        low, low_result = self.props(T, p.values, phases[0], want=("v",))
+        high, high_result = self.props(T, p.values, phases[1], want=("v",))
         out = Result.joined(p, low_result, high_result)
-        out.fill(T * (high.v - low.v) * slope)
+        with np.errstate(invalid="ignore"):
+            out.fill(T * (high.v - low.v) * self._line_slope(boundary, np.asarray(T, float)))
         return out
+
+    def _line_slope(self, boundary: str, T: np.ndarray) -> np.ndarray:
+        """dp/dT of the model's own line at T: exact for the Clapeyron estimates, else by a
+        second-order difference inside the line's range."""
+        if boundary == "boil":
+            return _derivative(self._p_boil, T, self.t_low, self.tc)
+        missing = self._sub_range is None if boundary == "sublime" else self._melt is None and self._melt_slope is None
+        if missing:  # no such line (helium-4 has no triple point): line_pressure has said why
+            return np.full(np.shape(T), np.nan)
+        if boundary == "melt":
+            if self._melt is None:  # p = pt + slope ln(T/Tt)
+                return self._melt_slope / T
+            return _derivative(self._p_melt, T, *self._melt_range)
+        T = np.clip(T, *self._sub_range)
+        return self._p_sub(T) * self._sub_dlnp(T)
 
     def _no_enthalpy(self, out: Result, h: np.ndarray) -> None:
         out.flag(np.isnan(h), NOT_AVAILABLE, f"the enthalpy of {self.name} is not modelled: {_NO_CP0}")
@@ -670,7 +773,7 @@ class GeneralSubstance(Substance):
                 f"{fmt(self._boil_range[0])} K to {fmt(self._boil_range[1])} K" if self._boil_range != (self.t_low, self.tc) else "")
                 if self._boil is not None else "corresponding states (Lee-Kesler) through the normal boiling point")
         melt = ("published " + self._melt["form"] + " equation" if self._melt is not None else
-                f"triple-point temperature, taken as independent of pressure to 100 MPa (estimate; no {self._lacking()}; "
+                f"triple-point temperature, taken as independent of pressure to {fmt(self._p_top)} Pa (estimate; no {self._lacking()}; "
                 "real melting temperatures rise by about 0.1-0.3 K per MPa)"
                 if self._melt_slope == np.inf else
                 "Clapeyron equation from the triple point (estimate)" if self._melt_range else "none")

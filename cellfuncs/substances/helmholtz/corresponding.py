@@ -20,7 +20,7 @@ import numpy as np
 from ..general.definition import Definition
 from ..general.model import GeneralSubstance
 from ..result import BAD_ARGUMENT, ModelError, Result
-from .mapped import REFERENCE_FLUID, MappedEquation
+from .mapped import REFERENCE_FLUID, MappedEquation, VapourDatum
 from .saturation import Saturation
 from .substance import EquationSubstance
 
@@ -49,6 +49,18 @@ def _reference() -> tuple[EquationSubstance, Saturation]:
     return ref, Saturation(ref.equation, _REFERENCE_T_LOW, ref.boil_pressure_estimate, ref.liquid_density_guess)
 
 
+def _vapour_datum(definition: Definition, molar_mass: float) -> VapourDatum | None:
+    """The definition's saturated-vapour density or else its enthalpy of vaporization, if it has one."""
+    values, associating = definition.values, definition.associating
+    if "saturated_vapor_density" in values:
+        return VapourDatum(values["saturated_vapor_density.temperature"], values["saturated_vapor_density"] / molar_mass,
+                           None, associating)
+    if "enthalpy_of_vaporization" in values:
+        return VapourDatum(values["enthalpy_of_vaporization.temperature"], None, values["enthalpy_of_vaporization"],
+                           associating)
+    return None
+
+
 class MappedSubstance(EquationSubstance):
     """An EquationSubstance whose equation is the reference fluid's, mapped by shape factors."""
 
@@ -56,11 +68,13 @@ class MappedSubstance(EquationSubstance):
 
     def __init__(self, definition: Definition, estimate: GeneralSubstance):
         reference, table = _reference()
+        values, M = definition.values, estimate.molar_mass
+        rho_c = values.get("critical_density")
         try:
             equation = MappedEquation(
-                definition.name, estimate.name, estimate.tc, estimate.pc, estimate.molar_mass, estimate.t_low,
+                definition.name, estimate.name, estimate.tc, estimate.pc, M, estimate.t_low,
                 estimate.boil_pressure_estimate, lambda T: 1.0 / estimate.liquid.saturated(T), estimate.ideal_gas,
-                reference.equation, table)
+                reference.equation, table, None if rho_c is None else rho_c / M, _vapour_datum(definition, M))
         except ArithmeticError as e:
             raise ModelError(BAD_ARGUMENT, f"{e}: the definition's vapour-pressure line and liquid density are "
                              f"beyond what corresponding states with {REFERENCE_FLUID} can represent; check boil.*, "

@@ -77,6 +77,10 @@ class Mechanical(_Derivatives):
 class HelmholtzEquation:
     """One published Helmholtz-energy equation: reducing constants, term families, range."""
 
+    # temperatures (K) where the equation's temperature dependence is only piecewise smooth (a mapped
+    # equation's spline knots): the phase-equilibrium table puts nodes there (saturation.py)
+    knots: tuple[float, ...] = ()
+
     def __init__(self, key: str):
         raw = data.load(f"equations/{key}")
         spec = schema.read(key, raw)

@@ -9,13 +9,17 @@ It is the general model (general/model.py) with the fluid taken from the equatio
                  the spinodal, the single root above it; v, h, s, cp, alpha, kappa from the equation
   melting and    the published lines of the substance's data file, as in the general model; they
   sublimation    and the boiling line decide STABLE_PHASE as there
-  solid          constant volume from the data's solid density, its chemical potential anchored
-                 to the fluid's on the melting line (the dense fluid's above the critical
-                 temperature) and to the vapour's on the sublimation line
+  solid          the data's solid density up to the triple point; above it, on the melting line, the
+                 dense fluid's volume there times the triple point's ratio v_solid / v_liquid; its
+                 chemical potential anchored to the fluid's on the melting line (the dense fluid's
+                 above the critical temperature) and to the vapour's on the sublimation line, so the
+                 potentials agree on both lines and the Clapeyron equation holds on each
   CHEM_POTENTIAL R T ln(rho R T/p0) + R T (alphar + delta alphar_delta): relative to the ideal gas at the same
                  temperature and p0 = 101.325 kPa, the general model's reference state
   LATENT_HEAT    boiling: h'' - h' from the equation; melting and sublimation: the Clapeyron
-                 equation with the model's volumes and the lines' slopes
+                 equation with the model's volumes and the lines' slopes; at the triple point
+                 H_sub = H_fus + H_vap, the sublimation line's slope there being Clapeyron's for that
+                 sum (general/model.py, where the sublimation line is set up)
   FLASH_FRACTION an isenthalpic let-down with the equation's enthalpies; below the triple-point
                  pressure the solid-vapour split at the sublimation temperature, the solid's
                  enthalpy being the vapour's less the enthalpy of sublimation
@@ -34,13 +38,17 @@ import numpy as np
 
 from ..base import FLUID, LIQUID, VAPOR, FixedPoint
 from ..general.definition import Definition
-from ..general.model import P0, GeneralSubstance
+from ..general.model import P0, P_MAX, GeneralSubstance
 from ..phase_map import LINE_TOL
 from ..result import BAD_ARGUMENT, OUT_OF_RANGE, ModelError, Result, fmt
 from . import density, saturation
 from .equation import HelmholtzEquation
 
 
+# An equation whose stated range ends below 1.5 Tc (R-134a's, at 455 K = 1.22 Tc) is used up to 1.5 Tc,
+# as an extrapolation: there the residual part is small and smooth (R-134a's agrees with the mapped
+# propane equation at 561 K to 2.5 % in density, as it does at 455 K, with smooth heat capacities)
+_T_EXTRAPOLATED = 1.5  # times Tc
 _CRITICAL_BAND = 3e-8  # relative: closer to the critical temperature the two branches count as one
 
 
@@ -88,6 +96,15 @@ class EquationSubstance(GeneralSubstance):
 
     def _v_liquid_triple(self) -> float:
         return float(1.0 / self._rho_l_triple[0])
+
+    @property
+    def _p_top(self) -> float:
+        return max(P_MAX, self.equation.p_max)
+
+    @property
+    def t_max(self) -> float:
+        """The highest temperature of the fluid (K): the equation's, or 1.5 Tc as an extrapolation."""
+        return max(self.equation.T_max, _T_EXTRAPOLATED * self.tc)
 
     def _latent_boil(self, T: np.ndarray) -> np.ndarray:
         return self.latent_heat("boil", T).values
@@ -157,14 +174,24 @@ class EquationSubstance(GeneralSubstance):
         rho = np.where(T < self.tc, self._density(T, p, LIQUID), self._density(T, p, FLUID))
         return self._mu(T, p, rho)
 
+    def _melt_anchor(self, T: np.ndarray, p_m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(chemical potential of the dense fluid, molar volume of the solid) on the melting line. The
+        solid's volume is the dense fluid's there times the ratio v_solid / v_liquid of the triple
+        point: the solid stays the denser phase, so the enthalpy of melting stays positive, as the line
+        climbs to pressures where a solid of the triple point's volume would be the less dense phase
+        (nitrogen's fluid at 2 GPa is 30 % denser than its solid at the triple point)."""
+        T, p_m = np.broadcast_arrays(np.asarray(T, float), np.asarray(p_m, float))
+        rho = np.where(T < self.tc, self._density(T, p_m, LIQUID), self._density(T, p_m, FLUID))
+        return self._mu(T, p_m, rho), self.v_solid / (rho * self._v_liquid_triple())
+
     # --- fluid phases -------------------------------------------------------------------
     def _in_range(self, t: np.ndarray, q: np.ndarray) -> Result:
         eq = self.equation
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(q > eq.p_max * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the range of the " + eq.title
                  + f" ({fmt(eq.p_max)} Pa)", q)
-        sub.flag(t > eq.T_max * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the range of the " + eq.title
-                 + f" ({fmt(eq.T_max)} K)", t)
+        sub.flag(t > self.t_max * (1 + LINE_TOL), OUT_OF_RANGE, "{} K is above the range of the " + eq.title
+                 + f" ({fmt(self.t_max)} K)", t)
         return sub
 
     def _beyond(self, sub: Result, rho: np.ndarray, t, q, phase: str, column: str, ends: str) -> None:
@@ -250,7 +277,8 @@ class EquationSubstance(GeneralSubstance):
     def _models(self) -> dict[str, tuple[str, str]]:
         models = super()._models()
         eq = self.equation
-        span = f"{fmt(eq.T_min)} K to {fmt(eq.T_max)} K, up to {fmt(eq.p_max)} Pa"
+        span = f"{fmt(eq.T_min)} K to {fmt(self.t_max)} K, up to {fmt(eq.p_max)} Pa" + (
+            f" (above {fmt(eq.T_max)} K an extrapolation of the equation)" if self.t_max > eq.T_max else "")
         cold = (f"; below {fmt(self.t_low)} K gas up to the sublimation pressure, down to {fmt(self._sub_range[0])} K "
                 "(an extrapolation of the equation below its stated range)" if self._sub_range else "")
         models.update({
@@ -259,7 +287,7 @@ class EquationSubstance(GeneralSubstance):
                      models["boil"][1]),
             "vapor": (eq.title, span + "; metastable vapour up to the spinodal" + cold),
             "liquid": (eq.title, span + "; metastable liquid down to the spinodal, not beyond the melting line"),
-            "fluid": (eq.title, f"{fmt(self.tc)} K to {fmt(eq.T_max)} K, up to {fmt(eq.p_max)} Pa, not beyond the "
+            "fluid": (eq.title, f"{fmt(self.tc)} K to {fmt(self.t_max)} K, up to {fmt(eq.p_max)} Pa, not beyond the "
                       "melting line"),
             "chem_potential": ("R T ln(p/p0) + the equation's residual Gibbs energy, relative to the ideal gas at the "
                                "same temperature and 101.325 kPa; the solid's anchored to the fluid's on the melting "
