@@ -13,9 +13,20 @@ True
 
 from __future__ import annotations
 
-from typing import Callable
+from typing import Any, Callable
 
 import numpy as np
+
+
+def anywhere(mask: Any) -> bool:
+    """Whether any element of ``mask`` holds; a single value is read directly, without numpy's
+    reduction machinery (which costs ten times the comparison that made the mask)."""
+    return bool(mask) if getattr(mask, "size", 1) == 1 else bool(mask.any())
+
+
+def everywhere(mask: Any) -> bool:
+    """Whether every element of ``mask`` holds (an empty mask: True); a single value read directly."""
+    return bool(mask) if getattr(mask, "size", 1) == 1 else bool(mask.all())
 
 
 def solve_bracketed(
@@ -101,8 +112,7 @@ class MonotoneInverse:
         self.slope = np.gradient(x, y)  # dx/dy at the nodes
 
     def __call__(self, y: np.ndarray | float) -> np.ndarray:
-        shape = np.shape(y)
-        y = np.atleast_1d(np.asarray(y, dtype=float))  # indexable, also for one value
+        y = np.asarray(y, dtype=float)  # a single value stays 0-d: numpy's arithmetic on scalars
         inside = (y >= self.y[0]) & (y <= self.y[-1])
         with np.errstate(all="ignore"):
             x = np.interp(y, self.y, self.x)
@@ -112,7 +122,8 @@ class MonotoneInverse:
                 x = x - step
             # a kink in f (where two equations meet) can stall Newton: bracket those elements
             slow = inside & ~(np.abs(step) <= 1e-13 * np.abs(x))
-            if slow.any():
+            if anywhere(slow):
+                x, y, slow = np.array(x, ndmin=1), np.array(y, ndmin=1), np.array(slow, ndmin=1)
                 k = np.clip(np.searchsorted(self.y, y[slow]), 1, len(self.y) - 1)
                 x[slow] = solve_bracketed(lambda t: self.f(t) - y[slow], self.x[k - 1], self.x[k], xtol=1e-15)
-        return np.where(inside, x, np.nan).reshape(shape)
+        return np.where(inside, np.reshape(x, inside.shape), np.nan)

@@ -693,6 +693,22 @@ def test_a_sheet_written_with_a_namespace_prefix(tmp_path):
     assert (ws["C1"].value, ws["A3"].value) == (6.0, 400.0)
 
 
+def test_cell_tags_written_in_every_form_xml_allows_keep_their_attributes_as_written(tmp_path):
+    # XML 1.0 section 3.1: attributes in any order, each after any whitespace, in either quotes;
+    # ECMA-376 Part 1, 18.3.1.4: a cell's t says the type of its value, so only t changes with it
+    # (both section numbers from memory)
+    path = one_sheet(tmp_path, {"A1": 2.0, "B1": "=A1*3", "C1": '=A1&"x"', "D1": "=A1>1", "E1": "=A1/0"})
+    xml = (sheet(path).replace('<c r="B1">', "<c\n\tr='B1'  s=\"0\" >").replace('<c r="C1">', '<c s="0" r="C1" t="n">')
+           .replace('<c r="D1">', '<c r="D1" s="0" t="n">').replace('<c r="E1">', '<c r="E1" t="str">'))
+    rewrite(path, {"xl/worksheets/sheet1.xml": xml.encode()})
+    assert cli(str(path), "--in-place")[0] == 1  # E1 is an error cell
+    out = sheet(path)
+    assert "<c\n\tr='B1'  s=\"0\"><f>A1*3</f><v>6</v></c>" in out
+    assert '<c s="0" r="C1" t="str"><f>A1&amp;"x"</f><v>2x</v></c>' in out
+    assert '<c r="D1" s="0" t="b"><f>A1&gt;1</f><v>1</v></c>' in out
+    assert '<c r="E1" t="e"><f>A1/0</f><v>#DIV/0!</v></c>' in out
+
+
 def test_spill_cells_go_into_empty_rows_and_styled_cells(tmp_path):
     path = one_sheet(tmp_path, {"A1": '=PHASE_LINE("water","boil",300,400,4)', "D4": "beyond"}, spills=("A1",))
     xml = sheet(path).replace('<row r="4">', '<row r="2" spans="1:2"/><row r="3" spans="5:5"><c r="B3" s="0"/>'

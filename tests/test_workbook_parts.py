@@ -40,6 +40,22 @@ def test_one_shape_shares_one_template():
     assert first.batchable
 
 
+def test_copies_along_rows_and_columns_are_one_shape_and_others_are_not():
+    # a formula copied to another cell moves its relative parts by the same rows and columns
+    # and keeps its $ parts (Microsoft's "Switch between relative, absolute, and mixed references";
+    # the article's title from memory)
+    t = Templates()
+    first = t.get("=B1*1.01+$A$1+SUM(B:B)", 2, 2)
+    assert t.get("=C1*1.01+$A$1+SUM(C:C)", 2, 3) is first  # the next cell of the row
+    assert t.get("=C2*1.01+$A$1+SUM(C:C)", 3, 3) is first  # then down the column
+    assert t.get("=AA2*1.01+$A$1+SUM(AA:AA)", 3, 27) is first
+    assert t.get("=C2*1.01+$A$2+SUM(C:C)", 3, 3) is not first  # another anchored cell
+    assert t.get("=C1*1.01+$A$1+SUM(C:C)", 3, 3) is not first  # the row did not move
+    assert t.get("=c2*1.01+$A$1+SUM(C:C)", 3, 3) is first  # the letters' case is no part of a reference
+    moved = t.get("=C3*1.01+$A$1+SUM(C:C)", 3, 3)
+    assert moved.refs[0] == (None, area("C3")) and moved is not first
+
+
 def test_text_inside_strings_and_quoted_sheet_names_is_no_reference():
     t = Templates()
     a = t.get("='A1 data'!B2", 1, 3)

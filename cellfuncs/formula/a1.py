@@ -13,8 +13,9 @@ MAX_ROW = 1048576
 MAX_COL = 16384
 
 
+@lru_cache(maxsize=20000)
 def column_number(letters: str) -> int:
-    """``A`` is 1, ``AA`` 27."""
+    """``A`` is 1, ``AA`` 27 (cached: a workbook names few columns, each in many references)."""
     n = 0
     for ch in letters.upper():
         n = 26 * n + ord(ch) - 64

@@ -351,21 +351,7 @@ def _call(node: Call, context: Context) -> Value:
             if type(named) is Lambda:
                 return call_lambda(named, node.args, context)
             return CellError(NAME, f"unknown function {node.name}")
-        args = [evaluate(a, context) for a in node.args]
-        over = _charge_call(args)
-        if over is not None:
-            return over
-        try:
-            result = fn(*args)
-        except Exception as exc:  # a bug: the cell shows it instead of stopping the recalculation
-            if strict():
-                raise
-            return internal_error(exc, node.name)
-        if isinstance(result, np.ndarray) and result.ndim:
-            over = charge(result.shape)
-            if over is not None:
-                return over
-        return as_value(result)
+        return call_function(node.name, fn, [evaluate(a, context) for a in node.args])
     count = len(node.args)
     if count < spec.min_args or (spec.max_args is not None and count > spec.max_args):
         return _arity_error(node.name, spec, count)
@@ -395,6 +381,25 @@ def _call(node: Call, context: Context) -> Value:
         return CellError(NUM, f"{node.name}: the result is not a finite number")
     # a negative number to a fractional power that a built-in did not guard: no real result
     return CellError(NUM, f"{node.name}: the result is not a real number") if type(result) is complex else result
+
+
+def call_function(name: str, fn: Callable[..., Any], args: list[Value]) -> Value:
+    """Pack function ``fn`` called with evaluated arguments: its work charged, its result in
+    the value contract, an exception in it the cell's error value (raised under the strict switch)."""
+    over = _charge_call(args)
+    if over is not None:
+        return over
+    try:
+        result = fn(*args)
+    except Exception as exc:  # a bug: the cell shows it instead of stopping the recalculation
+        if strict():
+            raise
+        return internal_error(exc, name)
+    if isinstance(result, np.ndarray) and result.ndim:
+        over = charge(result.shape)
+        if over is not None:
+            return over
+    return as_value(result)
 
 
 def _charge_call(args: list) -> CellError | None:

@@ -110,6 +110,12 @@ def substance(value: Any) -> Substance:
         value = value.flat[0]
     if value is None or (isinstance(value, str) and not value.strip()):
         raise CallError(VALUE, "substance is blank")
+    # a sheet names its substance as text in every call: the model of a name is looked up once
+    return _by_name(value) if type(value) is str else _by_name.__wrapped__(value)
+
+
+@lru_cache(maxsize=256)
+def _by_name(value: Any) -> Substance:
     try:
         return lookup(value)
     except UnknownSubstance as exc:
@@ -165,6 +171,10 @@ def _defined(rows: tuple) -> Substance:
 
 def text(value: Any, name: str, default: str | None = None) -> str | None:
     """A single text argument (unit, boundary, solid); blank gives ``default``."""
+    if type(value) is str:  # the usual case, kept quick
+        return value.strip() or default
+    if value is None:
+        return default
     if isinstance(value, (list, tuple, np.ndarray)) and not isinstance(value, CellError):
         value = as_array(value)
         if value.size != 1:
@@ -239,8 +249,9 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "",
     """
     if type(value) is float or type(value) is int:  # the common scalar case, kept quick
         value = _float(value)
-        if math.isfinite(value) and (not absolute or unit_.to_si(value) > 0):
-            return Arg(np.array(unit_.to_si(value)), None, said)
+        si = unit_.to_si(value)
+        if math.isfinite(value) and (not absolute or si > 0):
+            return Arg(np.array(si), None, said)
     array = as_array(value)
     if array.dtype.kind in "fiu":
         numbers = array.astype(float)
@@ -329,6 +340,9 @@ def phases(value: Any, name: str, sub: Substance) -> Arg:
 
 def shape_of(*args: Arg) -> tuple[int, ...]:
     """The broadcast shape of the arguments, or a CallError naming the shapes."""
+    shapes = {np.shape(a.si) for a in args}
+    if len(shapes) == 1:  # one shape (single cells, or ranges alike): nothing to broadcast
+        return shapes.pop()
     try:
         return np.broadcast_shapes(*(np.shape(a.si) for a in args))
     except ValueError:

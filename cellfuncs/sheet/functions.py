@@ -19,6 +19,7 @@ from .. import units
 from ..errors import NA, VALUE, CellError
 from ..substances import names
 from ..substances.base import SATURATED_LIQUID, SATURATED_VAPOR, SOLID, Substance, boundary_code
+from ..numerics import anywhere
 from ..substances.result import Result
 from . import cells
 from .cells import Arg, CallError, model_call
@@ -211,8 +212,8 @@ def _phase_state(sub: Substance, temperature, pressure, phase, t_unit, p_unit,
     """Temperature, pressure and phase of a state: a saturated phase needs only one of the two."""
     ph = cells.phases(phase, names[2], sub)
     t, p = _temperature(sub, temperature, t_unit, names[0]), _pressure(sub, pressure, p_unit, names[1])
-    saturated = np.isin(ph.si, (SATURATED_LIQUID, SATURATED_VAPOR))
-    if saturated.any():
+    saturated = (ph.si == SATURATED_LIQUID) | (ph.si == SATURATED_VAPOR)
+    if anywhere(saturated):
         t, p = cells.blank_allowed(t, saturated, names[0]), cells.blank_allowed(p, saturated, names[1])
     cells.shape_of(t, p, ph)
     return t, p, ph

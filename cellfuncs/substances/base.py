@@ -17,7 +17,8 @@ import numpy as np
 
 from .line_ends import LINE_TOL, TYPED_P, onto_ends
 from .props import Props
-from .result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
+from ..numerics import anywhere
+from .result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, broadcast, empty_like, fmt
 
 # Phase codes. Solids count up from SOLID: SOLID + k is the substance's k-th solid.
 STABLE = 0  # "the stable phase at this state"
@@ -141,12 +142,12 @@ class Substance:
         ``want`` names the fields the caller needs; a model may leave the others NaN
         when they cost extra work (None: all of them).
         """
-        T, p, phase = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
-        r = Result(np.full(T.shape, np.nan))
-        if ((phase == SATURATED_LIQUID) | (phase == SATURATED_VAPOR)).any():
+        T, p, phase = broadcast(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
+        r = Result(empty_like(T.shape))
+        if anywhere((phase == SATURATED_LIQUID) | (phase == SATURATED_VAPOR)):
             T, p, phase = self._saturated(T, p, phase, r)
         blank = phase == STABLE
-        if blank.any():
+        if anywhere(blank):
             state = self._classify(T, p)
             codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
             if state.problems is not None:
@@ -161,18 +162,21 @@ class Substance:
                + f"{self.name} ({tc:.6g} K): ask for liquid or vapor", T)
         self._unmodelled(r, phase, blank)
         fields = Fields(want)  # filled by the phase methods through _put
-        ok = np.broadcast_to(r.ok, T.shape)
         methods = self._phase_methods()
         # one phase for every element, all still unflagged: the usual single-cell case
-        one = int(phase.flat[0]) if phase.size and r.problems is None and (phase == phase.flat[0]).all() else None
+        one = int(phase.flat[0]) if phase.size and r.problems is None and (
+            phase.size == 1 or (phase == phase.flat[0]).all()) else None
         if one is not None and one in methods:
-            methods[one](T.reshape(-1), p.reshape(-1), np.ones(T.shape, bool), r, fields)
+            # a single value stays 0-d: its arithmetic is numpy's on scalars, without arrays
+            flat = T.ndim > 0
+            methods[one](T.reshape(-1) if flat else T, p.reshape(-1) if flat else p, np.ones(T.shape, bool), r, fields)
         elif one is None:
+            ok = np.broadcast_to(r.ok, T.shape)
             for code in np.unique(phase[ok]):
                 if int(code) in methods:
                     sel = (phase == code) & ok
                     methods[int(code)](T[sel], p[sel], sel, r, fields)
-        missing = np.full(T.shape, np.nan)
+        missing = empty_like(T.shape)
         return Props(**{name: fields.get(name, missing) for name in Props._fields}), r
 
     def _saturated(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray, r: Result):
@@ -186,7 +190,7 @@ class Substance:
         r.flag(sat & np.isnan(T) & np.isnan(p), BAD_ARGUMENT,
                "a saturated state needs its temperature or its pressure")
         T, p = T.copy(), p.copy()
-        if by_t.any():
+        if anywhere(by_t):
             T[by_t] = self.onto_line("boil", T[by_t])
             line = self.boil_pressure(T[by_t])
             self._report(r, by_t, line)
@@ -198,7 +202,7 @@ class Substance:
                      "of a saturated state, not both", T[by_t], given, line.values)
             self._report(r, by_t, sub)
             p[by_t] = line.values
-        if by_p.any():
+        if anywhere(by_p):
             p[by_p] = self.onto_line("boil", p[by_p], pressure=True)
             line = self.boil_temperature(p[by_p])
             self._report(r, by_p, line)
@@ -209,7 +213,7 @@ class Substance:
     @staticmethod
     def _put(fields: dict, sel: np.ndarray, part, values: dict) -> None:
         """Store values of the elements ``part`` of the selection ``sel`` in the full-shape fields."""
-        index = np.flatnonzero(sel)[part]
+        index = np.flatnonzero(sel)[part if type(part) is slice else np.reshape(part, -1)]  # a 0-d mask too
         whole = index.size == sel.size  # every element: take the arrays as they are
         for name, value in values.items():
             if whole and np.size(value) == sel.size:
@@ -358,9 +362,9 @@ class Substance:
         pt = self.triple.pressure
         snow = p2 < pt * (1 - LINE_TOL) if np.isfinite(pt) else np.zeros(p2.shape, bool)
         x = np.full(p2.shape, np.nan)
-        if (~snow).any():
+        if anywhere(~snow):
             x[~snow] = self._split(out, ~snow, liquid.h, p2, "boil", LIQUID)
-        if snow.any():
+        if anywhere(snow):
             x[snow] = self._split(out, snow, liquid.h, p2, "sublime", SOLID)
         out.fill(np.clip(x, 0.0, 1.0))
         return out

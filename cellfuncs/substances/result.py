@@ -17,6 +17,8 @@ from typing import Any, Callable, NamedTuple
 
 import numpy as np
 
+from ..numerics import anywhere
+
 # Problem kinds. The sheet layer maps them to #NUM!, #N/A and #VALUE!.
 OUT_OF_RANGE = "out_of_range"  # a state outside the formulation's validity range
 NOT_AVAILABLE = "not_available"  # no formulation or data for this quantity
@@ -40,6 +42,25 @@ class ModelError(Exception):
 def fmt(x: Any) -> str:
     """A number as people write it in messages: 6 significant digits."""
     return f"{float(x):.6g}"
+
+
+def empty_like(shape: tuple[int, ...], dtype: Any = float) -> np.ndarray:
+    """An array of NaN (None for an object dtype) of ``shape``; a single value built directly."""
+    blank = np.nan if dtype is float else None
+    if shape == ():
+        return np.array(blank, dtype=dtype)
+    return np.full(shape, blank, dtype=dtype)
+
+
+def broadcast(*arrays: Any) -> tuple[np.ndarray, ...]:
+    """The arrays broadcast against each other (float unless they are arrays already); arrays of one
+    shape, single values among them, are returned as they are."""
+    arrays = [a if type(a) is np.ndarray else np.asarray(a, dtype=float) for a in arrays]
+    shape = arrays[0].shape
+    for a in arrays:
+        if a.shape != shape:
+            return np.broadcast_arrays(*arrays)
+    return tuple(arrays)
 
 
 def indices(mask: np.ndarray):
@@ -69,9 +90,7 @@ class Result:
 
     @classmethod
     def like(cls, template: np.ndarray, dtype: Any = float) -> "Result":
-        shape = np.shape(template)
-        values = np.full(shape, np.nan) if dtype is float else np.full(shape, None, dtype=object)
-        return cls(values)
+        return cls(empty_like(np.shape(template), float if dtype is float else object))
 
     @property
     def ok(self) -> np.ndarray | bool:
@@ -86,7 +105,7 @@ class Result:
         ``reason`` is a message or a format string filled, element by element, with
         the matching elements of ``data`` (arrays broadcast to the result's shape).
         """
-        if not (mask.any() if type(mask) is np.ndarray else mask):  # the usual case, kept cheap
+        if not anywhere(mask):  # the usual case, kept cheap
             return
         mask = np.broadcast_to(mask, self.values.shape)
         if self.problems is None:

@@ -1,9 +1,10 @@
 """Recalculation: every formula cell evaluated in dependency order, spills placed.
 
-Cells of one formula shape that stand one below the other in a column are evaluated
-as one call on whole columns when the formula acts element by element (the pack's
-functions broadcast); an element that comes out as an error is evaluated again on its
-own, so its value and reason are exactly a single cell's.
+Cells of one formula shape side by side (a row, a column or a rectangle of them) are
+evaluated as one block when the formula acts cell by cell (the operators, the built-ins of
+:data:`..formula.batch.BATCHED`, the pack's functions, which broadcast) and no cell of the
+block reads another (:meth:`Recalc._pieces`); an element that comes out as an error is
+evaluated again on its own, so its value and reason are exactly a single cell's.
 
 Decisions:
 
@@ -44,6 +45,7 @@ import numpy as np
 
 from ..errors import CALC, NA, NAME, REF, SPILL, CellError
 from ..formula import Binary, Call, Ref, Value, value_of, walk
+from ..formula.batch import Declined, evaluate_block
 from ..formula.evaluate import anchored, reference_of
 from ..formula.nodes import Areas
 from ..formula.budget import active, charge
@@ -64,6 +66,9 @@ MAX_PASSES = 4
 RESOLVED_LOOP_CELLS = 1000  # larger loops of written references are taken as circular without a try
 RESOLVED_DEPTH = 40  # cells of a loop waiting for one another at once; deeper is taken as circular
 KEPT_BLOCK_CELLS = 4_194_304  # ranges read are kept for reuse up to this many cells (32 MiB of references)
+BATCH_CELLS = 65_536  # cells evaluated as one block at most: arrays far below the limit of one array
+# How a block of cells of one shape is cut into units, coarsest first (see Recalc._pieces)
+_RECTANGLE, _COLUMNS, _ROWS, _SINGLE = range(4)
 _PREFIXES = ("_XLUDF.", "_XLFN.", "_XLWS.")
 
 
@@ -212,6 +217,11 @@ class _Context:
         s, a = found
         return formula_at(self.engine.book.sheets[s].scan, self.engine.shared_firsts.get(s, {}), a.r1, a.c1)
 
+    def pivot_table(self, sheet: str | None, ref: str) -> object:
+        """The pivot table a reference meets (GETPIVOTDATA); None if it meets none."""
+        found = self._area(sheet, ref)
+        return found if type(found) is CellError else self.engine.book.pivot_at(*found)
+
     def name_reference(self, text: str) -> Ref | Areas | CellError | None:
         """The reference a defined name stands for when it is one reference (``=Data!$A$1:$A$9``)
         or a union of references (``=Data!$A$1:$A$9,Data!$C$1``)."""
@@ -335,34 +345,49 @@ class _NameContext(_Context):
         return value
 
 
-class _Column(_Context):
-    """The view from ``n`` cells of one column at once: a relative reference gives the
-    n x 1 column of values the cells would each see (numbers as a float array)."""
+class _Block(_Context):
+    """The view from the ``h`` x ``w`` cells of a block at once (its first cell ``dr``, ``dc``
+    from its template's cell): a relative reference gives the block of values the cells would
+    each see, as a float array when they are all finite numbers (see :mod:`..formula.batch`)."""
 
-    n = 1
+    h = w = 1
 
     def reference(self, sheet: str | None, ref: str) -> Value:
+        if sheet is not None and sheet.startswith("["):
+            raise Declined  # another workbook's values, which each cell reads through its link
         s = self.engine.sheet_number(sheet, self.sheet)
         if type(s) is CellError:
             return s
         a = area(ref)
         fixed_row, fixed_col = a.fixed[0], a.fixed[1]
-        col = a.c1 if fixed_col else a.c1 + self.dc
         get = self.engine.values[s].get
-        if fixed_row:
-            return get((a.r1, col))
-        over = charge((self.n, 1))
+        h, w = self.h, self.w
+        if (fixed_row or h == 1) and (fixed_col or w == 1):  # one cell that every cell of the block reads
+            return get((a.r1 if fixed_row else a.r1 + self.dr, a.c1 if fixed_col else a.c1 + self.dc))
+        over = charge((h, w))
         if over is not None:
             return over
-        start = a.r1 + self.dr
-        column = [get((r, col)) for r in range(start, start + self.n)]
-        for x in column:
-            if type(x) is not float:
-                out = np.empty((self.n, 1), dtype=object)
-                for i, x in enumerate(column):
-                    out[i, 0] = x
-                return out
-        return np.array(column, dtype=float).reshape(self.n, 1)
+        rows = [a.r1] * h if fixed_row else range(a.r1 + self.dr, a.r1 + self.dr + h)
+        cols = [a.c1] * w if fixed_col else range(a.c1 + self.dc, a.c1 + self.dc + w)
+        cells = [get((r, c)) for r in rows for c in cols]
+        if all(type(x) is float for x in cells):
+            numbers = np.array(cells).reshape(h, w)
+            if np.isfinite(numbers).all():
+                return numbers
+        # fromiter keeps each value as it is (a CellError is not unpacked)
+        return np.fromiter(cells, dtype=object, count=h * w).reshape(h, w)
+
+
+def _partition(level: int, r1: int, c1: int, h: int, w: int) -> list[tuple[int, int, int, int]]:
+    """The parts (first row, first column, rows, columns) of the h x w rectangle at (r1, c1)
+    as partition ``level`` cuts it."""
+    if level == _RECTANGLE:
+        return [(r1, c1, h, w)]
+    if level == _COLUMNS:
+        return [(r1, c1 + j, h, 1) for j in range(w)]
+    if level == _ROWS:
+        return [(r1 + i, c1, 1, w) for i in range(h)]
+    return [(r, c, 1, 1) for r in range(r1, r1 + h) for c in range(c1, c1 + w)]
 
 
 def _legacy_fill(value: Value, shape: tuple[int, int]) -> np.ndarray:
@@ -390,6 +415,8 @@ def _stored_range(f: FormulaXml, row: int, col: int) -> Area:
 class Recalc:
     """Recalculation of one workbook: :meth:`run` fills :attr:`values` (per sheet,
     (row, column) -> value), :attr:`result` (per formula cell) and :attr:`spills`."""
+
+    batched = True  # False: every formula cell evaluated on its own (what the blocks must equal)
 
     def __init__(self, book: Book, functions: Mapping[str, Callable[..., Any]],
                  progress: Callable[[int, int], None] | None = None, limits: Limits = DEFAULTS):
@@ -432,49 +459,57 @@ class Recalc:
     def _load(self) -> None:
         dynamic = self.book.dynamic_cm
         declared = [0]  # cells of the stored array ranges so far, over all sheets
+        cells, template_of, tables = self.cells, self.templates.get, self.tables
         for sheet in self.book.sheets:
             scan = sheet.scan
             if scan is None:
                 continue
             s = sheet.index
+            at, stored, constants = self.at[s], self.stored[s], self.constants[s]
             arrays = self._array_ranges(sheet, declared)
             masters = self.shared_firsts[s] = {
                 f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
-            for (row, col), f in scan.formulas.items():
-                if f.kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
-                    if f.cached is not None:
-                        self.constants[s][(row, col)] = f.cached
+            for key, f in scan.formulas.items():
+                kind = f.kind
+                text, base = f.text, key
+                if kind != "normal":
+                    if kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
+                        if f.cached is not None:
+                            constants[key] = f.cached
+                        continue
+                    if kind == "shared" and not text:  # the other cells take the first cell's text, moved
+                        base = masters.get(f.si)
+                        text = scan.formulas[base].text if base is not None else None
+                elif not text and arrays.at(*key) not in (None, key):
+                    stored[key] = f.cached  # Excel's <f ca="1"/> in a volatile array's range
                     continue
-                if f.kind == "normal" and not f.text and arrays.at(row, col) not in (None, (row, col)):
-                    self.stored[s][(row, col)] = f.cached  # Excel's <f ca="1"/> in a volatile array's range
-                    continue
-                text, base = f.text, (row, col)
-                if f.kind == "shared" and not f.text:
-                    base = masters.get(f.si)
-                    text = scan.formulas[base].text if base is not None else None
                 if text is None:
                     template = Template(None, CellError(REF, "a shared formula whose first cell is missing"),
-                                        row, col, (), (), False)
-                else:  # a shared formula's other cells take the first cell's text, moved
-                    if self.tables.mentioned(text):
-                        text = self.tables.translate(text, s, *base)
-                    template = self.templates.get(text, *base)
+                                        *key, (), (), False)
+                else:
+                    if tables.mentioned(text):
+                        text = tables.translate(text, s, *base)
+                    template = template_of(text, *base)
                 old = None
-                kind = "normal"
-                if f.kind == "array":
-                    old = _stored_range(f, row, col)
+                if kind == "array":
+                    old = _stored_range(f, *key)
                     kind = "dynamic" if dynamic is not None and f.cm == dynamic else "legacy"
                     if kind == "legacy":
-                        self.legacy[s].add(old, (row, col))
+                        self.legacy[s].add(old, key)
                         self.legacy_cells += old.shape[0] * old.shape[1]
-                self.at[s][(row, col)] = len(self.cells)
-                self.cells.append(FormulaCell(s, row, col, template, kind, old))
+                else:
+                    kind = "normal"
+                at[key] = len(cells)
+                cells.append(FormulaCell(s, key[0], key[1], template, kind, old))
             self.legacy[s].freeze()
+            if not arrays:  # no stored array ranges: every value cell that holds no formula is a constant
+                constants.update((key, v) for key, v in scan.values.items() if key not in at)
+                continue
             for key, v in scan.values.items():
                 if arrays.at(*key) is not None:
-                    self.stored[s][key] = v
-                elif key not in self.at[s]:
-                    self.constants[s][key] = v
+                    stored[key] = v
+                elif key not in at:
+                    constants[key] = v
 
     def _array_ranges(self, sheet: Sheet, declared: list[int]) -> AreaIndex:
         """The stored ranges of a sheet's array formulas (item: the anchor cell), counted against
@@ -501,13 +536,17 @@ class Recalc:
     def _column_index(self) -> list[dict[int, tuple[list[int], list[int]]]]:
         index: list[dict] = [{} for _ in self.book.sheets]
         for fi, fc in enumerate(self.cells):
-            rows, fis = index[fc.sheet].setdefault(fc.col, ([], []))
-            rows.append(fc.row)
-            fis.append(fi)
+            cols = index[fc.sheet]
+            entry = cols.get(fc.col)
+            if entry is None:
+                entry = cols[fc.col] = ([], [])
+            entry[0].append(fc.row)
+            entry[1].append(fi)
         for cols in index:
             for col, (rows, fis) in cols.items():
-                order = sorted(range(len(rows)), key=rows.__getitem__)
-                cols[col] = ([rows[k] for k in order], [fis[k] for k in order])
+                if rows != sorted(rows):  # cells come in the sheet's order: their rows are usually in order
+                    order = sorted(range(len(rows)), key=rows.__getitem__)
+                    cols[col] = ([rows[k] for k in order], [fis[k] for k in order])
         return index
 
     # ---- names and sheets ------------------------------------------------------------
@@ -669,44 +708,104 @@ class Recalc:
         return np.fromiter(cells, dtype=object, count=h * w).reshape(h, w)
 
     # ---- the dependency graph --------------------------------------------------------
-    def _units(self, dissolved: set[int]) -> list[tuple[int, ...]]:
-        """Formula cells grouped: runs of one batchable shape down a column, else single cells."""
-        units: list[tuple[int, ...]] = []
+    def _units(self, floors: dict[int, int]) -> tuple[list[tuple[int, ...]], list[int]]:
+        """Formula cells grouped, each group's cells row by row: blocks of one batchable shape
+        (see :meth:`_pieces`), else single cells; and the partition each group comes from.
+        ``floors``: the coarsest partition a cell may still take (see :meth:`_graph`)."""
         cells = self.cells
+        if not self.batched:
+            return [(fi,) for fi in range(len(cells))], [_SINGLE] * len(cells)
+        units: list[tuple[int, ...]] = []
+        levels: list[int] = []
+        for s, cols in enumerate(self._columns):
+            # runs down a column of one shape and floor, by (template, floor, first row, last row)
+            runs: dict[tuple[int, int, int, int], list[tuple[int, list[int]]]] = {}
 
-        def flush(run: list[int]) -> None:
-            if len(run) > 1 and self._in_bounds(run):
-                units.append(tuple(run))
-            else:
-                units.extend((fi,) for fi in run)
+            def close(run: list[int], t: Template, floor: int, top: int, bottom: int, col: int) -> None:
+                key = (id(t), floor, top, bottom)
+                found = runs.get(key)
+                if found is None:
+                    runs[key] = [(col, run)]
+                else:
+                    found.append((col, run))
 
-        for cols in self._columns:
-            for rows, fis in cols.values():
-                run: list[int] = []
+            for col, (rows, fis) in cols.items():
+                run: list[int] | None = None
+                t = top = last = floor = None
                 for row, fi in zip(rows, fis):
                     fc = cells[fi]
-                    ok = fc.template.batchable and fc.kind == "normal" and fi not in dissolved
-                    if ok and run and cells[run[-1]].row == row - 1 and cells[run[-1]].template is fc.template:
+                    here = floors.get(fi, _RECTANGLE) if floors else _RECTANGLE
+                    if run is not None and fc.template is t and row == last + 1 and here == floor \
+                            and fc.kind == "normal":
                         run.append(fi)
+                        last = row
                         continue
-                    flush(run)
-                    run = [fi] if ok else []
-                    if not ok:
+                    if run is not None:
+                        close(run, t, floor, top, last, col)
+                    if fc.template.batchable and fc.kind == "normal" and here < _SINGLE:
+                        run, t, top, last, floor = [fi], fc.template, row, row, here
+                    else:
+                        run = None
                         units.append((fi,))
-                flush(run)
-        return units
+                        levels.append(_SINGLE)
+                if run is not None:
+                    close(run, t, floor, top, last, col)
+            for (_, floor, _, _), found in runs.items():
+                found.sort(key=lambda entry: entry[0])
+                begin = 0
+                for k in range(1, len(found) + 1):  # side by side: one rectangle
+                    if k == len(found) or found[k][0] != found[k - 1][0] + 1 or floor == _COLUMNS:
+                        self._pieces(s, floor, [run for _, run in found[begin:k]], units, levels)
+                        begin = k
+        return units, levels
 
-    def _in_bounds(self, run: list[int]) -> bool:
-        first, last = self.cells[run[0]], self.cells[run[-1]]
-        t = first.template
-        for _, a in t.refs:
-            for fc in (first, last):
-                if shifted(a, fc.row - t.row, fc.col - t.col) is None:
-                    return False
-        return True
+    def _pieces(self, s: int, floor: int, columns: list[list[int]], units: list[tuple[int, ...]],
+                levels: list[int]) -> None:
+        """Cut a rectangle of cells of one shape (its columns side by side, each top to bottom)
+        into units: the whole, else its columns, else its rows, else single cells, from ``floor``
+        on, the first partition in which no part reads a cell of itself or off the sheet (such a
+        part's cells depend on one another: evaluated at once, one would see another's old
+        value). Parts larger than :data:`BATCH_CELLS` are cut into bands of rows."""
+        h, w = len(columns[0]), len(columns)
+        if h * w == 1:
+            units.append((columns[0][0],))
+            levels.append(_SINGLE)
+            return
+        first = self.cells[columns[0][0]]
+        r1, c1 = first.row, first.col
+        level = floor
+        while level < _SINGLE:
+            parts = _partition(level, r1, c1, h, w)
+            if not any(ph * pw > 1 and self._reads_itself(s, first.template, Area(r, c, r + ph - 1, c + pw - 1))
+                       for r, c, ph, pw in parts):
+                break
+            level += 1
+        else:
+            parts = _partition(_SINGLE, r1, c1, h, w)
+        for r, c, ph, pw in parts:
+            band = max(1, BATCH_CELLS // pw)
+            for top in range(r, r + ph, band):
+                units.append(tuple(columns[c - c1 + j][i - r1] for i in range(top, min(top + band, r + ph))
+                                   for j in range(pw)))
+                levels.append(level)
+
+    def _reads_itself(self, s: int, t: Template, block: Area) -> bool:
+        """Whether a cell of ``block`` (cells of template ``t`` on sheet ``s``) reads a cell of the
+        block, or a cell off the sheet."""
+        dr, dc = block.r1 - t.row, block.c1 - t.col
+        h, w = block.shape
+        for name, a in t.refs:
+            top, bottom = shifted(a, dr, dc), shifted(a, dr + h - 1, dc + w - 1)
+            if top is None or bottom is None:
+                return True
+            sheets = self.sheet_numbers(name, s)
+            read = Area(min(top.r1, bottom.r1), min(top.c1, bottom.c1), max(top.r2, bottom.r2), max(top.c2, bottom.c2))
+            if type(sheets) is list and s in sheets and read.meets(block):
+                return True
+        return False
 
     def _targets(self, unit: tuple[int, ...]) -> Iterator[tuple[int, Area]]:
-        """(sheet, area) of every reference of a unit (a column group: from its top to its bottom)."""
+        """(sheet, area) of every reference of a unit (a block: from its first cell to its last)."""
         first, last = self.cells[unit[0]], self.cells[unit[-1]]
         t = first.template
         for name, a in t.refs:
@@ -727,9 +826,9 @@ class Recalc:
             spills[self.cells[fi].sheet].add(a, fi)
         for index in spills:
             index.freeze()  # stored ranges were checked on reading; placed spills never overlap
-        dissolved: set[int] = set()
+        floors: dict[int, int] = {}
         while True:
-            units = self._units(dissolved)
+            units, levels = self._units(floors)
             unit_of = [0] * len(self.cells)
             for u, members in enumerate(units):
                 for fi in members:
@@ -794,11 +893,13 @@ class Recalc:
                     refer_names(t.names, sheet, needs)
                 graph.adj.append(sorted(needs))
             graph.comps.extend(components(graph.adj))
-            looped = {fi for comp in graph.comps if len(comp) > 1 or comp[0] in graph.adj[comp[0]]
-                      for u in comp if u < len(units) and len(units[u]) > 1 for fi in units[u]}
+            looped = [u for comp in graph.comps if len(comp) > 1 or comp[0] in graph.adj[comp[0]]
+                      for u in comp if u < len(units) and len(units[u]) > 1]
             if not looped:
                 return graph
-            dissolved |= looped  # a column evaluated at once cannot be part of a loop: take it cell by cell
+            for u in looped:  # a block evaluated at once cannot be part of a loop: cut it finer
+                for fi in units[u]:
+                    floors[fi] = max(floors.get(fi, _RECTANGLE), levels[u] + 1)
 
     def _formulas_in(self, s: int, a: Area, unit_of: list[int], needs: set[int], links: _Links) -> None:
         """Add the units of the formula cells in area ``a`` of sheet ``s``."""
@@ -810,8 +911,7 @@ class Recalc:
         for rows, fis in candidates:
             lo, hi = bisect.bisect_left(rows, a.r1), bisect.bisect_right(rows, a.r2)
             links.spend(hi - lo)  # counted before they are visited
-            for k in range(lo, hi):
-                needs.add(unit_of[fis[k]])
+            needs.update(map(unit_of.__getitem__, fis[lo:hi]))
 
     # ---- evaluation --------------------------------------------------------------------
     def run(self) -> None:
@@ -857,8 +957,15 @@ class Recalc:
     def graph(self) -> tuple[list[tuple[int, ...]], list[list[int]], list[list[int]]]:
         """(units, the units each needs, components) of the last pass, for tools that trace
         results back: what a unit needs through ranges and names is listed as the units
-        behind them, so every node of this view is a unit."""
+        behind them, so every node of this view is a unit. Blocks evaluated at once are
+        traced cell by cell: each formula cell is a unit of its own."""
         graph = self._graph_used
+        if any(len(members) > 1 for members in graph.units):
+            batched, self.batched = self.batched, False  # the same order constraints, between single cells
+            try:
+                graph = self._graph(dict(self.spills))
+            finally:
+                self.batched = batched
         n = len(graph.units)
         needs = []
         for u in range(n):
@@ -878,7 +985,7 @@ class Recalc:
         self._graph_used = graph  # the order the results come from (see :attr:`graph`)
         self._reset(assumed)
         self._context = _Context(self)
-        self._column = _Column(self)
+        self._block = _Block(self)
         units, adj = graph.units, graph.adj
         done, total, step = 0, len(self.cells), 0
         with active(self.budget), date_system(self.book.date1904):
@@ -1059,32 +1166,37 @@ class Recalc:
         self._store(fi, value)
 
     def _group(self, members: tuple[int, ...]) -> None:
-        first = self.cells[members[0]]
+        """The cells of a block (row by row) evaluated at once; a cell whose value comes out as an
+        error is evaluated again on its own, so that its value and reason are exactly a single cell's."""
+        cells = self.cells
+        first, last = cells[members[0]], cells[members[-1]]
         t = first.template
-        ctx = self._column
-        n = len(members)
-        ctx.sheet, ctx.dr, ctx.dc, ctx.n = first.sheet, first.row - t.row, first.col - t.col, n
-        self.budget.start(n)
-        v = value_of(t.ast, ctx)
-        if type(v) is np.ndarray:
-            if v.shape != (n, 1):
-                column = None
-            else:
-                column = v[:, 0].tolist()
-        else:
-            column = None if type(v) is CellError else [v] * n
-        if column is None:
+        shape = (last.row - first.row + 1, last.col - first.col + 1)
+        ctx = self._block
+        ctx.sheet, ctx.dr, ctx.dc, (ctx.h, ctx.w) = first.sheet, first.row - t.row, first.col - t.col, shape
+        ctx.row, ctx.col = first.row, first.col
+        self.budget.start(len(members))
+        v = evaluate_block(t.ast, ctx, shape)
+        if type(v) is np.ndarray and v.shape == shape:
+            lanes = v.ravel().tolist()
+        elif v is None or type(v) is CellError or type(v) is np.ndarray:  # every cell on its own
             for fi in members:
                 self._cell(fi)
             return
-        values = self.values[first.sheet]
-        result = self.result
-        col = first.col
-        for fi, x, row in zip(members, column, range(first.row, first.row + n)):
+        else:
+            lanes = [v] * len(members)
+        values, result = self.values[first.sheet], self.result
+        keys = [(r, c) for r in range(first.row, last.row + 1) for c in range(first.col, last.col + 1)]
+        if type(v) is np.ndarray and v.dtype == float:  # numbers only: every lane stands as it is
+            values.update(zip(keys, lanes))
+            for fi, x in zip(members, lanes):
+                result[fi] = x
+            return
+        for fi, key, x in zip(members, keys, lanes):
             if type(x) is CellError or type(x) is np.ndarray:
                 self._cell(fi)  # exactly what the cell alone gives, reason included
             else:
-                values[(row, col)] = result[fi] = 0.0 if x is None else x
+                values[key] = result[fi] = 0.0 if x is None else x
 
     def _store(self, fi: int, v: Value) -> None:
         fc = self.cells[fi]

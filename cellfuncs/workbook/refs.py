@@ -21,6 +21,8 @@ from ..formula.a1 import MAX_COL, MAX_ROW, column_letters, column_number
 __all__ = ["MAX_COL", "MAX_ROW", "Area", "address", "area", "column_letters", "column_number", "shifted"]
 
 _CELL = r"(\$?)([A-Za-z]{1,3})(\$?)([0-9]{1,7})"
+# a sheet's cells number in the millions, each read once: so a cell is read by its own pattern, not cached
+_ONE_CELL = re.compile(r"\$?([A-Za-z]{1,3})\$?([0-9]{1,7})\Z")
 _AREA = re.compile(
     rf"{_CELL}(?::{_CELL})?\Z|(\$?)([A-Za-z]{{1,3}}):(\$?)([A-Za-z]{{1,3}})\Z|(\$?)([0-9]{{1,7}}):(\$?)([0-9]{{1,7}})\Z"
 )
@@ -122,12 +124,15 @@ def shifted(a: Area, dr: int, dc: int) -> Area | None:
     return Area(r1, c1, r2, c2, (fr1, fc1, fr2, fc2))
 
 
-@lru_cache(maxsize=65536)
 def cell(ref: str) -> tuple[int, int] | None:
     """(row, column) of a single-cell ``ref`` such as ``B3``, None otherwise.
 
-    >>> cell("B3"), cell("B3:C4")
-    ((3, 2), None)
+    >>> cell("B3"), cell("B3:C4"), cell("$B$3:B3"), cell("XFE1")
+    ((3, 2), None, (3, 2), None)
     """
-    a = area(ref)
-    return (a.r1, a.c1) if a is not None and a.single else None
+    m = _ONE_CELL.match(ref)
+    if m is None:  # a range, perhaps of one cell
+        a = area(ref)
+        return (a.r1, a.c1) if a is not None and a.single else None
+    row, col = int(m.group(2)), column_number(m.group(1))
+    return (row, col) if 1 <= row <= MAX_ROW and col <= MAX_COL else None

@@ -22,12 +22,14 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
+from typing import NamedTuple
 
 from ..errors import NAME, REF, CellError
 from ..formula import BUILTINS, Array, Call, FormulaSyntaxError, Name, Node, Ref, parse, walk
+from ..formula.batch import BATCHED
 from ..formula.nodes import children
 from ..formula.budget import MAX_FORMULA_TEXT
-from .refs import MAX_COL, MAX_ROW, Area, area, column_number
+from .refs import MAX_COL, MAX_ROW, Area, area, column_letters, column_number
 
 # A bracket ends at the next "[" too: a text of many unclosed "[" is then scanned once, not once per "["
 _OPAQUE = re.compile(r'"(?:[^"]|"")*"|\'(?:[^\']|\'\')*\'|\[[^\[\]]*\]')
@@ -38,15 +40,13 @@ _REFLIKE = re.compile(
     rf"|{_BEFORE}(\$?)([A-Za-z]{{1,3}}):(\$?)([A-Za-z]{{1,3}}){_AFTER}"
     rf"|{_BEFORE}(\$?)([0-9]{{1,7}}):(\$?)([0-9]{{1,7}}){_AFTER}"
 )
+# a reference token's first part, and its last part (each with its "$"): a cell's column and row, a range's ends
+_PART = re.compile(r"(\$?)([A-Za-z]+|[0-9]+)(.*)\Z", re.S)
+_PART_END = re.compile(r"(\$?)([A-Za-z]+|[0-9]+)\Z")
 _EXTERNAL = re.compile(r"'[^'\[]*\[[^\[\]]*\](?:[^']|'')*'!|\[[^\[\]]*\][^'!\s(),+\-*/&=<>^;\[]*!")
 
 # Texts longer than this cannot parse (Excel's limit, with room for the file format's function prefixes)
 _LONGEST = 2 * MAX_FORMULA_TEXT
-
-# Built-ins that act element by element on every argument, so a column of cells may be
-# evaluated as one call on whole columns. Error-catching functions are left out: in one
-# call a whole-call error would be caught where a single cell's call would have succeeded.
-ELEMENTWISE = frozenset({"IF", "NOT", "ABS", "SQRT", "EXP", "LN", "LOG10", "POWER", "ROUND", "ROUNDUP", "ROUNDDOWN"})
 
 
 @dataclass(frozen=True, slots=True)
@@ -94,13 +94,56 @@ def _relative(item: tuple, row: int, col: int) -> tuple:
     return kind, f1, n1 if f1 else n1 - base, f2, n2 if f2 else n2 - base
 
 
-def shape(text: str, row: int, col: int) -> tuple[str, list[tuple]]:
+class Shape(NamedTuple):
+    """A text's shape at its cell: ``key`` (the text with each reference written relative to
+    the cell), the references as :func:`shape` lists them, and how to write the text of the
+    same shape at another cell: ``form`` takes (:meth:`str.format`) the columns, then the rows,
+    of the relative parts, at the offsets ``cols`` and ``rows``; ``reach`` bounds the offsets
+    (rows low, high, columns low, high)."""
+
+    key: str
+    items: list[tuple]
+    form: str
+    cols: tuple[int, ...]
+    rows: tuple[int, ...]
+    reach: tuple[int, int, int, int]
+
+    def text_at(self, row: int, col: int) -> str | None:
+        """The text of this shape in cell (row, col); None where a reference would leave the sheet."""
+        low_row, high_row, low_col, high_col = self.reach
+        if row + low_row < 1 or row + high_row > MAX_ROW or col + low_col < 1 or col + high_col > MAX_COL:
+            return None
+        return self.form.format(*map(column_letters, map(col.__add__, self.cols)), *map(row.__add__, self.rows))
+
+
+def _form(token: str, item: tuple) -> list[str | tuple[bool, int]]:
+    """``token`` (a reference of ``item``'s kind, as written) in pieces: text as written (an
+    anchored part among it), and (column?, offset) for each relative part."""
+    kind, f1, n1, f2, n2 = item
+    dollar1, first, rest = _PART.match(token).groups()
+    dollar2, second = _PART_END.search(rest).groups()
+    between = rest[: len(rest) - len(dollar2) - len(second)]
+    if kind == "c":  # letters then digits
+        parts = [(f2, first, True, n2), (f1, second, False, n1)]
+    else:
+        parts = [(f1, first, kind == "C", n1), (f2, second, kind == "C", n2)]
+    (fixed1, text1, *move1), (fixed2, text2, *move2) = parts
+    return [dollar1, text1 if fixed1 else tuple(move1), between, dollar2, text2 if fixed2 else tuple(move2)]
+
+
+def _escaped(text: str) -> str:
+    return text.replace("{", "{{").replace("}", "}}")
+
+
+def shape(text: str, row: int, col: int) -> Shape:
     """The text with its references written relative to (row, col), and those references.
 
     >>> shape('=A1+"B2"+$C$3', 2, 2)[0] == shape('=B2+"B2"+$C$3', 3, 3)[0]
     True
+    >>> shape('=A1+"B2"+$C$3+{1}', 2, 2).text_at(3, 3)
+    '=B2+"B2"+$C$3+{1}'
     """
-    pieces, items = [], []
+    pieces, items, form = [], [], []
     pos = 0
     spans = [(m.start(), m.end()) for m in _OPAQUE.finditer(text)] + [(len(text), len(text))]
     for start, end in spans:
@@ -111,11 +154,21 @@ def shape(text: str, row: int, col: int) -> tuple[str, list[tuple]]:
             items.append(rel)
             pieces.append(plain[last:s])
             pieces.append("\x00%s%d,%d%d,%d\x00" % (rel[0], rel[1], rel[2], rel[3], rel[4]))
+            form += [_escaped(plain[last:s]), *_form(plain[s:e], rel)]
             last = e
         pieces.append(plain[last:])
         pieces.append(text[start:end])
+        form += [_escaped(plain[last:]), _escaped(text[start:end])]
         pos = end
-    return "".join(pieces), items
+    cols = [piece[1] for piece in form if type(piece) is tuple and piece[0]]
+    rows = [piece[1] for piece in form if type(piece) is tuple and not piece[0]]
+    fields = [len(cols), 0]  # the next row's field, the next column's
+    for k, piece in enumerate(form):
+        if type(piece) is tuple:
+            form[k] = "{%d}" % fields[piece[0]]
+            fields[piece[0]] += 1
+    reach = (min(rows or [0]), max(rows or [0]), min(cols or [0]), max(cols or [0]))
+    return Shape("".join(pieces), items, "".join(form), tuple(cols), tuple(rows), reach)
 
 
 def _unparsed(text: str, exc: FormulaSyntaxError) -> CellError:
@@ -133,7 +186,7 @@ def _batchable(ast: Node, refs: tuple) -> bool:
     for n in walk(ast):
         if isinstance(n, (Name, Array)):
             return False
-        if isinstance(n, Call) and n.name in BUILTINS and n.name not in ELEMENTWISE:
+        if isinstance(n, Call) and n.name in BUILTINS and n.name not in BATCHED:
             return False
     return all(a.single and (sheet is None or ":" not in sheet) for sheet, a in refs)  # no 3-D references
 
@@ -178,20 +231,36 @@ def _ast_items(template: Template) -> list[tuple]:
 
 
 class Templates:
-    """Templates by shape, built on first sight."""
+    """Templates by shape, built on first sight.
+
+    A text is first compared with the text that the last shape seen in its column, and the
+    last shape seen (the cell before it in its row, as cells come row by row), would have in
+    its cell: a column or row of relative copies, and every cell of an Excel shared formula
+    (which all come with their first cell's text), are then known without reading their
+    references again. A text equal to that has that shape: the two differ only in relative
+    parts, moved by the cell's offset, which the pattern reads alike (a part that would leave
+    the sheet gives no text to compare).
+    """
 
     def __init__(self) -> None:
         self.by_shape: dict[str, Template | None] = {}  # None: the shape cannot be trusted
+        self._last_in_col: dict[int, Shape] = {}
+        self._last: Shape | None = None
 
     def get(self, text: str, row: int, col: int) -> Template:
         if len(text) > _LONGEST:  # refused by the parser: not worth a shape
             return build(text, row, col)
-        key, items = shape(text, row, col)
-        template = self.by_shape.get(key, False)
+        for seen in (self._last_in_col.get(col), self._last):
+            if seen is not None and seen.text_at(row, col) == text:  # so its shape is seen's
+                self._last = self._last_in_col[col] = seen
+                template = self.by_shape[seen.key]
+                return build(text, row, col) if template is None else template
+        found = self._last = self._last_in_col[col] = shape(text, row, col)
+        template = self.by_shape.get(found.key, False)
         if template is False:
             template = build(text, row, col)
-            trusted = template.error is None and _ast_items(template) == items
-            self.by_shape[key] = template if trusted else None
+            trusted = template.error is None and _ast_items(template) == found.items
+            self.by_shape[found.key] = template if trusted else None
             return template
         if template is None:
             return build(text, row, col)

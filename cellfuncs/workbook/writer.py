@@ -43,6 +43,8 @@ _XLDAPR_FUTURE = (b'<%sfutureMetadata name="XLDAPR" count="1"><%sbk><%sextLst><%
                   b'3c3f30c029c3}"><xda:dynamicArrayProperties xmlns:xda="' + _XDA_NS + b'" fDynamic="1" fCollapsed="0"/>'
                   b'</%sext></%sextLst></%sbk></%sfutureMetadata>')
 _CELL_CHANGES = {b"t", b"cm", b"vm"}
+# a cell's start tag as Excel, LibreOffice and openpyxl write it: r first, then attributes each after one space
+_PLAIN_CELL = re.compile(rb'<((?:[A-Za-z_][\w.-]*:)?)c r="([^"<>]*)"((?: [A-Za-z_][\w.:-]*="[^"<>]*")*)[ \t\r\n]*/?>')
 # The error values a cell's <v> may hold (Office's implementation notes on ECMA-376, MS-OI29500).
 # Excel stores the later ones (#SPILL!, #CALC!) as #VALUE! there, the true error in a rich value
 # the cell's vm points at; a file with another text in <v> is not one Excel need open.
@@ -57,16 +59,17 @@ def value_xml(v: object) -> tuple[bytes | None, bytes]:
     >>> value_xml(CellError("#SPILL!"))
     (b'e', b'#VALUE!')
     """
-    if type(v) is bool:
-        return b"b", b"1" if v else b"0"
-    if type(v) is str:
-        return b"str", text(v)
-    if type(v) is CellError:
-        return b"e", (v.code if v.code in FILE_ERRORS else VALUE).encode()
-    x = 0.0 if v is None else float(v)
-    if x.is_integer() and abs(x) < 1e15:
-        return None, b"%d" % x
-    return None, repr(x).encode()
+    if type(v) is not float:  # a number is the usual value: tested first
+        if type(v) is bool:
+            return b"b", b"1" if v else b"0"
+        if type(v) is str:
+            return b"str", text(v)
+        if type(v) is CellError:
+            return b"e", (v.code if v.code in FILE_ERRORS else VALUE).encode()
+        v = 0.0 if v is None else float(v)
+    if v.is_integer() and abs(v) < 1e15:
+        return None, b"%d" % v
+    return None, repr(v).encode()
 
 
 def is_dynamic(engine: Recalc, fi: int) -> bool:
@@ -92,6 +95,7 @@ class _SheetPatch:
         self.unshared = {scan.formulas[key].si for key in masters.values() if key in at and is_dynamic(engine, at[key])}
         self.bounds: Area | None = None
         self.touched: set[tuple[int, int]] = set()  # cells already rewritten
+        self.tag_rests: dict[tuple, bytes] = {}  # a plain start tag's attributes past r, rewritten, by kind
 
     def build(self) -> bytes:
         engine, s, scan = self.engine, self.s, self.scan
@@ -99,7 +103,7 @@ class _SheetPatch:
         for key, fi in engine.at[s].items():
             self._formula(key, fi)
         for key in engine.claims[s]:
-            self._value_cell(key, values[key])
+            self._write(key, scan.cells.get(key), values[key], b"", [])
         for key, fi in engine.at[s].items():
             old = engine.cells[fi].old_area
             if old is None or engine.cells[fi].kind == "legacy":
@@ -111,60 +115,71 @@ class _SheetPatch:
                         self._clear(k)
         for key in scan.not_finite:  # read as #NUM!, so stored as #NUM!: no reader meets "NaN" as a number
             if key not in self.touched:
-                self._value_cell(key, scan.values[key])
+                self._write(key, scan.cells.get(key), scan.values[key], b"", [])
         self._insert_new_cells()
         self._dimension()
         return splice(self.data, self.edits)
 
     # -- cells ---------------------------------------------------------------------------
-    def _cell_bytes(self, key: tuple[int, int], value: object, f_bytes: bytes, extra_attrs: list) -> bytes | None:
-        """The new element for a cell holding ``value``; None when it is a new cell (queued)."""
+    def _write(self, key: tuple[int, int], span: CellSpan | None, value: object, f_bytes: bytes,
+               extra_attrs: list) -> None:
+        """Cell ``key`` (its element ``span``, None for a new cell) rewritten to hold ``value``
+        (a new cell is queued for its row)."""
+        self.touched.add(key)
         t, v = value_xml(value)
-        add = ([(b"t", t)] if t else []) + extra_attrs
-        span = self.scan.cells.get(key)
+        add = [(b"t", t), *extra_attrs] if t else extra_attrs
         if span is None:
             p = self.p
             attrs = b"".join(b' %s="%s"' % kv for kv in add)
             body = b'<%sc r="%s"%s>%s<%sv>%s</%sv></%sc>' % (p, address(*key).encode(), attrs, f_bytes, p, v, p, p)
             self.new_cells.setdefault(key[0], []).append((key[1], body))
             self._extend(key)
-            return None
-        p = prefix(self.data, _as_element(span))
-        start_tag = self.data[span.start:tag_end(self.data, span.start)]
-        extras = b"".join(self.data[e.start:e.end(self.data)] for e in span.extra or ())
-        return (retag(start_tag, _CELL_CHANGES, add, close=False) + f_bytes + b"<%sv>%s</%sv>" % (p, v, p) + extras
-                + b"</%sc>" % p)
-
-    def _replace(self, key: tuple[int, int], new: bytes | None) -> None:
-        self.touched.add(key)
-        if new is not None:
-            span = self.scan.cells[key]
-            self.edits.append((span.start, span.end(self.data), new))
+            return
+        data = self.data
+        plain = _PLAIN_CELL.match(data, span.start)
+        if plain is None:
+            p = prefix(data, _as_element(span))
+            tag = retag(data[span.start:tag_end(data, span.start)], _CELL_CHANGES, add, close=False)
+        else:  # the start tag from its kind's template: r as written, the attributes past it worked out once
+            p, ref, rest = plain.groups()
+            k = (rest, *add)
+            tail = self.tag_rests.get(k)
+            if tail is None:
+                tail = self.tag_rests[k] = retag(b"<c" + rest + b">", _CELL_CHANGES, add, close=False)[2:]
+            tag = b'<%sc r="%s"%s' % (p, ref, tail)
+        extras = b"".join(data[e.start:e.end(data)] for e in span.extra) if span.extra else b""
+        new = b"%s%s<%sv>%s</%sv>%s</%sc>" % (tag, f_bytes, p, v, p, extras, p)
+        self.edits.append((span.start, span.end(data), new))
 
     def _formula(self, key: tuple[int, int], fi: int) -> None:
         engine = self.engine
         fx = self.scan.formulas[key]
-        dynamic = is_dynamic(engine, fi)
-        extra = [(b"cm", self.cm)] if dynamic and self.cm else []
-        spill = engine.spills.get(fi) or Area(key[0], key[1], key[0], key[1])
-        f_bytes = self._f(key, fx, dynamic, spill)
-        self._replace(key, self._cell_bytes(key, engine.result[fi], f_bytes, extra))
-        if dynamic:
+        span = self.scan.cells[key]
+        if is_dynamic(engine, fi):
+            spill = engine.spills.get(fi) or Area(key[0], key[1], key[0], key[1])
+            f_bytes = self._f(key, span, fx, spill)
+            self._write(key, span, engine.result[fi], f_bytes, [(b"cm", self.cm)] if self.cm else [])
             self._extend((spill.r2, spill.c2))
+        elif fx.kind == "shared" and fx.si in self.unshared:
+            self._write(key, span, engine.result[fi], self._f(key, span, fx, None), [])
+        else:  # the formula as it is
+            f = span.formula
+            self._write(key, span, engine.result[fi], self.data[f.start:f.end(self.data)], [])
 
-    def _f(self, key: tuple[int, int], fx: FormulaXml, dynamic: bool, spill: Area) -> bytes:
-        span: CellSpan = self.scan.cells[key]
+    def _f(self, key: tuple[int, int], span: CellSpan, fx: FormulaXml, spill: Area | None) -> bytes:
+        """The formula element of a dynamic array (``spill`` its range) or of a shared formula's
+        cell written on its own."""
         f = span.formula
         data = self.data
-        p = prefix(data, _as_element(f))
-        array = [(b"t", b"array"), (b"ref", spill.text().encode())]
-        if fx.kind == "shared" and (dynamic or fx.si in self.unshared):
+        if fx.kind == "shared":
+            p = prefix(data, _as_element(f))
             formula = fx.text if fx.text else self._moved(key, fx)
-            attrs = b"".join(b' %s="%s"' % kv for kv in array) if dynamic else b""
+            attrs = b' t="array" ref="%s"' % spill.text().encode() if spill is not None else b""
             return b"<%sf%s>%s</%sf>" % (p, attrs, text(formula), p)
-        if not dynamic or f.empty or (fx.kind == "array" and fx.ref == spill.text()):
+        if f.empty or (fx.kind == "array" and fx.ref == spill.text()):
             return data[f.start:f.end(data)]
         start = tag_end(data, f.start)
+        array = [(b"t", b"array"), (b"ref", spill.text().encode())]
         return retag(data[f.start:start], {b"t", b"ref", b"si"}, array, close=False) + data[start:f.end(data)]
 
     def _moved(self, key: tuple[int, int], fx: FormulaXml) -> str:
@@ -176,9 +191,6 @@ class _SheetPatch:
             return "#REF!"
         moved = Translator("=" + self.scan.formulas[base].text, origin=address(*base)).translate_formula(address(*key))
         return moved[1:]
-
-    def _value_cell(self, key: tuple[int, int], value: object) -> None:
-        self._replace(key, self._cell_bytes(key, value, b"", []))
 
     def _clear(self, key: tuple[int, int]) -> None:
         self.touched.add(key)
@@ -449,7 +461,8 @@ def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], se
     """The members to replace, remove and add for the recalculated workbook."""
     edit = PackageEdit(pkg, book)
     cm = None
-    if any(is_dynamic(engine, fi) for fi in range(len(engine.cells))):
+    spilt = {*engine.spills, *engine.blocked}  # with the dynamic arrays stored, the only cells is_dynamic may take
+    if any(fc.kind == "dynamic" for fc in engine.cells) or any(is_dynamic(engine, fi) for fi in spilt):
         cm = dynamic_record(edit, book)
     for sheet in book.sheets:
         if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index] or sheet.scan.not_finite):

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field
+from operator import itemgetter
 from xml.sax.saxutils import escape
 
 from .package import Refused, parse_xml
@@ -106,7 +107,7 @@ def splice(data: bytes, edits: list[tuple[int, int, bytes]]) -> bytes:
     Edits at one position apply in list order (a sort keeps it); edits may not overlap.
     """
     pieces, pos = [], 0
-    for start, end, new in sorted(edits, key=lambda e: (e[0], e[1])):
+    for start, end, new in sorted(edits, key=itemgetter(0, 1)):
         if start < pos:
             raise Refused("overlapping XML edits (internal)")
         pieces += [data[pos:start], new]

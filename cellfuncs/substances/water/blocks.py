@@ -18,15 +18,20 @@ from typing import Callable, Sequence
 import numpy as np
 from numpy.typing import ArrayLike
 
+from ..result import broadcast
+
 
 def in_blocks(fn: Callable[..., Sequence[np.ndarray]], *arrays: ArrayLike, block: int) -> tuple[np.ndarray, ...]:
     """``fn`` on successive blocks of at most ``block`` elements of ``arrays`` (float, broadcast
     against each other, flattened); its results, one array per element of the block each, put
     together in the broadcast shape."""
-    flat = [a.reshape(-1) for a in np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in arrays))]
-    shape = np.broadcast_shapes(*(np.shape(a) for a in arrays))
+    whole_arrays = broadcast(*(np.asarray(a, dtype=float) for a in arrays))
+    shape = whole_arrays[0].shape
+    flat = [a.reshape(-1) for a in whole_arrays]
     size = flat[0].size
-    first = fn(*(a[:block] for a in flat))  # also the empty call's results: fn gives their number and type
+    if size <= block:  # one block (a single cell, for one): its results are the answer
+        return tuple(np.asarray(part).reshape(shape) for part in fn(*flat))
+    first = fn(*(a[:block] for a in flat))
     out = [np.empty(size, dtype=np.result_type(part)) for part in first]
     for whole, part in zip(out, first):
         whole[:block] = part

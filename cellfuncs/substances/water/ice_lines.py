@@ -2,10 +2,10 @@
 
 Equations of IAPWS R14-08(2011); their coefficients, anchoring triple points and
 ranges live in ``cellfuncs/data/water/ice_lines.toml``. Pressures from
-temperatures are explicit. Temperatures from pressures are roots found by
-:func:`cellfuncs.numerics.solve_bracketed` in a narrow bracket around a first
-guess interpolated in a table of the line made at import, so a scalar call
-needs only a few iterations.
+temperatures are explicit. Temperatures from pressures come from a table of the
+line made at import and Newton steps (:class:`cellfuncs.numerics.MonotoneInverse`,
+which brackets the few elements Newton leaves unconverged), so a scalar call costs
+a few evaluations of the line.
 
 The explicit functions make no range checks (the ranges are in :func:`line_range`);
 the inverse functions return NaN for pressures outside a line's range.
@@ -17,7 +17,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from cellfuncs.data import table
-from cellfuncs.numerics import solve_bracketed
+from cellfuncs.numerics import MonotoneInverse
 from cellfuncs.substances.result import BAD_ARGUMENT, ModelError
 
 ICES = ("Ih", "III", "V", "VI", "VII")  # in order of increasing melting pressure
@@ -29,13 +29,10 @@ _DATA = "water/ice_lines"
 # past the end of the temperature range (ice V at 632.4 MPa: 0.03 K past 273.31 K).
 _SEARCH_MARGIN_K = 0.1
 _NODES = 2049  # tabulated points per line
-# Finer than the solver's usual 1e-13 so that solutions agree to a few ulps
-# whether an element is solved alone or inside a larger array.
-_XTOL = 1e-15
 
 
 class _Line:
-    """One R14-08 equation: p(T) explicit, T(p) by bracketed root finding."""
+    """One R14-08 equation: p(T) explicit, T(p) by a table and Newton steps."""
 
     def __init__(self, key: str):
         d = table(_DATA, key)
@@ -45,17 +42,9 @@ class _Line:
         self.terms = tuple(zip(d["a"].tolist(), d["b"].tolist()))
         self.T_range = (float(d["T_range"][0]), float(d["T_range"][1]))
         self.p_range = (float(d["p_range"][0]), float(d["p_range"][1]))
-        nodes = np.linspace(self.T_range[0] - _SEARCH_MARGIN_K, self.T_range[1] + _SEARCH_MARGIN_K, _NODES)
-        y = self.reduced(nodes)
-        # every line is monotone; store the nodes in increasing order of y for searchsorted
-        order = slice(None) if y[-1] > y[0] else slice(None, None, -1)
-        self._T_nodes = nodes[order]
-        self._y_nodes = y[order]
-        # half-width of the first bracket around the interpolated guess: a few times
-        # the largest interpolation error, measured at the interval midpoints
-        mid = 0.5 * (nodes[1:] + nodes[:-1])
-        miss = np.abs(np.interp(self.reduced(mid), self._y_nodes, self._T_nodes) / mid - 1.0)
-        self._slack = 4.0 * float(miss.max()) + 1e-12
+        # every line is monotone in its reduced pressure
+        self.inverse = MonotoneInverse(self.reduced, self.T_range[0] - _SEARCH_MARGIN_K,
+                                       self.T_range[1] + _SEARCH_MARGIN_K, points=_NODES)
 
     def reduced(self, T: np.ndarray) -> np.ndarray:
         """p/p_n ("linear" form) or ln(p/p_n) (the two log forms) at ``T``."""
@@ -74,20 +63,8 @@ class _Line:
         p = np.asarray(p, dtype=float)
         inside = (p >= self.p_range[0]) & (p <= self.p_range[1])
         p_in = np.where(inside, p, self.p_range[0])
-        y = np.asarray(p_in / self.p_n if self.form == "linear" else np.log(p_in / self.p_n))
-        guess = np.interp(y, self._y_nodes, self._T_nodes)
-        half = guess * self._slack
-        T = solve_bracketed(lambda t: self.reduced(t) - y, guess - half, guess + half, xtol=_XTOL)
-        # should a narrow bracket miss its root, the tabulated interval around it
-        # holds the root for certain, every line being monotone
-        missed = np.isnan(T) & inside
-        if missed.any():
-            y_m = y[missed]
-            k = np.searchsorted(self._y_nodes, y_m).clip(1, _NODES - 1)
-            T[missed] = solve_bracketed(
-                lambda t: self.reduced(t) - y_m, self._T_nodes[k - 1], self._T_nodes[k], xtol=_XTOL
-            )
-        return np.where(inside, T, np.nan)
+        y = p_in / self.p_n if self.form == "linear" else np.log(p_in / self.p_n)
+        return np.where(inside, self.inverse(y), np.nan)
 
 
 _LINES = {key: _Line(key) for key in (*ICES, SUBLIMATION)}

@@ -160,7 +160,9 @@ def _gibbs_props(T: np.ndarray, p: np.ndarray, pi: np.ndarray, tau: np.ndarray, 
     }
     if fields is None:
         return Props(**{name: np.asarray(formula()) for name, formula in formulas.items()})
-    missing = np.broadcast_to(np.nan, np.broadcast_shapes(T.shape, p.shape))  # one read-only view for the rest
+    shape = T.shape if T.shape == p.shape else np.broadcast_shapes(T.shape, p.shape)
+    # one read-only view for the rest (a single value: the NaN itself, without the view's machinery)
+    missing = np.broadcast_to(np.nan, shape) if shape else np.array(np.nan)
     return Props(**{name: np.asarray(formulas[name]()) if name in fields else missing for name in Props._fields})
 
 

@@ -39,6 +39,7 @@ from ...data import constant, load
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..phase_map import LINE_TOL, classify, state_table
 from ..props import Props
+from ...numerics import anywhere, everywhere
 from ..result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
 from . import iapws95, ice_ih, ice_lines, if97, if97_region3, if97_saturation
 
@@ -185,7 +186,7 @@ _PER_KG = ("v", "h", "s", "g", "cp")  # the fields a molar mass turns into molar
 
 def _where(a: np.ndarray, mask: np.ndarray) -> np.ndarray:
     """The elements of ``a`` where ``mask`` holds: ``a`` itself, not a copy, when it holds everywhere."""
-    return a if mask.all() else a[mask]
+    return a if everywhere(mask) else a[mask]
 
 
 def _molar(props: Props, fields) -> dict[str, np.ndarray]:
@@ -274,17 +275,17 @@ class Water(Substance):
         t_solid = np.full(T.shape, -np.inf)
         ice = np.zeros(T.shape, dtype=int)
         melt = high & ((T <= _MELT_T_NEAR) | (p > _MELT_P_NEAR))  # elsewhere no melting line is near
-        if melt.any():
+        if anywhere(melt):
             t_solid[melt], ice[melt] = ice_lines.melting_temperature_any(p[melt])
         sublime = ~high & (T <= TT * (1 + LINE_TOL)) & (p >= _SUB_P_MIN)
-        if sublime.any():
+        if anywhere(sublime):
             t_solid[sublime] = ice_lines.sublimation_temperature(p[sublime])
         # the liquid is stable below the boiling line; above the critical pressure below Tc
         t_boil = np.where(high, TC, -np.inf)
         sat = high & (p <= PC)
-        if sat.all():
+        if everywhere(sat):
             t_boil = if97_saturation.saturation_temperature(p)
-        elif sat.any():
+        elif anywhere(sat):
             t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
         state = classify(T, p, t_solid=t_solid, solid=ice, t_boil=t_boil, sat=sat, high=high, pt=PT, tc=TC, pc=PC,
                          n_solids=len(SOLIDS))
@@ -298,7 +299,7 @@ class Water(Substance):
         return {LIQUID: self._liquid, VAPOR: self._vapor, FLUID: self._fluid, SOLID: self._ice}
 
     def _unmodelled(self, r: Result, phase: np.ndarray, blank: np.ndarray) -> None:
-        if (phase > SOLID).any():
+        if anywhere(phase > SOLID):
             r.flag((phase > SOLID) & ~blank, NOT_AVAILABLE,
                    lambda k: MESSAGES[f"no_volume_{SOLIDS[k - SOLID]}"], phase)
             r.flag((phase > SOLID) & blank, NOT_AVAILABLE,
@@ -312,7 +313,7 @@ class Water(Substance):
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(q > IAPWS95_P_MAX, OUT_OF_RANGE, MESSAGES["liquid_above_p"], q)
         dense = q > P_MAX_FLUID
-        if dense.any():
+        if anywhere(dense):
             t_melt = np.full(t.shape, -np.inf)
             t_melt[dense], _ = ice_lines.melting_temperature_any(np.minimum(q[dense], _MELT_P_TOP))
             # with the joins' slack: the line taken at a triple point's pressure may be the colder neighbour's
@@ -321,26 +322,26 @@ class Water(Substance):
         warm = t >= TT
         p_sat = if97_saturation.saturation_pressure(np.clip(t, TT, TC))
         superheated = warm & (q < p_sat * (1 - LINE_TOL))
-        if superheated.any():
+        if anywhere(superheated):
             t_sat = np.full(t.shape, np.inf)
             t_sat[superheated] = if97_saturation.saturation_temperature(np.maximum(q[superheated], PT))
             sub.flag(superheated & ((t > t_sat + SUPERHEAT_MARGIN) | (t > REGION1_T_MAX)), OUT_OF_RANGE,
                      MESSAGES["superheated_liquid"], t, q, t_sat)
         cold = (t < TT) & ~dense
         sub.flag(cold & (q < PT), OUT_OF_RANGE, MESSAGES["supercooled_below_triple_p"], t, q)
-        if cold.any():
+        if anywhere(cold):
             t_melt = np.full(t.shape, -np.inf)
             t_melt[cold], _ = ice_lines.melting_temperature_any(np.maximum(q[cold], PT))
             sub.flag(cold & ((t < t_melt - SUPERCOOL_MARGIN) | (t < _MELT_T_MIN * (1 - MELT_JOIN_TOL))), OUT_OF_RANGE,
                      MESSAGES["supercooled_liquid"], t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         low = ok & ~dense & (t <= REGION1_T_MAX)
-        if low.any():
+        if anywhere(low):
             self._put_props(fields, sel, low, if97.region1(_where(t, low), _where(q, low), fields.want))
         near = ok & ~dense & (t > REGION1_T_MAX)
-        if near.any():
+        if anywhere(near):
             self._put_region3(fields, sel, near, t, q, "liquid", sub)
-        if (ok & dense).any():
+        if anywhere(ok & dense):
             self._put_iapws95(fields, sel, ok & dense, t, q, sub)
         self._report(r, sel, sub)
 
@@ -357,7 +358,7 @@ class Water(Substance):
         sub.flag(above & ~cold & (q > META_VAPOUR_P_MAX), OUT_OF_RANGE, MESSAGES["supersaturated_above_p"], t, q)
         meta = above & ~cold & (q <= META_VAPOUR_P_MAX)
         meta_props = None
-        if meta.any():
+        if anywhere(meta):
             tm, qm = t[meta], q[meta]
             # the enthalpy decides how wet the state is, whatever the call wants
             meta_props = if97.region2_metastable(tm, qm, None if fields.want is None else {*fields.want, "h"})
@@ -369,15 +370,15 @@ class Water(Substance):
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         if meta_props is not None:
             keep = ok[meta]
-            if keep.any():
+            if anywhere(keep):
                 self._put_props(fields, sel, ok & meta, Props(*(np.asarray(f)[keep] for f in meta_props)))
             ok = ok & ~meta
         above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~above_b23
-        if two.any():
+        if anywhere(two):
             self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
         three = ok & above_b23
-        if three.any():
+        if anywhere(three):
             self._put_region3(fields, sel, three, t, q, "vapour", sub)
         self._report(r, sel, sub)
 
@@ -393,13 +394,13 @@ class Water(Substance):
         three = ok & (t <= B23_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~three & (t <= REGION2_T_MAX)
         five = ok & (t > REGION2_T_MAX)
-        if two.any():
+        if anywhere(two):
             self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
-        if five.any():
+        if anywhere(five):
             self._put_props(fields, sel, five, if97.region5(_where(t, five), _where(q, five), fields.want))
-        if three.any():
+        if anywhere(three):
             self._put_region3(fields, sel, three, t, q, "liquid", sub)
-        if dense.any():
+        if anywhere(dense):
             self._put_iapws95(fields, sel, dense, t, q, sub)
         self._report(r, sel, sub)
 
@@ -409,14 +410,14 @@ class Water(Substance):
         sub.flag(q > ICE_IH_P_MAX, OUT_OF_RANGE, MESSAGES["ice_above_p"], q)
         melt = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         melt &= q > PT
-        if melt.any():
+        if anywhere(melt):
             p_melt = np.full(t.shape, np.inf)
             p_melt[melt] = ice_lines.melting_pressure(np.clip(t[melt], _MELT_T_MIN, TT), "Ih")
             # the ice Ih line leans back: above it in pressure the ice has melted
             sub.flag(melt & (t >= _MELT_T_MIN) & (q > p_melt * (1 + LINE_TOL)), OUT_OF_RANGE,
                      MESSAGES["ice_melted"], t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
-        if ok.any():
+        if anywhere(ok):
             self._put_props(fields, sel, ok, ice_ih.properties(t[ok], q[ok]))
         self._report(r, sel, sub)
 
@@ -438,9 +439,9 @@ class Water(Substance):
         missing = np.zeros(t.shape, bool)
         missing[part] = np.isnan(rho)
         sub.flag(missing, OUT_OF_RANGE, message, t, q)
-        good = part.copy()
+        good = np.array(part)  # a mask of one value may be a numpy bool, which takes no assignment
         good[part] = ~np.isnan(rho)
-        if good.any():
+        if anywhere(good):
             self._put_props(fields, sel, good, at_density(rho[~np.isnan(rho)], t[good]))
 
     # --- description --------------------------------------------------------------------
