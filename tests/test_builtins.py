@@ -359,3 +359,10 @@ def test_indirect_and_offset_without_a_workbook():
     """tests/test_references.py checks them in workbooks (Microsoft's examples)."""
     assert compute('=INDIRECT("A1")').code == "#REF!"  # engine contract: no workbook, no cells
     assert compute("=OFFSET({1,2},1,1)").code == "#VALUE!"  # Excel: OFFSET needs a reference
+
+
+def test_getpivotdata_without_a_workbook():
+    """tests/test_pivot_data.py checks it in workbooks with pivot tables (Microsoft's rules)."""
+    # Microsoft's GETPIVOTDATA page: a reference in no pivot table is #REF!; without a workbook none is
+    assert compute('=GETPIVOTDATA("Sales", A3)').code == "#REF!"
+    assert compute('=GETPIVOTDATA("Sales", 3)').code == "#REF!"  # not a reference at all

@@ -12,6 +12,7 @@ import math
 
 import pytest
 
+from cellfuncs.errors import CellError
 from cellfuncs.formula import SimpleContext, compute
 from cellfuncs.formula.arrays import object_array
 
@@ -142,3 +143,11 @@ def test_dated_flows_pair_by_position() -> None:
     assert compute("=XIRR(t, d)", ctx).code == "#VALUE!"
     assert compute("=XNPV(1, b, d)", ctx).code == "#NUM!"
     assert compute("=XNPV(-0.3, z, d)", ctx).code == "#NUM!"
+
+
+@pytest.mark.parametrize("formula", ['=VALUE("1e999")', '="1e999"+0', '=ROUND("1e999",1)', '=ABS("-1e999")'])
+def test_text_beyond_a_double_is_no_number(formula):
+    # A cell holds doubles only (Excel's largest number is about 1.8e308, common practice); text that
+    # parses beyond it is not a number, and no built-in stops the recalculation on it
+    got = compute(formula)
+    assert isinstance(got, CellError) and got.code == "#VALUE!", got

@@ -32,7 +32,7 @@ __all__ = [
 BUILTIN_MODULES = (
     "fn_bases", "fn_bessel", "fn_cashflow", "fn_cells", "fn_complex", "fn_convert", "fn_count", "fn_database",
     "fn_date", "fn_distributions", "fn_distributions_more", "fn_finance", "fn_hyperlink", "fn_hypothesis",
-    "fn_info", "fn_integers", "fn_lambda", "fn_logic", "fn_lookup", "fn_math", "fn_matrix", "fn_ranks",
+    "fn_info", "fn_integers", "fn_lambda", "fn_logic", "fn_lookup", "fn_math", "fn_matrix", "fn_pivot", "fn_ranks",
     "fn_reference", "fn_regex", "fn_regression", "fn_roman", "fn_rounding", "fn_securities", "fn_shape",
     "fn_sort", "fn_stats", "fn_strings", "fn_subtotal", "fn_sums", "fn_text", "fn_trig", "fn_trimrange",
     "fn_value_text", "fn_volatile", "fn_workdays",

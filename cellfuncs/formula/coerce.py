@@ -27,6 +27,7 @@ _NUMERIC_TEXT = re.compile(
 # Type order of Excel comparisons: numbers < text < booleans.
 _RANK = {float: 0, str: 1, bool: 2}
 _BLANK_AS = {float: 0.0, str: "", bool: False}
+_INF = float("inf")
 _WIDE = Context(prec=1000)  # room for 1e308 written with 400 decimals
 
 
@@ -41,6 +42,8 @@ def to_number(v: Scalar) -> float | CellError:
     (1.0, 0.0, 1250.5, 0.05)
     >>> to_number("$5"), to_number("($1,000)"), to_number("2024-01-02"), to_number("12:00")
     (5.0, -1000.0, 45293.0, 0.5)
+    >>> print(to_number("1e999"))
+    #VALUE! text "1e999" is a number beyond the largest a cell holds
     """
     t = type(v)
     if t is float:
@@ -54,6 +57,8 @@ def to_number(v: Scalar) -> float | CellError:
         if m is None:
             return _other_number_text(v)
         x = float(m.group(1).replace(",", ""))
+        if x in (_INF, -_INF):  # "1e999": beyond a double, so no number a cell can hold
+            return CellError(VALUE, f"text {_quote(v)} is a number beyond the largest a cell holds")
         return x / 100.0 if m.group(2) else x
     if t is CellError:
         return v

@@ -60,6 +60,7 @@ from .engine import Recalc
 from .model import load
 from .package import Package, Refused
 from .recalc import pack_functions
+from .report import same
 from .volatile import functions_called, volatile_cells
 
 REL_TOLERANCE = 1e-9
@@ -86,23 +87,6 @@ def category_of(name: str) -> str:
     ('Math & Trig', 'Lookup & Reference', 'Other')
     """
     return _function_table()[0].get(name, "Other")
-
-
-def same(cached: object, computed: object, rel: float = REL_TOLERANCE) -> bool:
-    """Whether Excel's cached value and the engine's agree under the README's rules.
-
-    >>> same(1.0, 1.0 + 1e-10), same(0.0, 1e-13), same("a", "A"), same(CellError("#N/A"), CellError("#N/A", "x"))
-    (True, True, False, True)
-    """
-    if computed is None:
-        computed = 0.0
-    tc, tv = type(cached), type(computed)
-    if tc is float and tv is float:
-        diff = abs(cached - computed)
-        return diff <= ABS_TOLERANCE or diff <= rel * max(abs(cached), abs(computed))
-    if tc is CellError and tv is CellError:
-        return cached.code == computed.code
-    return tc is tv and cached == computed
 
 
 def default_folder() -> Path | None:
@@ -226,7 +210,8 @@ def score_workbook(path: Path, source: str) -> WorkbookScore:
             score.volatile += sum(1 for cached, _ in _compared(engine, fi) if cached is not None)
             continue
         rel = ITERATIVE_TOLERANCE if ITERATIVE.intersection(calls[fi]) else REL_TOLERANCE
-        rows = [(c, v, same(c, v, rel)) for c, v in _compared(engine, fi) if c is not None]
+        rows = [(c, v, same(c, v, rel, ABS_TOLERANCE, file_errors=False)) for c, v in _compared(engine, fi)
+                if c is not None]
         results[fi] = rows
         if any(not ok for _, _, ok in rows):
             differs_units.add(unit_of[fi])

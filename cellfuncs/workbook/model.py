@@ -17,6 +17,8 @@ from xml.etree.ElementTree import Element
 from ..errors import CALC, CODES, DIV0, NA, NAME, NULL, NUM, REF, SPILL, VALUE, CellError
 from .external import ExternalBook, read_link
 from .package import Package, Refused
+from .pivots import Cache, PivotTable, pivot_at, read_cache, read_pivot
+from .refs import Area
 from .sheetxml import MAX_FORMULAS, NAMESPACES, SheetScan, scan, xstring
 from .tables import Table, read_table
 from .structure import CONTENT_TYPES, check_content_types, check_defined_name, check_relationship, check_sheet
@@ -97,6 +99,11 @@ class Book:
     date1904: bool = False  # the workbook counts dates from 1904-01-01 (Excel's Mac date system)
     iteration: tuple[int, float] | None = None  # iterative calculation: (maximum count, maximum change)
     links: list[ExternalBook | None] = field(default_factory=list)  # [1], [2], ... of external references
+    pivots: list[PivotTable] = field(default_factory=list)
+
+    def pivot_at(self, sheet: int, where: Area) -> PivotTable | None:
+        """The pivot table an area of a sheet meets (GETPIVOTDATA's second argument)."""
+        return pivot_at(self.pivots, sheet, where)
 
     def sheet(self, name: str) -> Sheet | None:
         lowered = name.lower()
@@ -292,7 +299,7 @@ def load(pkg: Package) -> Book:
             names[key] = (el.text or "").strip()
     date1904 = any(_flag(el, "date1904") for el in _children(root, "workbookPr"))
     return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables, date1904, _iteration(root),
-                _links(pkg, root, rels, parsed))
+                _links(pkg, root, rels, parsed), _pivots(pkg, sheets, parsed, date1904))
 
 
 def _rel_id(el: Element) -> str | None:
@@ -344,4 +351,37 @@ def _tables(pkg: Package, part: str, sheet: int, sheet_name: str, parsed: set[st
             parsed.add(rels_part(part))
             if table is not None:
                 out.append(table)
+    return out
+
+
+def _target(pkg: Package, part: str, kind: str) -> str | None:
+    """The part that ``part``'s first relationship of ``kind`` inside the package points at."""
+    return next((r.target for r in relationships(pkg, part) if r.kind == kind and not r.external and r.target in pkg),
+                None)
+
+
+def _pivots(pkg: Package, sheets: list[Sheet], parsed: set[str], date1904: bool) -> list[PivotTable]:
+    """The pivot tables placed on the worksheets, each over its cache (read once for all the
+    tables that share it; its dates as serials of the workbook's date system)."""
+    from ..formula.dates import date_system
+
+    caches: dict[str, Cache] = {}
+    out = []
+    with date_system(date1904):
+        for sheet in sheets:
+            rels = relationships(pkg, sheet.part) if sheet.part else []
+            for rel in rels:
+                definition = _target(pkg, rel.target, "pivotCacheDefinition") \
+                    if rel.kind == "pivotTable" and not rel.external and rel.target in pkg else None
+                if definition is None:
+                    continue
+                if definition not in caches:
+                    records = _target(pkg, definition, "pivotCacheRecords")
+                    caches[definition] = read_cache(pkg.read(definition), definition,
+                                                    pkg.read(records) if records else None, records or "")
+                    parsed.update([definition, rels_part(definition)] + ([records] if records else []))
+                table = read_pivot(pkg.xml(rel.target), sheet.index, caches[definition])
+                parsed.update([rel.target, rels_part(rel.target)])
+                if table is not None:
+                    out.append(table)
     return out

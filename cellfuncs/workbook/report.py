@@ -24,14 +24,22 @@ from .refs import Area
 from .writer import FILE_ERRORS
 
 
-def same(cached: object, computed: object, rel: float) -> bool:
-    """Whether a cached value matches the computed one: numbers within ``rel`` relative,
-    text exactly, errors by code; a missing cached value never matches. A plain #VALUE! stored
-    matches an error the file can hold only as #VALUE! (#CALC!, #SPILL!: see writer.FILE_ERRORS),
-    so a file this engine wrote checks clean against itself.
+def same(cached: object, computed: object, rel: float, absolute: float = 0.0, file_errors: bool = True) -> bool:
+    """Whether a cached value matches the computed one, the one rule of ``recalc --check`` and
+    of the conformance runner: numbers within ``rel`` relative (the caller's choice: ``--check``'s
+    ``--tolerance``, the runner's 1e-9 or 1e-7 for functions Excel solves by iteration) or
+    within ``absolute`` (0 for ``--check``; the runner's 1e-12, for results that are 0 but for
+    rounding), text exactly, errors by code; a missing cached value never matches. With
+    ``file_errors`` a plain #VALUE! stored matches an error the file can hold only as #VALUE!
+    (#CALC!, #SPILL!: see writer.FILE_ERRORS), so a file this engine wrote checks clean against
+    itself; the runner compares Excel's files, which hold those errors as rich values, without it.
 
     >>> same(CellError("#VALUE!"), CellError("#CALC!"), 1e-9), same(CellError("#CALC!"), CellError("#VALUE!"), 1e-9)
     (True, False)
+    >>> same(0.0, 1e-13, 1e-9), same(0.0, 1e-13, 1e-9, absolute=1e-12)
+    (False, True)
+    >>> same(CellError("#VALUE!"), CellError("#CALC!"), 1e-9, file_errors=False)
+    False
     """
     if cached is None:
         return False
@@ -39,9 +47,11 @@ def same(cached: object, computed: object, rel: float) -> bool:
         computed = 0.0
     tc, tv = type(cached), type(computed)
     if tc is float and tv is float:
-        return abs(cached - computed) <= rel * max(abs(cached), abs(computed))
+        diff = abs(cached - computed)
+        return diff <= absolute or diff <= rel * max(abs(cached), abs(computed))
     if tc is CellError and tv is CellError:
-        return cached.code == computed.code or (cached.code == VALUE and computed.code not in FILE_ERRORS)
+        held_as_value = file_errors and cached.code == VALUE and computed.code not in FILE_ERRORS
+        return cached.code == computed.code or held_as_value
     return tc is tv and cached == computed
 
 
