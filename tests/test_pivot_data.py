@@ -27,11 +27,10 @@ import pytest
 
 from cellfuncs.errors import CellError
 from cellfuncs.workbook import conformance
-from cellfuncs.workbook.engine import Recalc
 from cellfuncs.workbook.model import load
 from cellfuncs.workbook.package import Package
 from cellfuncs.workbook.pivots import MAX_CACHE_VALUES
-from cellfuncs.workbook.recalc import pack_functions, recalc_file
+from cellfuncs.workbook.recalc import recalc_file
 from cellfuncs.workbook.refs import area
 
 MAIN = 'xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"'
@@ -167,14 +166,7 @@ def cities_book(tmp_path: Path, cells: dict[str, object], subtotal: str = "sum",
 
 def computed(path: Path) -> dict[str, object]:
     """Every formula cell's recalculated value, by A1 address."""
-    pkg = Package(str(path))
-    try:
-        book = load(pkg)
-        pkg.validate(book.parsed)
-        engine = Recalc(book, pack_functions())
-        engine.run()
-    finally:
-        pkg.close()
+    _, engine = conformance.recalculated(path)
     return {engine.where(fi).split("!")[-1]: engine.result[fi] for fi in range(len(engine.cells))}
 
 

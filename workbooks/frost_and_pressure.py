@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from openpyxl import Workbook
 
-from sheet_kit import CODES, ESTIMATES, P_ATM, Sheet, absolute
+from sheet_kit import P_ATM, Sheet, absolute
 
 PRESSURES = [P_ATM, 50.0, 200.0, 1000.0, 2000.0, 3000.0]  # bar absolute; the first is the reference
 
@@ -83,13 +83,10 @@ def workbook() -> Workbook:
                         "contracts as it warms.")
     rows.skip()
 
-    rows.at(s.formulations(rows.take(), [
+    s.closing(rows, [
         ("Melting temperature, solid that forms", "water", "melt_model", "melt_model_source"),
         ("Liquid density, α, κ", "water", "liquid_model", "liquid_model_source"),
         ("Ice Ih density, expansion on freezing", "water", "solid_model", "solid_model_source"),
-    ]))
-    rows.skip()
-    s.caution(rows.take(), [ESTIMATES, CODES,
-                            "Thermal relief of blocked-in liquid and the protection of lines against frost are "
-                            "specified to the applicable code by a licensed professional engineer."])
+    ], ["Thermal relief of blocked-in liquid and the protection of lines against frost are specified to the "
+        "applicable code by a licensed professional engineer."])
     return wb

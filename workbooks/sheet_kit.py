@@ -213,6 +213,13 @@ class Sheet:
             self.ws.row_dimensions[i].height = height
         return row + 2 + len(rows)
 
+    def closing(self, rows: Rows, formulations: list[tuple[str, str, str, str]], cautions: list[str]) -> None:
+        """What ends a sheet: the formulation table, an empty row and the caution block, which states
+        ESTIMATES and CODES before the sheet's own ``cautions``."""
+        rows.at(self.formulations(rows.take(), formulations))
+        rows.skip()
+        self.caution(rows.take(), [ESTIMATES, CODES, *cautions])
+
     def caution(self, row: int, lines: list[str]) -> int:
         """The caution block: a heading and one merged, wrapped line per point; returns the next free row."""
         rows = [("CAUTION", CAUTION_HEAD)] + [(line, CAUTION_FONT) for line in lines]

@@ -6,7 +6,7 @@ from __future__ import annotations
 from openpyxl import Workbook
 from openpyxl.worksheet.datavalidation import DataValidation
 
-from sheet_kit import CODES, ESTIMATES, P_ATM, Sheet, absolute
+from sheet_kit import P_ATM, Sheet, absolute
 
 LEVELS = [  # (steam level, service, header pressure in barg)
     ("HP steam", "turbine inlet, digester", 41.0), ("MP steam", "dryer section, first group", 13.5),
@@ -95,13 +95,10 @@ def workbook() -> Workbook:
                         "below its boiling point after the let-down.")
     rows.skip()
 
-    rows.at(s.formulations(rows.take(), [
+    s.closing(rows, [
         ("Saturation temperature, latent heat, margins, phase", "water", "boil_model", "boil_model_source"),
         ("Condensate and feedwater (liquid)", "water", "liquid_model", "liquid_model_source"),
         ("Steam (vapour), flash enthalpy balance", "water", "vapor_model", "vapor_model_source"),
-    ]))
-    rows.skip()
-    s.caution(rows.take(), [ESTIMATES, CODES,
-                            "Flash vessels, let-down stations and condensate receivers are pressure equipment: "
-                            "their relief and venting are sized to the applicable code, not from this sheet."])
+    ], ["Flash vessels, let-down stations and condensate receivers are pressure equipment: their relief and "
+        "venting are sized to the applicable code, not from this sheet."])
     return wb

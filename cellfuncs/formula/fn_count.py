@@ -24,7 +24,7 @@ import numpy as np
 from ..errors import DIV0, VALUE, CellError, parse_error_text
 from .arrays import Value, as_array, map_values, shape_text
 from .coerce import compare, fold, to_number
-from .evaluate import ALL_ARGUMENTS, Context, builtin, collect, evaluate, intersect
+from .evaluate import ALL_ARGUMENTS, Context, builtin, evaluate, intersect
 from .fn_lookup import wildcard
 from .nodes import Node, Ref, Name, Scalar
 

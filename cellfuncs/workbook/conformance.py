@@ -55,9 +55,9 @@ from pathlib import Path
 from typing import Iterable, Iterator
 
 from ..errors import CellError
-from ..formula import BUILTINS, Call, walk
+from ..formula import BUILTINS
 from .engine import Recalc
-from .model import load
+from .model import Book, load
 from .package import Package, Refused
 from .recalc import pack_functions
 from .report import same
@@ -180,11 +180,8 @@ def _compared(engine: Recalc, fi: int) -> Iterator[tuple[object, object]]:
 _FAILED_KEPT = 200  # cells listed per workbook by --cells
 
 
-def score_workbook(path: Path, source: str) -> WorkbookScore:
-    """Recalculate one workbook and score its comparable cells; a refusal or an internal
-    failure scores the cells the manifest lists as not reproduced (the caller's job)."""
-    category, volatile = _function_table()
-    score = WorkbookScore(path.name, source)
+def recalculated(path: Path) -> tuple[Book, Recalc]:
+    """The workbook at ``path`` read, checked and recalculated in memory (nothing is written)."""
     pkg = Package(str(path))
     try:
         book = load(pkg)
@@ -193,6 +190,15 @@ def score_workbook(path: Path, source: str) -> WorkbookScore:
         engine.run()
     finally:
         pkg.close()
+    return book, engine
+
+
+def score_workbook(path: Path, source: str) -> WorkbookScore:
+    """Recalculate one workbook and score its comparable cells; a refusal or an internal
+    failure scores the cells the manifest lists as not reproduced (the caller's job)."""
+    category, volatile = _function_table()
+    score = WorkbookScore(path.name, source)
+    book, engine = recalculated(path)
     known = set(BUILTINS) | set(engine.functions)
     units, adj, _ = engine.graph
     unit_of = {fi: u for u, members in enumerate(units) for fi in members}
