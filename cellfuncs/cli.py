@@ -178,6 +178,7 @@ def _functions() -> int:
 
 
 def _units() -> int:
+    from .data import constant
     from .units import catalogue
 
     for quantity, names in catalogue().items():
@@ -186,7 +187,8 @@ def _units() -> int:
             print(f"  {name}")
     print()
     print("Prefixes combine with every unit (kPa, MPa, mbar, cm3); units combine with * / ** (kg/m3, kJ/(kg*K)).")
-    print("Gauge units (barg, psig, kPag, MPag, atg) refer to 101.325 kPa unless the text states the site's")
+    atmosphere = constant("atmosphere", "sea_level_pressure").value / 1e3
+    print(f"Gauge units (barg, psig, kPag, MPag, atg) refer to {atmosphere:g} kPa unless the text states the site's")
     print("atmosphere: barg@83kPa, psig@12.1psia, or an altitude in the ISO 2533 standard atmosphere: barg@1600m.")
     return 0
 

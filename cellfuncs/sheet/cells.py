@@ -45,8 +45,9 @@ class Arg(NamedTuple):
 # Model messages quote temperatures and pressures in SI, as "<number> K" or "<number> Pa" (kPa, MPa, GPa);
 # the sheet layer restates them in the units the caller typed.
 _QUOTED = re.compile(r"(?<![\w.])(-?\d+(?:\.\d*)?(?:e[+-]?\d+)?) (K|Pa|kPa|MPa|GPa)(?![\w/*^(])")
-_QUOTED_UNITS = {"K": (units.TEMPERATURE, 1.0), "Pa": (units.PRESSURE, 1.0), "kPa": (units.PRESSURE, 1e3),
-                 "MPa": (units.PRESSURE, 1e6), "GPa": (units.PRESSURE, 1e9)}
+_QUOTED_UNITS = {name: (kind, units.conversion(name, kind).scale) for name, kind in (
+    ("K", units.TEMPERATURE), ("Pa", units.PRESSURE), ("kPa", units.PRESSURE), ("MPa", units.PRESSURE),
+    ("GPa", units.PRESSURE))}
 
 
 def restated(reason: str, said: Mapping[units.Kind, str]) -> str:

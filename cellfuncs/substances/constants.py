@@ -14,3 +14,5 @@ from ..data import constant
 R = constant("physical", "avogadro_constant").value * constant("physical", "boltzmann_constant").value
 # Pa: the standard atmosphere, the reference pressure of CHEM_POTENTIAL and of the published lines' "atm"
 P_STANDARD = constant("atmosphere", "sea_level_pressure").value
+# K: the standard temperature, lower end of the ideal-gas enthalpy and entropy integrals
+T_STANDARD = constant("correlations", "reference_temperature").value

@@ -44,10 +44,11 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from .constants import R
+from ..data import load
+from .constants import T_STANDARD, R
 from .result import BAD_ARGUMENT, ModelError
 
-T_REF = 298.15  # K, lower end of the enthalpy and entropy integrals
+T_REF = T_STANDARD  # K, lower end of the enthalpy and entropy integrals
 KEY = "ideal_gas_cp"  # the data table and the prefix of a user definition's rows
 
 # form -> (its numbers, its lists, lists that must be as long as each other)
@@ -68,7 +69,8 @@ def estimate(Tc: float, omega: float, cp_liquid: float | None, T_liquid: float |
     if cp_liquid is None or T_liquid is None:
         return None
     tr = T_liquid / Tc
-    gap = 1.586 + 0.49 / (1.0 - tr) + omega * (4.2775 + 6.3 * (1.0 - tr) ** (1.0 / 3.0) / tr + 0.4355 / (1.0 - tr))
+    c0, c1, c2, c3, c4 = load("correlations")["tables"]["rowlinson_bondi"]["c"]
+    gap = c0 + c1 / (1.0 - tr) + omega * (c2 + c3 * (1.0 - tr) ** (1.0 / 3.0) / tr + c4 / (1.0 - tr))
     cp = cp_liquid / R - gap
     if cp < 2.5:  # below a monatomic gas's: the liquid heat capacity and the method disagree
         return None

@@ -15,11 +15,11 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from .constants import P_STANDARD
+from .. import units
 
-_PRESSURE_UNITS = {"Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "bar": 1e5, "mmHg": 133.322387415, "torr": P_STANDARD / 760,
-                   "atm": P_STANDARD}
-_TEMPERATURE_OFFSETS = {"K": 0.0, "degC": 273.15}
+# the units a published Antoine line is written in (its p_unit and t_unit); units.py converts them
+PRESSURE_UNITS = ("Pa", "kPa", "MPa", "bar", "mmHg", "torr", "atm")
+TEMPERATURE_UNITS = ("K", "degC")
 
 
 def _ancillary(line, T):
@@ -31,8 +31,9 @@ def _ancillary(line, T):
 
 def _antoine(line, T):
     # log10(p / p_unit) = A - B / (T_in_unit + C)
-    t = T - _TEMPERATURE_OFFSETS[line.get("t_unit", "K")]
-    return _PRESSURE_UNITS[line.get("p_unit", "Pa")] * 10.0 ** (line["A"] - line["B"] / (t + line["C"]))
+    t = units.conversion(line.get("t_unit", "K"), units.TEMPERATURE).from_si(T)
+    scale = units.conversion(line.get("p_unit", "Pa"), units.PRESSURE).scale
+    return scale * 10.0 ** (line["A"] - line["B"] / (t + line["C"]))
 
 
 def _simon_glatzel(line, T):

@@ -49,7 +49,7 @@ FIELDS: dict[str, Bound] = {
     "triple_point_temperature": Bound("K", "K", *_T, "hydrogen 13.8 K upwards"),
     "triple_point_pressure": Bound("Pa", "Pa", 1e-10, 1e8, "propane 1.7e-4 Pa to carbon dioxide 0.52 MPa"),
     "normal_boiling_point": Bound("K", "K", *_T, "helium-4 4.2 K upwards"),
-    "normal_sublimation_point": Bound("K", "K", *_T, "carbon dioxide 194.7 K, sulfur hexafluoride 209.4 K"),
+    "normal_sublimation_point": Bound("K", "K", *_T, "carbon dioxide 194.7 K, sulfur hexafluoride 209.35 K"),
     "enthalpy_of_fusion": Bound("J/mol", "kJ/mol", 0.05, 100.0, "hydrogen 0.117 kJ/mol to long alkanes"),
     "liquid_density": Bound("kg/m3", "kg/m3", 50.0, 5000.0, "liquid hydrogen 71 kg/m3 to dense halides"),
     "liquid_density.temperature": Bound("K", "K", *_T, "the liquid's temperature, below the critical"),

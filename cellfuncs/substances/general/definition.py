@@ -305,7 +305,7 @@ def _validate(d: Definition) -> None:
 
 def _validate_line(line: str, table: dict[str, Any]) -> None:
     """A line's form, and its coefficients as that form needs them; raises ModelError naming the field."""
-    from ..lines import _PRESSURE_UNITS, _TEMPERATURE_OFFSETS, FORMS
+    from ..lines import FORMS, PRESSURE_UNITS, TEMPERATURE_UNITS
 
     form = table.get("form")
     if form is None:
@@ -339,7 +339,7 @@ def _validate_line(line: str, table: dict[str, Any]) -> None:
             _refuse(f"field '{line}.{second}' holds an exponent outside {fmt(low)} to {fmt(high)}")
     if table["T_min"] >= table["T_max"]:
         _refuse(f"field '{line}.T_min' must be below '{line}.T_max'")
-    for key, known in (("p_unit", _PRESSURE_UNITS), ("t_unit", _TEMPERATURE_OFFSETS)):
+    for key, known in (("p_unit", PRESSURE_UNITS), ("t_unit", TEMPERATURE_UNITS)):
         if key in table and table[key] not in known:
             _refuse(f"field '{line}.{key}': unknown unit {_shown(table[key])}; known: {', '.join(known)}")
 

@@ -17,16 +17,17 @@ from __future__ import annotations
 
 import numpy as np
 
+from ...data import load
 from ..constants import R
 
-# Thomson, Brobst and Hankinson (1982), Table 3 (from memory of the published table)
-_TAIT = dict(a=-9.070217, b=62.45326, d=-135.1102, f=4.79594, g=0.250047, h=1.14188, j=0.0861488, k=0.0344483)
+_TAIT = load("correlations")["tables"]["costald_tait"]
+_Z_RA = load("correlations")["tables"]["yamada_gunn"]["z_ra"]
 
 
 class LiquidVolume:
     def __init__(self, Tc: float, pc: float, omega: float, z_ra: float | None = None):
         self.Tc, self.pc, self.omega = Tc, pc, omega
-        self.z_ra = 0.29056 - 0.08775 * omega if z_ra is None else z_ra
+        self.z_ra = _Z_RA[0] + _Z_RA[1] * omega if z_ra is None else z_ra
         t = _TAIT
         self.C = t["j"] + t["k"] * omega
         self._e = np.exp(t["f"] + t["g"] * omega + t["h"] * omega**2)

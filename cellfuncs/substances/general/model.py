@@ -43,6 +43,7 @@ from functools import cached_property
 
 import numpy as np
 
+from ...data import load
 from ...numerics import MonotoneInverse
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..constants import P_STANDARD, R
@@ -63,11 +64,13 @@ _NO_CP0 = ("the data give no ideal-gas heat capacity (ideal_gas_cp.* rows) and n
            "from (the estimate is not made for an associating substance)")
 
 
+_LEE_KESLER = load("correlations")["tables"]["lee_kesler"]
+
+
 def _lee_kesler_terms(tr):
     """f0 and f1 of Lee and Kesler (1975): ln(p/pc) = f0 + omega f1."""
     ln_tr = np.log(tr)
-    f0 = 5.92714 - 6.09648 / tr - 1.28862 * ln_tr + 0.169347 * tr**6
-    f1 = 15.2518 - 15.6875 / tr - 13.4721 * ln_tr + 0.43577 * tr**6
+    f0, f1 = ((a + b / tr + c * ln_tr + d * tr**6) for a, b, c, d in (_LEE_KESLER["f0"], _LEE_KESLER["f1"]))
     return f0, f1
 
 
@@ -791,10 +794,11 @@ class GeneralSubstance(Substance):
             "boil": (boil, f"{fmt(self.t_low)} K to {fmt(self.tc)} K"),
             "melt": (melt, rng(self._melt_range)),
             "sublime": (sub, rng(self._sub_range)),
-            "vapor": ("Peng-Robinson equation of state", "to 100 MPa"),
+            "vapor": ("Peng-Robinson equation of state", f"to {fmt(P_MAX / 1e6)} MPa"),
             "liquid": ("Rackett saturated volume with COSTALD-Tait compression",
-                       "triple point to critical, to 100 MPa; compressed liquid to a few per cent below Tc"),
+                       f"triple point to critical, to {fmt(P_MAX / 1e6)} MPa; compressed liquid to a few per cent "
+                       "below Tc"),
             "solid": ("constant molar volume from the solid density", ""),
-            "chem_potential": ("molar Gibbs energy relative to the ideal gas at the same temperature and 101.325 kPa",
-                               ""),
+            "chem_potential": ("molar Gibbs energy relative to the ideal gas at the same temperature and "
+                               f"{fmt(P0 / 1e3)} kPa", ""),
         }

@@ -12,9 +12,11 @@ from __future__ import annotations
 
 import numpy as np
 
+from ...data import load
 from ..constants import R
 
 _SQRT2 = np.sqrt(2.0)
+_COEFFICIENTS = load("correlations")["tables"]["peng_robinson"]
 
 
 class PengRobinson:
@@ -22,12 +24,15 @@ class PengRobinson:
 
     def __init__(self, Tc: float, pc: float, omega: float):
         self.Tc, self.pc, self.omega = Tc, pc, omega
-        self.ac = 0.45724 * R**2 * Tc**2 / pc
-        self.b = 0.07780 * R * Tc / pc
-        if omega <= 0.49:
-            self.kappa = 0.37464 + 1.54226 * omega - 0.26992 * omega**2
+        c = _COEFFICIENTS
+        self.ac = c["omega_a"] * R**2 * Tc**2 / pc
+        self.b = c["omega_b"] * R * Tc / pc
+        if omega <= c["omega_split"]:
+            k0, k1, k2 = c["kappa"]
+            self.kappa = k0 + k1 * omega + k2 * omega**2
         else:
-            self.kappa = 0.379642 + 1.48503 * omega - 0.164423 * omega**2 + 0.016666 * omega**3
+            k0, k1, k2, k3 = c["kappa_heavy"]
+            self.kappa = k0 + k1 * omega + k2 * omega**2 + k3 * omega**3
 
     def _a(self, T):
         root = 1.0 + self.kappa * (1.0 - np.sqrt(T / self.Tc))

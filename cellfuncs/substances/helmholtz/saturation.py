@@ -197,15 +197,17 @@ class Saturation:
             ("stiff_l", stiff_l * eq.rhoc, [0.0]))}
         self.T_low, self.p_critical = T_low, float(crit_p)
 
+    # np.minimum / np.maximum in place of np.clip: the same values, without np.clip's Python-level
+    # wrappers, which cost a single value more than the arithmetic
     def _x_of(self, T: np.ndarray) -> np.ndarray:
-        return np.cbrt(np.clip(1.0 - np.asarray(T, dtype=float) / self.eq.Tc, 0.0, None))
+        return np.cbrt(np.maximum(1.0 - np.asarray(T, dtype=float) / self.eq.Tc, 0.0))
 
     def pressure(self, T: np.ndarray) -> np.ndarray:
         """Vapour pressure (Pa) at T, T_low <= T <= Tc (cubic Hermite in x, no equation call)."""
-        T = np.clip(np.asarray(T, dtype=float), self.T_low, self.eq.Tc)
-        x = np.clip(self._x_of(T), 0.0, self.x_top)
+        T = np.minimum(np.maximum(np.asarray(T, dtype=float), self.T_low), self.eq.Tc)
+        x = np.minimum(self._x_of(T), self.x_top)  # _x_of is never negative
         xs = self._x
-        i = np.clip(np.searchsorted(xs, x, side="right") - 1, 0, xs.size - 2)
+        i = np.minimum(np.maximum(np.searchsorted(xs, x, side="right") - 1, 0), xs.size - 2)
         h = xs[i + 1] - xs[i]
         s = (x - xs[i]) / h
         s2, s3 = s * s, s * s * s

@@ -290,7 +290,7 @@ class EquationSubstance(GeneralSubstance):
             "fluid": (eq.title, f"{fmt(self.tc)} K to {fmt(self.t_max)} K, up to {fmt(eq.p_max)} Pa, not beyond the "
                       "melting line"),
             "chem_potential": ("R T ln(p/p0) + the equation's residual Gibbs energy, relative to the ideal gas at the "
-                               "same temperature and 101.325 kPa; the solid's anchored to the fluid's on the melting "
+                               f"same temperature and {fmt(P0 / 1e3)} kPa; the solid's anchored to the fluid's on the melting "
                                "and sublimation lines", ""),
             "latent_heat": ("boiling: h'' - h' from the equation; melting and sublimation: Clapeyron equation with the "
                             "model's volumes and the lines' slopes", models["boil"][1]),
