@@ -10,6 +10,7 @@ Excel is commonly known to do.
 from __future__ import annotations
 
 import contextlib
+import gc
 import io
 import os
 import re
@@ -156,6 +157,23 @@ def test_round_trip_keeps_formulas_styles_chart_and_untouched_parts_byte_identic
     assert len(ws._charts) == 1
     custom = contents(dst)["docProps/custom.xml"].decode()
     assert 'name="RecalcEngine"' in custom and f">{cellfuncs.__version__}<" in custom
+
+
+def test_the_command_lines_quiet_set_up_changes_no_result_and_restores_the_collector(tmp_path):
+    # the engine's contract (cellfuncs/workbook/recalc.py): keeping the garbage collector out of
+    # reading and set-up is for speed alone, and the collector runs again afterwards
+    from cellfuncs.workbook.recalc import recalc_file
+
+    src = plant(tmp_path)
+    assert gc.isenabled()
+    try:
+        for quiet in (False, True, True):  # twice: the second unfreezes what the first left frozen
+            recalc_file(str(src), str(tmp_path / f"{quiet}.xlsx"), quiet_set_up=quiet)
+            assert gc.isenabled()
+        assert gc.get_freeze_count() > 0  # what the last workbook made stays frozen for the process's end
+    finally:
+        gc.unfreeze()
+    assert contents(tmp_path / "True.xlsx") == contents(tmp_path / "False.xlsx")
 
 
 def test_cached_values_are_the_computed_values(tmp_path):

@@ -227,7 +227,8 @@ def _recalc_one(job: tuple, progress: Callable[[int, int], None] | None = None
 
     path, dest, check, tolerance, limits, split_links, volatility = job
     try:
-        return recalc_file(path, dest, check, tolerance, progress, limits, split_links, volatility), None
+        return recalc_file(path, dest, check, tolerance, progress, limits, split_links, volatility,
+                           quiet_set_up=True), None
     except Exception as exc:
         return None, f"{type(exc).__name__}: {exc}"
 

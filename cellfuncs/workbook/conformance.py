@@ -216,7 +216,7 @@ def score_workbook(path: Path, source: str) -> WorkbookScore:
             score.volatile += sum(1 for cached, _ in _compared(engine, fi) if cached is not None)
             continue
         rel = ITERATIVE_TOLERANCE if ITERATIVE.intersection(calls[fi]) else REL_TOLERANCE
-        rows = [(c, v, same(c, v, rel, ABS_TOLERANCE, file_errors=False)) for c, v in _compared(engine, fi)
+        rows = [(c, v, same(c, v, rel, ABS_TOLERANCE)) for c, v in _compared(engine, fi)
                 if c is not None]
         results[fi] = rows
         if any(not ok for _, _, ok in rows):

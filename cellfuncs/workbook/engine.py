@@ -450,6 +450,11 @@ class Recalc:
         self.legacy_cells = 0
         self._load()
         self._columns = self._column_index()
+        # the cells' extent of each sheet, before spills: fixed once read, and every pass starts from it
+        self._loaded_extent: list[tuple[int, int]] = []
+        for constants, formulas in zip(self.constants, self.at):
+            keys = (*constants, *formulas)
+            self._loaded_extent.append((max((k[0] for k in keys), default=1), max((k[1] for k in keys), default=1)))
         self.values: list[dict] = []
         self.result: list[Value] = []
         self.spills: dict[int, Area] = {}
@@ -942,10 +947,7 @@ class Recalc:
         self.name_values = {}
         self.spill_left = self.limits.spill_cells - self.legacy_cells  # the stored {=array} ranges are filled anyway
         self.budget.restart()
-        self.extent = []
-        for s in range(len(self.book.sheets)):
-            keys = list(self.constants[s]) + list(self.at[s])
-            self.extent.append([max((k[0] for k in keys), default=1), max((k[1] for k in keys), default=1)])
+        self.extent = [list(e) for e in self._loaded_extent]
         for fi, a in assumed.items():  # whole-column references reach spills not placed yet
             self._grow(self.cells[fi].sheet, a)
 

@@ -11,8 +11,6 @@ from __future__ import annotations
 import re
 from typing import Mapping
 
-from openpyxl.formula.translate import Translator
-
 from .refs import address
 from .sheetxml import SheetScan
 
@@ -36,5 +34,9 @@ def formula_at(scan: SheetScan, firsts: Mapping[str, tuple[int, int]], row: int,
     first = firsts.get(f.si)
     if first is None:
         return None
+    # imported here: openpyxl's package import loads its whole workbook model (about 50 ms), which a
+    # recalculation needs only for the shared formulas FORMULATEXT shows
+    from openpyxl.formula.translate import Translator  # pylint: disable=import-outside-toplevel
+
     moved = Translator("=" + scan.formulas[first].text, origin=address(*first)).translate_formula(address(row, col))
     return shown(moved[1:])

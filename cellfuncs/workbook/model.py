@@ -100,6 +100,7 @@ class Book:
     iteration: tuple[int, float] | None = None  # iterative calculation: (maximum count, maximum change)
     links: list[ExternalBook | None] = field(default_factory=list)  # [1], [2], ... of external references
     pivots: list[PivotTable] = field(default_factory=list)
+    rich: dict[str, CellError] = field(default_factory=dict)  # value-metadata index (vm) -> its rich error
 
     def pivot_at(self, sheet: int, where: Area) -> PivotTable | None:
         """The pivot table an area of a sheet meets (GETPIVOTDATA's second argument)."""
@@ -299,7 +300,7 @@ def load(pkg: Package) -> Book:
             names[key] = (el.text or "").strip()
     date1904 = any(_flag(el, "date1904") for el in _children(root, "workbookPr"))
     return Book(wb_part, sheets, names, metadata_part, cm, parsed, tables, date1904, _iteration(root),
-                _links(pkg, root, rels, parsed), _pivots(pkg, sheets, parsed, date1904))
+                _links(pkg, root, rels, parsed), _pivots(pkg, sheets, parsed, date1904), rich)
 
 
 def _rel_id(el: Element) -> str | None:

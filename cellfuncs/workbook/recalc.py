@@ -9,10 +9,12 @@
 
 from __future__ import annotations
 
+import gc
 import os
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from datetime import datetime
-from typing import Callable, NamedTuple
+from typing import Callable, Iterator, NamedTuple
 
 from ..errors import CellError
 from ..formula.clock import fixed
@@ -74,11 +76,43 @@ class Volatility(NamedTuple):
     compared: bool = True
 
 
+@contextmanager
+def _no_collection_while_setting_up(active: bool) -> Iterator[Callable[[], None]]:
+    """Yield ``done``, to be called once reading and set-up are over. Until then, with ``active``,
+    the cyclic garbage collector is off: the reader and the engine make hundreds of thousands of
+    objects that live to the end, and each automatic full collection would walk them all again.
+    ``done`` freezes them out of later collections and turns the collector back on for evaluation,
+    whose garbage is the formulas' doing. They stay frozen after the return: the process ends soon
+    after (the collection Python runs at exit would walk them once more), or the next workbook's
+    set-up unfreezes and collects them first. Process-wide, so for the command line's process only."""
+    was_enabled = gc.isenabled()
+    if not active:
+        yield lambda: None
+        return
+    if gc.get_freeze_count():
+        gc.unfreeze()
+        gc.collect()
+
+    def done() -> None:
+        gc.freeze()
+        if was_enabled:
+            gc.enable()
+
+    gc.disable()
+    try:
+        yield done
+    finally:
+        if was_enabled:
+            gc.enable()
+
+
 def recalc_file(path: str, dest: str | None = None, check: bool = False, tolerance: float = 1e-9,
                 progress: Callable[[int, int], None] | None = None, limits: Limits = DEFAULTS,
-                split_links: bool = False, volatility: Volatility | None = None) -> Outcome:
+                split_links: bool = False, volatility: Volatility | None = None,
+                quiet_set_up: bool = False) -> Outcome:
     """Recalculate the workbook at ``path``; write it to ``dest`` if given (``dest == path``:
-    in place, to the file :func:`in_place_target` names).
+    in place, to the file :func:`in_place_target` names). ``quiet_set_up`` keeps the garbage
+    collector out of reading and set-up (process-wide: see :func:`_no_collection_while_setting_up`).
 
     A refused file gives an Outcome with ``refused`` set and nothing written; an output the
     operating system would not take (disk full, read-only, a folder in the way) one with
@@ -86,38 +120,40 @@ def recalc_file(path: str, dest: str | None = None, check: bool = False, toleran
     """
     outcome = Outcome(path)
     pkg = None
-    try:
-        if dest == path:
-            dest = in_place_target(path, split_links)
-        if dest is not None and os.path.isdir(dest):
-            outcome.unwritten = "the destination is a folder"
-            return outcome
-        pkg = Package(path)
-        book = load(pkg)
-        pkg.validate(book.parsed)
-        volatility = volatility or Volatility()
-        engine = Recalc(book, pack_functions(), progress, limits)
-        with fixed(volatility.now, volatility.seed):
-            engine.run()
-        outcome.cells = len(engine.cells)
-        outcome.errors = list(engine.error_cells())
-        if check:
-            skipped = set() if volatility.compared else volatile_cells(engine)
-            outcome.differences = differences(engine, book, tolerance, skipped)
-        if dest is not None:
-            from .writer import plan
-            from .zipout import write_package
+    with _no_collection_while_setting_up(quiet_set_up) as set_up_done:
+        try:
+            if dest == path:
+                dest = in_place_target(path, split_links)
+            if dest is not None and os.path.isdir(dest):
+                outcome.unwritten = "the destination is a folder"
+                return outcome
+            pkg = Package(path)
+            book = load(pkg)
+            pkg.validate(book.parsed)
+            volatility = volatility or Volatility()
+            engine = Recalc(book, pack_functions(), progress, limits)
+            set_up_done()
+            with fixed(volatility.now, volatility.seed):
+                engine.run()
+            outcome.cells = len(engine.cells)
+            outcome.errors = list(engine.error_cells())
+            if check:
+                skipped = set() if volatility.compared else volatile_cells(engine)
+                outcome.differences = differences(engine, book, tolerance, skipped)
+            if dest is not None:
+                from .writer import plan
+                from .zipout import write_package
 
-            replaced, removed, added = plan(pkg, book, engine)
-            try:
-                write_package(pkg, dest, replaced, removed, added)
-            except OSError as exc:
-                outcome.unwritten = unwritable(exc)
-            else:
-                outcome.written = dest
-    except Refused as exc:
-        outcome.refused = str(exc)
-    finally:
-        if pkg is not None:
-            pkg.close()
+                replaced, removed, added = plan(pkg, book, engine)
+                try:
+                    write_package(pkg, dest, replaced, removed, added)
+                except OSError as exc:
+                    outcome.unwritten = unwritable(exc)
+                else:
+                    outcome.written = dest
+        except Refused as exc:
+            outcome.refused = str(exc)
+        finally:
+            if pkg is not None:
+                pkg.close()
     return outcome

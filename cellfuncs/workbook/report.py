@@ -17,29 +17,24 @@ import sys
 import time
 from typing import TextIO
 
-from ..errors import VALUE, CellError
+from ..errors import CellError
 from .engine import Recalc
 from .model import Book
 from .refs import Area
-from .writer import FILE_ERRORS
 
 
-def same(cached: object, computed: object, rel: float, absolute: float = 0.0, file_errors: bool = True) -> bool:
+def same(cached: object, computed: object, rel: float, absolute: float = 0.0) -> bool:
     """Whether a cached value matches the computed one, the one rule of ``recalc --check`` and
     of the conformance runner: numbers within ``rel`` relative (the caller's choice: ``--check``'s
     ``--tolerance``, the runner's 1e-9 or 1e-7 for functions Excel solves by iteration) or
     within ``absolute`` (0 for ``--check``; the runner's 1e-12, for results that are 0 but for
-    rounding), text exactly, errors by code; a missing cached value never matches. With
-    ``file_errors`` a plain #VALUE! stored matches an error the file can hold only as #VALUE!
-    (#CALC!, #SPILL!: see writer.FILE_ERRORS), so a file this engine wrote checks clean against
-    itself; the runner compares Excel's files, which hold those errors as rich values, without it.
+    rounding), text exactly, errors by code (#CALC! and #SPILL! are read from the rich values
+    Excel, and this engine, store them in); a missing cached value never matches.
 
-    >>> same(CellError("#VALUE!"), CellError("#CALC!"), 1e-9), same(CellError("#CALC!"), CellError("#VALUE!"), 1e-9)
-    (True, False)
+    >>> same(CellError("#VALUE!"), CellError("#CALC!"), 1e-9), same(CellError("#CALC!"), CellError("#CALC!", "x"), 1e-9)
+    (False, True)
     >>> same(0.0, 1e-13, 1e-9), same(0.0, 1e-13, 1e-9, absolute=1e-12)
     (False, True)
-    >>> same(CellError("#VALUE!"), CellError("#CALC!"), 1e-9, file_errors=False)
-    False
     """
     if cached is None:
         return False
@@ -50,8 +45,7 @@ def same(cached: object, computed: object, rel: float, absolute: float = 0.0, fi
         diff = abs(cached - computed)
         return diff <= absolute or diff <= rel * max(abs(cached), abs(computed))
     if tc is CellError and tv is CellError:
-        held_as_value = file_errors and cached.code == VALUE and computed.code not in FILE_ERRORS
-        return cached.code == computed.code or held_as_value
+        return cached.code == computed.code
     return tc is tv and cached == computed
 
 

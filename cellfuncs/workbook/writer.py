@@ -7,19 +7,23 @@ attributes (style), its formula and any extension, and gets its new cached value
 stores a dynamic array: ``<f t="array" ref="A1:B10">`` in the anchor, whose ``cm`` points
 at a cell-metadata record marking it dynamic (XLDAPR, ``fDynamic="1"``), and the values
 in every cell of the range. Cells of an old, larger spill are emptied (their style stays).
+An error the file format came without (#SPILL!, #CALC!) is stored as Excel stores it: ``<v>`` holds
+#VALUE! and the cell's ``vm`` points through xl/metadata.xml at a rich value of the ``_error``
+structure holding the true error; a cell whose error goes away loses its ``vm``.
 A stored number that is not finite (``NaN``, ``INF``, ``1e999``) is read as #NUM! and
 written as #NUM!, so that no reader meets it as a number.
 """
 
 from __future__ import annotations
 
+import posixpath
 import re
 from typing import Callable
 
 from .. import __version__
 from ..errors import DIV0, NA, NAME, NULL, NUM, REF, VALUE, CellError
 from .engine import Recalc
-from .model import Book, Rel, relationships, rels_part
+from .model import RICH_DATA_NS, RICH_ERRORS, RICH_TYPE, Book, Rel, relationships, rels_part
 from .package import Package, Refused
 from .refs import Area, address, area
 from .sheetxml import CellSpan, FormulaXml, SheetScan, tag_end
@@ -42,6 +46,20 @@ _XLDAPR_TYPE = (b'<%smetadataType name="XLDAPR" minSupportedVersion="120000" cop
 _XLDAPR_FUTURE = (b'<%sfutureMetadata name="XLDAPR" count="1"><%sbk><%sextLst><%sext uri="{bdbb8cdc-fa1e-496e-a857-'
                   b'3c3f30c029c3}"><xda:dynamicArrayProperties xmlns:xda="' + _XDA_NS + b'" fDynamic="1" fCollapsed="0"/>'
                   b'</%sext></%sextLst></%sbk></%sfutureMetadata>')
+_XLRICHVALUE_TYPE = (b'<%smetadataType name="XLRICHVALUE" minSupportedVersion="120000" copy="1" pasteAll="1" '
+                     b'pasteValues="1" merge="1" splitFirst="1" rowColShift="1" clearFormats="1" clearComments="1" '
+                     b'assign="1" coerce="1"/>')
+_RICH_NS = RICH_DATA_NS.encode()
+_RVB = (b'<%%sbk><%%sextLst><%%sext uri="{3e2802c4-a4d2-4d8b-9148-e3be6c30e623}"><xlrd:rvb xmlns:xlrd="' + _RICH_NS +
+        b'" i="%d"/></%%sext></%%sextLst></%%sbk>')
+_RICH_REL = "http://schemas.microsoft.com/office/2017/06/relationships/"
+# (relationship, file name, content type, root element, child element) of the two rich-data parts
+_RICH_VALUES = ("rdRichValue", "rdrichvalue.xml", "application/vnd.ms-excel.rdrichvalue+xml", "rvData", "rv")
+_RICH_STRUCTURES = ("rdRichValueStructure", "rdrichvaluestructure.xml",
+                    "application/vnd.ms-excel.rdrichvaluestructure+xml", "rvStructures", "s")
+# the structure Excel gives an error value (the reference workbooks: #CALC! and #SPILL! alike);
+# subType 0 is the error without a stated cause
+_ERROR_STRUCTURE = b'<%ss t="_error"><%sk n="errorType" t="i"/><%sk n="subType" t="i"/></%ss>'
 _CELL_CHANGES = {b"t", b"cm", b"vm"}
 # a cell's start tag as Excel, LibreOffice and openpyxl write it: r first, then attributes each after one space
 _PLAIN_CELL = re.compile(rb'<((?:[A-Za-z_][\w.-]*:)?)c r="([^"<>]*)"((?: [A-Za-z_][\w.:-]*="[^"<>]*")*)[ \t\r\n]*/?>')
@@ -81,8 +99,8 @@ def is_dynamic(engine: Recalc, fi: int) -> bool:
 class _SheetPatch:
     """The edits of one worksheet."""
 
-    def __init__(self, data: bytes, scan: SheetScan, engine: Recalc, s: int, cm: bytes | None):
-        self.data, self.scan, self.engine, self.s, self.cm = data, scan, engine, s, cm
+    def __init__(self, data: bytes, scan: SheetScan, engine: Recalc, s: int, cm: bytes | None, rich: RichErrors):
+        self.data, self.scan, self.engine, self.s, self.cm, self.rich = data, scan, engine, s, cm, rich
         sheet_data = scan.sheet_data
         if sheet_data is None:
             raise Refused(f"{scan.part}: no sheetData element")
@@ -128,6 +146,8 @@ class _SheetPatch:
         self.touched.add(key)
         t, v = value_xml(value)
         add = [(b"t", t), *extra_attrs] if t else extra_attrs
+        if type(value) is CellError and value.code not in FILE_ERRORS:
+            add = [*add, (b"vm", self.rich.vm(value.code))]
         if span is None:
             p = self.p
             attrs = b"".join(b' %s="%s"' % kv for kv in add)
@@ -317,26 +337,28 @@ class PackageEdit:
         return self.replaced.get(name) or self.pkg.utf8(name)
 
     def relate(self, source: str, kind: str, target_rel: str, drop_kinds: set[str] = frozenset()) -> None:
-        """Add a relationship of ``source`` (and drop those of ``drop_kinds``)."""
+        """Add a relationship of ``source`` of type ``kind`` (a full URI, or the last step of one of
+        the document relationships) and drop those of ``drop_kinds``."""
         name = rels_part(source)
         if name not in self.pkg and not any(n == name for n, _ in self.added):
             self.added.append((name, b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<Relationships '
                                      b'xmlns="http://schemas.openxmlformats.org/package/2006/relationships"/>'))
-        data = self._take(name)
+        data = self.take(name)
         add = []
         if kind:
             rid = _new_id(data, name)
-            add.append(b'<%%sRelationship Id="%s" Type="%s" Target="%s"/>' % (rid, attr(_REL + kind), attr(target_rel)))
+            uri = kind if "://" in kind else _REL + kind
+            add.append(b'<%%sRelationship Id="%s" Type="%s" Target="%s"/>' % (rid, attr(uri), attr(target_rel)))
         new = _edit_children(data, name, lambda e: e.attrib.get("Type", "").rsplit("/", 1)[-1] in drop_kinds, add)
-        self._put(name, new)
+        self.put(name, new)
 
-    def _take(self, name: str) -> bytes:
+    def take(self, name: str) -> bytes:
         for n, d in self.added:
             if n == name:
                 return d
         return self.current(name)
 
-    def _put(self, name: str, data: bytes) -> None:
+    def put(self, name: str, data: bytes) -> None:
         for i, (n, _) in enumerate(self.added):
             if n == name:
                 self.added[i] = (n, data)
@@ -351,13 +373,24 @@ class PackageEdit:
         add = [b'<%%sOverride PartName="%s" ContentType="%s"/>' % (attr(p), attr(t))
                for p, t in self.content_add if p not in existing]
         new = _edit_children(data, name, lambda e: e.local == "Override" and e.attrib.get("PartName") in self.content_drop, add)
-        self._put(name, new)
+        self.put(name, new)
 
 
 def _relative(source: str, target: str) -> str:
-    import posixpath
-
     return posixpath.relpath(target, posixpath.dirname(source) or ".")
+
+
+def _children_of(els: list[Element], parent: Element, local: str) -> list[Element]:
+    return [e for e in els if e.depth == parent.depth + 1 and e.local == local and parent.start < e.start < parent.close]
+
+
+def _appended(data: bytes, part: str, parent: Element, payload: bytes, count: int) -> list[tuple[int, int, bytes]]:
+    """The edits that append ``payload`` to a counted element and set its ``count``."""
+    if parent.close == parent.start:
+        raise Refused(f"{part}: an empty {parent.local} element")
+    end = parent.inner(data)
+    return [(parent.close, parent.close, payload),
+            (parent.start, end, retag(data[parent.start:end], {b"count"}, [(b"count", b"%d" % count)]))]
 
 
 def dynamic_record(edit: PackageEdit, book: Book) -> bytes:
@@ -366,18 +399,9 @@ def dynamic_record(edit: PackageEdit, book: Book) -> bytes:
         return book.dynamic_cm.encode()
     part = book.metadata_part
     if part is None:
-        import posixpath
-
-        part = posixpath.join(posixpath.dirname(book.workbook_part), "metadata.xml")
-        if part in edit.pkg:
-            raise Refused(f"{part} exists but the workbook does not use it")
-        data = (b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<metadata xmlns="' + _MAIN_NS +
-                b'" xmlns:xda="' + _XDA_NS + b'"><metadataTypes count="1">' + _XLDAPR_TYPE % b"" +
-                b"</metadataTypes>" + _XLDAPR_FUTURE.replace(b"%s", b"") +
-                b'<cellMetadata count="1"><bk><rc t="1" v="0"/></bk></cellMetadata></metadata>')
-        edit.added.append((part, data))
-        edit.relate(book.workbook_part, "sheetMetadata", _relative(book.workbook_part, part))
-        edit.content_add.append(("/" + part, _METADATA_TYPE))
+        _new_metadata(edit, book, _metadata_part(book), b'<metadataTypes count="1">' + _XLDAPR_TYPE % b"" +
+                      b"</metadataTypes>" + _XLDAPR_FUTURE.replace(b"%s", b"") +
+                      b'<cellMetadata count="1"><bk><rc t="1" v="0"/></bk></cellMetadata>')
         return b"1"
     data = edit.pkg.utf8(part)
     els = elements(data, part)
@@ -387,37 +411,165 @@ def dynamic_record(edit: PackageEdit, book: Book) -> bytes:
     if "futureMetadata" in top and any(e.attrib.get("name") == "XLDAPR" for e in els if e.depth == 2):
         raise Refused(f"{part}: an XLDAPR record this tool cannot reuse")
     edits = []
-    types = top.get("metadataTypes")
-    if types is not None and not types.close == types.start:
-        n_types = sum(1 for e in els if e.depth == 3 and e.local == "metadataType" and types.start < e.start < types.close)
-        edits.append((types.close, types.close, _XLDAPR_TYPE % p))
-        end = types.inner(data)
-        edits.append((types.start, end, retag(data[types.start:end], {b"count"}, [(b"count", b"%d" % (n_types + 1))])))
-    elif types is None:
-        n_types = 0
-        at = root.inner(data)
-        edits.append((at, at, b'<%smetadataTypes count="1">' % p + _XLDAPR_TYPE % p + b"</%smetadataTypes>" % p))
-    else:
-        raise Refused(f"{part}: an empty metadataTypes element")
+    n_types, type_edits = _metadata_type(data, part, els, _XLDAPR_TYPE % p)
+    edits += type_edits
     later = [top[k].start for k in ("cellMetadata", "valueMetadata", "extLst") if k in top]
     at = min(later) if later else root.close
     edits.append((at, at, _XLDAPR_FUTURE.replace(b"%s", p)))
     record = b'<%sbk><%src t="%d" v="0"/></%sbk>' % (p, p, n_types + 1, p)
     cells = top.get("cellMetadata")
-    if cells is not None and cells.close != cells.start:
-        n_bk = sum(1 for e in els if e.depth == 3 and e.local == "bk" and cells.start < e.start < cells.close)
-        edits.append((cells.close, cells.close, record))
-        end = cells.inner(data)
-        edits.append((cells.start, end, retag(data[cells.start:end], {b"count"}, [(b"count", b"%d" % (n_bk + 1))])))
+    if cells is not None:
+        n_bk = len(_children_of(els, cells, "bk"))
+        edits += _appended(data, part, cells, record, n_bk + 1)
     else:
-        if cells is not None:
-            raise Refused(f"{part}: an empty cellMetadata element")
         n_bk = 0
         later = [top[k].start for k in ("valueMetadata", "extLst") if k in top]
         at = min(later) if later else root.close
         edits.append((at, at, b'<%scellMetadata count="1">' % p + record + b"</%scellMetadata>" % p))
     edit.replaced[part] = splice(data, edits)
     return b"%d" % (n_bk + 1)
+
+
+def _metadata_type(data: bytes, part: str, els: list[Element], template: bytes) -> tuple[int, list]:
+    """(the number of metadata types before it, the edits) to add the metadata type ``template``
+    (its prefix filled in) to a metadata part."""
+    root = els[0]
+    types = next((e for e in els if e.depth == 2 and e.local == "metadataTypes"), None)
+    if types is None:
+        at = root.inner(data)
+        p = prefix(data, root)
+        return 0, [(at, at, b'<%smetadataTypes count="1">' % p + template + b"</%smetadataTypes>" % p)]
+    n_types = len(_children_of(els, types, "metadataType"))
+    return n_types, _appended(data, part, types, template, n_types + 1)
+
+
+class RichErrors:
+    """The ``vm`` of each error written as a rich value: one the file has for that error, else
+    one added (with its rich value) when the sheets are written."""
+
+    def __init__(self, edit: PackageEdit, book: Book):
+        self.edit, self.book = edit, book
+        self.known: dict[str, bytes] = {}
+        # highest first, so that of two records of one error the first is the one kept
+        for vm, error in sorted(book.rich.items(), key=lambda kv: int(kv[0]), reverse=True):
+            if not error.reason:  # an error the engine has a code for, not #VALUE! in place of another
+                self.known[error.code] = vm.encode()
+        self.part = book.metadata_part or _metadata_part(book)
+        self.added: list[str] = []  # the codes that get a new rich value, in order
+        self.first = 1  # the vm of the first one added
+        if self.part in edit.pkg or any(n == self.part for n, _ in edit.added):
+            data = edit.take(self.part)
+            els = elements(data, self.part)
+            block = next((e for e in els if e.depth == 2 and e.local == "valueMetadata"), None)
+            self.first += 0 if block is None else len(_children_of(els, block, "bk"))
+
+    def vm(self, code: str) -> bytes:
+        vm = self.known.get(code)
+        if vm is None:
+            vm = self.known[code] = b"%d" % (self.first + len(self.added))
+            self.added.append(code)
+        return vm
+
+    def write(self) -> None:
+        """Add the rich values, their structure and the metadata records that point at them."""
+        if not self.added:
+            return
+        types = [RICH_ERRORS.index(code) for code in self.added]
+        edit, book = self.edit, self.book
+        targets = {r.kind: r.target for r in relationships(edit.pkg, book.workbook_part) if not r.external}
+        structure = self._part(targets, _RICH_STRUCTURES, [_ERROR_STRUCTURE], _error_structure)
+        values = [b'<%%srv s="%d"><%%sv>%d</%%sv><%%sv>0</%%sv></%%srv>' % (structure, t) for t in types]
+        self._metadata(self._part(targets, _RICH_VALUES, values, None))
+
+    def _part(self, targets: dict[str, str], kind: tuple[str, str, str, str, str], children: list[bytes],
+              find: Callable[[list[Element]], int | None] | None) -> int:
+        """Append ``children`` to the rich-data part ``kind`` unless ``find`` finds there what
+        they would add; the index of the first child appended (or of the one found)."""
+        rel, name, content_type, root_name, child = kind
+        edit = self.edit
+        part = targets.get(rel)
+        if part is None or part not in edit.pkg:
+            part = posixpath.join(posixpath.dirname(self.book.workbook_part), "richData", name)
+            if part in edit.pkg:
+                raise Refused(f"{part} exists but the workbook does not use it")
+            edit.added.append((part, b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<%s xmlns="%s" '
+                               b'count="%d">%s</%s>' % (root_name.encode(), _RICH_NS, len(children),
+                                                         b"".join(children).replace(b"%s", b""), root_name.encode())))
+            edit.relate(self.book.workbook_part, _RICH_REL + rel, _relative(self.book.workbook_part, part))
+            edit.content_add.append(("/" + part, content_type))
+            return 0
+        data = edit.current(part)
+        els = elements(data, part)
+        found = find(els) if find else None
+        if found is not None:
+            return found
+        root = els[0]
+        n = len(_children_of(els, root, child))
+        payload = b"".join(children).replace(b"%s", prefix(data, root))
+        edit.put(part, splice(data, _appended(data, part, root, payload, n + len(children))))
+        return n
+
+    def _metadata(self, first_value: int) -> None:
+        edit, part = self.edit, self.part
+        if not (part in edit.pkg or any(n == part for n, _ in edit.added)):
+            _new_metadata(edit, self.book, part, b"")
+        data = edit.take(part)
+        els = elements(data, part)
+        p = prefix(data, els[0])
+        top = {e.local: e for e in reversed(els) if e.depth == 2}
+        types = _children_of(els, top["metadataTypes"], "metadataType") if "metadataTypes" in top else []
+        names = [e.attrib.get("name") for e in types]
+        edits = []
+        if RICH_TYPE in names:
+            t = names.index(RICH_TYPE) + 1
+        else:
+            n_types, edits = _metadata_type(data, part, els, _XLRICHVALUE_TYPE % p)
+            t = n_types + 1
+        future = next((e for e in els if e.depth == 2 and e.local == "futureMetadata"
+                       and e.attrib.get("name") == RICH_TYPE), None)
+        n_future = 0 if future is None else len(_children_of(els, future, "bk"))
+        blocks = b"".join(_RVB.replace(b"%%s", p) % (first_value + k) for k in range(len(self.added)))
+        if future is None:
+            later = [top[k].start for k in ("cellMetadata", "valueMetadata", "extLst") if k in top]
+            at = min(later) if later else els[0].close
+            edits.append((at, at, b'<%sfutureMetadata name="%s" count="%d">%s</%sfutureMetadata>'
+                          % (p, RICH_TYPE.encode(), len(self.added), blocks, p)))
+        else:
+            edits += _appended(data, part, future, blocks, n_future + len(self.added))
+        records = b"".join(b'<%sbk><%src t="%d" v="%d"/></%sbk>' % (p, p, t, n_future + k, p)
+                           for k in range(len(self.added)))
+        block = top.get("valueMetadata")
+        if block is None:
+            at = top["extLst"].start if "extLst" in top else els[0].close
+            edits.append((at, at, b'<%svalueMetadata count="%d">%s</%svalueMetadata>' % (p, len(self.added), records, p)))
+        else:
+            edits += _appended(data, part, block, records, self.first - 1 + len(self.added))
+        edit.put(part, splice(data, edits))
+
+
+def _error_structure(els: list[Element]) -> int | None:
+    """The index of a structure of the form an added error value takes, if the part has one."""
+    root = els[0]
+    for n, s in enumerate(_children_of(els, root, "s")):
+        keys = [(k.attrib.get("n"), k.attrib.get("t")) for k in _children_of(els, s, "k")]
+        if s.attrib.get("t") == "_error" and keys == [("errorType", "i"), ("subType", "i")]:
+            return n
+    return None
+
+
+def _metadata_part(book: Book) -> str:
+    """Where a workbook without one gets its metadata part."""
+    return posixpath.join(posixpath.dirname(book.workbook_part), "metadata.xml")
+
+
+def _new_metadata(edit: PackageEdit, book: Book, part: str, body: bytes) -> None:
+    """Add the metadata part ``part`` holding ``body``, related from the workbook."""
+    if part in edit.pkg:
+        raise Refused(f"{part} exists but the workbook does not use it")
+    edit.added.append((part, b'<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<metadata xmlns="' + _MAIN_NS +
+                       b'" xmlns:xda="' + _XDA_NS + b'">' + body + b"</metadata>"))
+    edit.relate(book.workbook_part, "sheetMetadata", _relative(book.workbook_part, part))
+    edit.content_add.append(("/" + part, _METADATA_TYPE))
 
 
 def _custom_properties(edit: PackageEdit) -> None:
@@ -454,7 +606,7 @@ def _custom_properties(edit: PackageEdit) -> None:
         else:
             add.append(prop(next_pid, name, value))
             next_pid += 1
-    edit._put(part, _edit_children(data, part, lambda e: False, add, replace))
+    edit.put(part, _edit_children(data, part, lambda e: False, add, replace))
 
 
 def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], set[str], list[tuple[str, bytes]]]:
@@ -464,13 +616,15 @@ def plan(pkg: Package, book: Book, engine: Recalc) -> tuple[dict[str, bytes], se
     spilt = {*engine.spills, *engine.blocked}  # with the dynamic arrays stored, the only cells is_dynamic may take
     if any(fc.kind == "dynamic" for fc in engine.cells) or any(is_dynamic(engine, fi) for fi in spilt):
         cm = dynamic_record(edit, book)
+    rich = RichErrors(edit, book)
     for sheet in book.sheets:
         if sheet.scan is None or not (engine.at[sheet.index] or engine.claims[sheet.index] or sheet.scan.not_finite):
             continue
         data = pkg.utf8(sheet.part)
-        new = _SheetPatch(data, sheet.scan, engine, sheet.index, cm).build()
+        new = _SheetPatch(data, sheet.scan, engine, sheet.index, cm, rich).build()
         if new != data:
             edit.replaced[sheet.part] = new
+    rich.write()
     wb_rels = relationships(pkg, book.workbook_part)
     chains = [r.target for r in wb_rels if r.kind == "calcChain" and not r.external]
     if chains:

@@ -30,8 +30,13 @@ def _dos(date_time: tuple[int, ...]) -> tuple[int, int]:
     return (h << 11) | (mi << 5) | (s // 2), ((max(y, 1980) - 1980) << 9) | (mo << 5) | d
 
 
+# Rewritten members only (untouched ones keep their stored bytes). On a large sheet's XML level 4
+# takes about 40 % of level 6's time for a result about 5 % larger.
+DEFLATE_LEVEL = 4
+
+
 def _deflate(data: bytes) -> bytes:
-    c = zlib.compressobj(6, zlib.DEFLATED, -15)
+    c = zlib.compressobj(DEFLATE_LEVEL, zlib.DEFLATED, -15)
     return c.compress(data) + c.flush()
 
 
