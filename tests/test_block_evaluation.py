@@ -259,16 +259,16 @@ def test_anchored_and_mixed_references_in_a_rectangle():
 
 
 def test_a_block_larger_than_one_batch_is_cut_into_bands():
-    from cellfuncs.workbook import engine as engine_module
+    from cellfuncs.workbook import blocks as blocks_module
 
     cells = {address(r, c): f"=$B{r + 300}*2" for r in range(1, 41) for c in range(1, 11)}
     cells.update({address(r + 300, 2): float(r) for r in range(1, 41)})
-    saved = engine_module.BATCH_CELLS
-    engine_module.BATCH_CELLS = 100
+    saved = blocks_module.BATCH_CELLS
+    blocks_module.BATCH_CELLS = 100
     try:
         engine = _checked({"S": cells})
     finally:
-        engine_module.BATCH_CELLS = saved
+        blocks_module.BATCH_CELLS = saved
     assert _blocks(engine) == [(10, 10)] * 4
 
 

@@ -1,4 +1,5 @@
-"""A1 references: cell addresses, areas with their ``$`` anchors, and shifting them.
+"""A1 references: cell addresses, areas with their ``$`` anchors, shifting them, and sheet
+names as formulas write them.
 
 Rows and columns are 1-based. A whole-column area (``A:C``) spans every row and a
 whole-row area (``2:5``) every column; relative parts move when a formula is
@@ -18,7 +19,7 @@ from typing import NamedTuple
 
 from ..formula.a1 import MAX_COL, MAX_ROW, column_letters, column_number
 
-__all__ = ["MAX_COL", "MAX_ROW", "Area", "address", "area", "column_letters", "column_number", "shifted"]
+__all__ = ["MAX_COL", "MAX_ROW", "Area", "address", "area", "column_letters", "column_number", "quoted", "shifted"]
 
 _CELL = r"(\$?)([A-Za-z]{1,3})(\$?)([0-9]{1,7})"
 # a sheet's cells number in the millions, each read once: so a cell is read by its own pattern, not cached
@@ -136,3 +137,13 @@ def cell(ref: str) -> tuple[int, int] | None:
         return (a.r1, a.c1) if a is not None and a.single else None
     row, col = int(m.group(2)), column_number(m.group(1))
     return (row, col) if 1 <= row <= MAX_ROW and col <= MAX_COL else None
+
+
+def quoted(sheet: str) -> str:
+    """A sheet name as a formula writes it.
+
+    >>> quoted("Data"), quoted("My data"), quoted("it's")
+    ('Data', "'My data'", "'it''s'")
+    """
+    plain = sheet.replace("_", "").replace(".", "").isalnum() and not sheet[0].isdigit()
+    return sheet if plain else "'" + sheet.replace("'", "''") + "'"
