@@ -46,7 +46,8 @@ import re
 from ..errors import CellError
 from .package import ENTITY_REFUSAL, Refused, parse_xml
 from .refs import MAX_COL, MAX_ROW, column_number
-from .sheetxml import CellSpan, SheetScan, Span, _Scanner, xstring
+from . import sheetxml
+from .sheetxml import CELL_TYPES, CellSpan, FormulaXml, SheetScan, Span, _Scanner, stored_value, xstring
 
 # possessive repeats (*+): nothing they give back could let a match succeed, and none is tried again
 _ATTRS = rb"""(?:\s+[^\s=/>]+\s*=\s*(?:"[^"]*+"|'[^']*+'))*+"""
@@ -56,6 +57,13 @@ _TAG = re.compile(rb"<(/?)([A-Za-z_\x80-\xff][^\s/>]*+)(" + _ATTRS + rb")\s*(/?)
 # 4 f's text, 5 f's end tag, 6 "<v", 7 v's text, 8 the cell's end tag (no group matches: self-closing)
 _CELL = re.compile(rb"<c(" + _ATTRS + rb")\s*(?:/>|>[^<]*+(?:(<f)(" + _ATTRS + rb")\s*(?:/>|>([^<]*+)(</)f\s*>)[^<]*+)?"
                    rb"(?:(<v)\s*(?:/>|>([^<]*+)</v\s*>)[^<]*+)?(</)c\s*>)")
+# the cell as Excel and openpyxl write it: r first, then attributes each after one space, double
+# quoted, unprefixed, with nothing to normalise; groups: 1 and 2 the reference's letters and digits,
+# 3 the attributes past r, 4 "<f", 5 f's attributes, 6 f's text, 7 f's end tag, 8 "<v", 9 v's text
+_PLAIN_ATTRS = rb'(?: [A-Za-z_][\w.-]*+="[^"&\t\n\r]*+")*+'
+_PLAIN_CELL = re.compile(rb'<c r="([A-Z]{1,3})([1-9][0-9]{0,6})"(' + _PLAIN_ATTRS
+                         + rb')(?: ?/>|>(?:(<f)(' + _PLAIN_ATTRS + rb')(?: ?/>|>([^<]*+)(</)f>))?'
+                         rb'(?:(<v)(?: ?/>|>([^<]*+)</v>))?</c>)')
 _SHEET_DATA = re.compile(rb"<sheetData(" + _ATTRS + rb")\s*>")
 _DECLARED = re.compile(rb"""(?:\xef\xbb\xbf)?<\?xml\s[^>]*?\bencoding\s*=\s*["']([^"']*)""")
 _INSIDE_REFUSED = (b"<!", b"<?", b"xmlns")  # comments, CDATA, PIs, namespace declarations
@@ -65,6 +73,7 @@ _REF = re.compile(r"&(?:#x([0-9A-Fa-f]+)|#([0-9]+)|([a-z]+));")
 _ENTITIES = {"lt": "<", "gt": ">", "amp": "&", "quot": '"', "apos": "'"}
 _PLAIN_REF = re.compile(r"([A-Z]{1,3})([1-9][0-9]{0,6})\Z")
 _COLUMNS: dict[str, int] = {}
+_BYTE_COLUMNS: dict[bytes, int] = {}
 
 
 def scan_fast(data: bytes, part: str, budget: list[int], strings: list[str],
@@ -194,6 +203,7 @@ class _FastScanner(_Scanner):
     def __init__(self, data: bytes, part: str, strings: list[str], budget: list[int], rich: dict[str, CellError]):
         super().__init__(data, part, strings, budget, rich)
         self.main: str | None = None  # the namespace of sheetData, which its unprefixed content shares
+        self.rests: dict[bytes, dict[str, str]] = {}  # a plain cell's attributes past r, read
 
     def start(self, tag: str, attrib: dict) -> None:
         if self.depth == 1 and tag.endswith("}sheetData"):
@@ -217,6 +227,10 @@ class _FastScanner(_Scanner):
                 pos = stop
                 continue
             if self.depth - self.data_depth == 1 and data[pos + 1] == 0x63:  # "<c" where cells are
+                read = self._plain_cells(data, pos, end)
+                if read != pos:
+                    pos = read
+                    continue
                 m = _CELL.match(data, pos, end)
                 if m is not None:
                     self._cell(m)
@@ -236,6 +250,53 @@ class _FastScanner(_Scanner):
                     self.end(tag)
             pos = m.end()
         return True
+
+    def _plain_cells(self, data: bytes, pos: int, end: int) -> int:
+        """The plain cells from ``pos`` on, one match of their pattern each and all of the rest
+        here: the effect of :meth:`_cell_start` and :meth:`_cell_end` without their calls or an
+        attribute dict per cell (the attributes past r repeat, so each distinct set is read once).
+        Returns where the first cell not read starts: one beyond the limits, an error value (whose
+        rich value the general rules look up) or any other cell."""
+        out, rests, strings, budget, part = self.out, self.rests, self.strings, self.budget, self.out.part
+        cells, values, formulas = out.cells, out.values, out.formulas
+        row_cells = self.row.cells if self.row is not None else None
+        match = _PLAIN_CELL.match
+        while (m := match(data, pos, end)) is not None:
+            letters, digits, rest, f, f_attrs, f_text, f_end, v, v_text = m.groups()
+            col = _BYTE_COLUMNS.get(letters)
+            if col is None:
+                col = _BYTE_COLUMNS[letters] = column_number(letters.decode("ascii"))
+            row = int(digits)
+            attrib = rests.get(rest)
+            if attrib is None:
+                attrib = rests[rest] = dict(_QUOTED.findall(rest.decode("utf-8")))
+            kind = attrib.get("t", "n")
+            if row > MAX_ROW or col > MAX_COL or self.cells_left <= 0 or kind == "e" or kind not in CELL_TYPES:
+                break
+            self.cells_left -= 1
+            self.col = col
+            key = (row, col)
+            stop = m.end()
+            cell = cells[key] = CellSpan(pos, pos if data[stop - 2] == 0x2F else stop - 4)  # "/>" or "</c>"
+            if row_cells is not None:
+                row_cells.append((col, pos))
+            value = None if v is None else stored_value(kind, _text(v_text) if v_text else "", strings, part)
+            pos = stop
+            if f is None:
+                if value is not None:
+                    values[key] = value
+                    if type(value) is CellError and kind not in ("s", "str", "inlineStr"):
+                        out.not_finite.append(key)
+                continue
+            budget[0] -= 1
+            if budget[0] < 0:
+                raise Refused(f"more than {sheetxml.MAX_FORMULAS:,} formula cells")  # the limit as it stands
+            f = m.start(4)
+            cell.formula = Span(f, m.start(7) if f_end else f)
+            fa = dict(_QUOTED.findall(f_attrs.decode("utf-8"))) if f_attrs else {}
+            formulas[key] = FormulaXml(xstring(_text(f_text)) if f_text else "", fa.get("t", "normal"), fa.get("ref"),
+                                       fa.get("si"), attrib.get("cm"), value)
+        return pos
 
     def _cell(self, m: re.Match) -> None:
         """A whole cell from one match of the cell pattern: the events' effect without them."""

@@ -118,8 +118,7 @@ class _SheetPatch:
     def build(self) -> bytes:
         engine, s, scan = self.engine, self.s, self.scan
         values = engine.values[s]
-        for key, fi in engine.at[s].items():
-            self._formula(key, fi)
+        self._formulas()
         for key in engine.claims[s]:
             self._write(key, scan.cells.get(key), values[key], b"", [])
         for key, fi in engine.at[s].items():
@@ -162,14 +161,44 @@ class _SheetPatch:
             tag = retag(data[span.start:tag_end(data, span.start)], _CELL_CHANGES, add, close=False)
         else:  # the start tag from its kind's template: r as written, the attributes past it worked out once
             p, ref, rest = plain.groups()
-            k = (rest, *add)
-            tail = self.tag_rests.get(k)
-            if tail is None:
-                tail = self.tag_rests[k] = retag(b"<c" + rest + b">", _CELL_CHANGES, add, close=False)[2:]
-            tag = b'<%sc r="%s"%s' % (p, ref, tail)
+            tag = b'<%sc r="%s"%s' % (p, ref, self._tail(rest, add))
         extras = b"".join(data[e.start:e.end(data)] for e in span.extra) if span.extra else b""
         new = b"%s%s<%sv>%s</%sv>%s</%sc>" % (tag, f_bytes, p, v, p, extras, p)
         self.edits.append((span.start, span.end(data), new))
+
+    def _tail(self, rest: bytes, add: list) -> bytes:
+        """A plain start tag's attributes past r (``rest``) with ``add`` set, worked out once per kind."""
+        k = (rest, *add)
+        tail = self.tag_rests.get(k)
+        if tail is None:
+            tail = self.tag_rests[k] = retag(b"<c" + rest + b">", _CELL_CHANGES, add, close=False)[2:]
+        return tail
+
+    def _formulas(self) -> None:
+        """Every formula cell of the sheet. The commonest, a plain start tag and a formula kept as
+        it is, written here as :meth:`_write` writes it (the template of its kind, the formula's
+        bytes, the new value), without the calls per cell; any other through :meth:`_formula`."""
+        engine, scan, data, edits, touched, tail = self.engine, self.scan, self.data, self.edits, self.touched, self._tail
+        result, formulas, cells, unshared = engine.result, scan.formulas, scan.cells, self.unshared
+        match = _PLAIN_CELL.match
+        for key, fi in engine.at[self.s].items():
+            span = cells[key]
+            f = span.formula
+            value = result[fi]
+            fx = formulas[key]
+            plain = None
+            if (not span.extra and f.close != f.start and not (fx.kind == "shared" and fx.si in unshared)
+                    and (type(value) is not CellError or value.code in FILE_ERRORS) and not is_dynamic(engine, fi)):
+                plain = match(data, span.start)
+            if plain is None:
+                self._formula(key, fi)
+                continue
+            t, v = value_xml(value)
+            p, ref, rest = plain.groups()
+            touched.add(key)
+            edits.append((span.start, data.index(b">", span.close) + 1,
+                          b'<%sc r="%s"%s%s<%sv>%s</%sv></%sc>' % (p, ref, tail(rest, [(b"t", t)] if t else []),
+                                                                  data[f.start:data.index(b">", f.close) + 1], p, v, p, p)))
 
     def _formula(self, key: tuple[int, int], fi: int) -> None:
         engine = self.engine
