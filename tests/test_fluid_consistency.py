@@ -23,7 +23,7 @@ import numpy as np
 import pytest
 
 from cellfuncs.errors import CellError
-from cellfuncs.sheet.functions import (CHEM_POTENTIAL, LATENT_HEAT, MASS_DENSITY, MOLAR_VOLUME, STABLE_PHASE,
+from cellfuncs.sheet.functions import (CHEM_POTENTIAL, LATENT_HEAT, MASS_DENSITY, MELT_TEMP, MOLAR_VOLUME, STABLE_PHASE,
                                        SUBLIME_PRESSURE, SUBLIME_TEMP, SUBSTANCE_INFO)
 from cellfuncs.substances import lookup, names
 from cellfuncs.substances.base import LIQUID, SOLID, VAPOR
@@ -250,3 +250,13 @@ def test_closure_the_published_sublimation_line_stands_away_from_the_triple_poin
     tt = np.array(co2.triple.temperature)
     published = float(co2._published_dlnp(tt))
     assert co2._sub_delta / (published + co2._sub_delta) == pytest.approx(0.020, abs=0.002)
+
+
+@pytest.mark.parametrize("name", ["acetone", "benzene", "r-32"])
+def test_the_solid_is_stable_at_the_melting_lines_top_pressure(name):
+    # criterion: the lowest potential is STABLE_PHASE's answer, also where a melting line ends (its
+    # top pressure, 100 MPa, typed exactly): 20 K below the melting temperature there is solid
+    t_melt = MELT_TEMP(name, 100.0, "MPa", "K")
+    assert STABLE_PHASE(name, t_melt - 20.0, 100.0, "K", "MPa") == "solid"
+    mu_solid, mu_liquid = (CHEM_POTENTIAL(name, t_melt - 20.0, 100.0, phase, "K", "MPa") for phase in ("solid", "liquid"))
+    assert not isinstance(mu_liquid, float) or mu_solid < mu_liquid

@@ -17,7 +17,7 @@ import numpy as np
 
 from .line_ends import LINE_TOL, TYPED_P, onto_ends
 from .props import Props
-from ..numerics import anywhere
+from ..numerics import anywhere, everywhere
 from .result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, broadcast, empty_like, fmt
 
 # Phase codes. Solids count up from SOLID: SOLID + k is the substance's k-th solid.
@@ -131,8 +131,11 @@ class Substance:
     def stable_phase(self, T: np.ndarray, p: np.ndarray) -> Result:
         """Labels (object array): one phase, or the phases of a line joined by " + "."""
         codes = self._classify(T, p)
-        labels = Result(np.full(codes.values.shape, None, dtype=object), codes.problems)
-        ok = np.broadcast_to(codes.ok, codes.values.shape)
+        shape = codes.values.shape
+        if codes.problems is None:  # every state has its label; flat indexing keeps a single one 0-d
+            return Result(self._labels[codes.values.astype(int).reshape(-1)].reshape(shape))
+        labels = Result(np.full(shape, None, dtype=object), codes.problems)
+        ok = codes.ok
         labels.values[ok] = self._labels[codes.values[ok].astype(int)]
         return labels
 
@@ -144,20 +147,26 @@ class Substance:
         """
         T, p, phase = broadcast(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
         r = Result(empty_like(T.shape))
-        if anywhere((phase == SATURATED_LIQUID) | (phase == SATURATED_VAPOR)):
+        # the saturated codes are consecutive: one comparison pair finds both
+        if anywhere((phase >= SATURATED_LIQUID) & (phase <= SATURATED_VAPOR)):
             T, p, phase = self._saturated(T, p, phase, r)
         blank = phase == STABLE
         if anywhere(blank):
             state = self._classify(T, p)
-            codes = np.where(np.isnan(state.values), 0, state.values).astype(int)
+            # code 0 stands in for a state left NaN: its problem says the rest
+            nan = np.isnan(state.values)
+            codes = (np.where(nan, 0, state.values) if anywhere(nan) else state.values).astype(int)
             if state.problems is not None:
                 r.adopt(np.where(blank, state.problems, None))
-            r.flag(blank & (self._state_phase[codes] == STABLE), NOT_AVAILABLE,
+            state_phase = np.asarray(self._state_phase[codes])
+            r.flag(blank & (state_phase == STABLE), NOT_AVAILABLE,
                    lambda label: f"the state is on a line ({label}): give a phase", self._labels[codes])
-            phase = np.where(blank, self._state_phase[codes], phase)
+            phase = state_phase if everywhere(blank) else np.where(blank, state_phase, phase)
         # any fluid word above the critical temperature means the one fluid
         tc = self.critical.temperature
-        phase = np.where((phase < SOLID) & (T >= tc), FLUID, phase)
+        hot = (phase < SOLID) & (T >= tc)
+        if anywhere(hot):
+            phase = np.where(hot, FLUID, phase)
         r.flag((phase == FLUID) & (T < tc), BAD_ARGUMENT, "{} K is below the critical temperature of "
                + f"{self.name} ({tc:.6g} K): ask for liquid or vapor", T)
         self._unmodelled(r, phase, blank)
@@ -213,12 +222,15 @@ class Substance:
     @staticmethod
     def _put(fields: dict, sel: np.ndarray, part, values: dict) -> None:
         """Store values of the elements ``part`` of the selection ``sel`` in the full-shape fields."""
-        index = np.flatnonzero(sel)[part if type(part) is slice else np.reshape(part, -1)]  # a 0-d mask too
-        whole = index.size == sel.size  # every element: take the arrays as they are
+        # every element (the usual single cell): take the arrays as they are, without indexing
+        whole = everywhere(sel) and (part == slice(None) if type(part) is slice else everywhere(part))
+        index = None
         for name, value in values.items():
             if whole and np.size(value) == sel.size:
                 fields[name] = np.asarray(value, dtype=float).reshape(sel.shape)
                 continue
+            if index is None:
+                index = np.flatnonzero(sel)[part if type(part) is slice else np.reshape(part, -1)]  # a 0-d mask too
             if name not in fields:
                 fields[name] = np.full(sel.shape, np.nan)
             fields[name].flat[index] = value if np.shape(value) == index.shape else np.broadcast_to(value, index.shape)

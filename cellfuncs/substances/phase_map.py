@@ -16,7 +16,8 @@ from __future__ import annotations
 import numpy as np
 
 from .base import FLUID, LIQUID, SOLID, STABLE, VAPOR
-from .line_ends import LINE_TOL, TYPED_P, TYPED_T, onto_ends  # noqa: F401 - the models import them from here
+from .line_ends import LINE_TOL
+from ..numerics import anywhere
 
 
 S_LIQUID, S_VAPOR, S_GAS, S_SUPER, S_SOLID = 0, 1, 2, 3, 4
@@ -53,11 +54,14 @@ def classify(T, p, *, t_solid, solid, t_boil, sat, high, pt: float, tc: float, p
     sublime_code = melt_code + n_solids
     fluid = np.where(T < tc, S_VAPOR, np.where(p < pc, S_GAS, S_SUPER))
     state = np.where(T < t_boil, S_LIQUID, fluid)
-    state[sat & (T < tc) & near(T, t_boil)] = boil_code
+    on_boil = sat & (T < tc) & near(T, t_boil)
+    if anywhere(on_boil):
+        state[on_boil] = boil_code
     below = T < t_solid
-    state[below] = S_SOLID + solid[below]
+    if anywhere(below):
+        state[below] = S_SOLID + solid[below]
     on_solid = near(T, t_solid)
-    if on_solid.any():
+    if anywhere(on_solid):
         state[on_solid] = np.where(high, melt_code + solid, sublime_code)[on_solid]
         state[on_solid & high & (p <= pt * (1 + LINE_TOL))] = sublime_code + 1  # the triple point
     return state

@@ -44,13 +44,14 @@ from functools import cached_property
 import numpy as np
 
 from ...data import load
-from ...numerics import MonotoneInverse
+from ...numerics import MonotoneInverse, anywhere
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..constants import P_STANDARD, R
 from .. import ideal_gas
 from ..lines import line_pressure
-from ..phase_map import LINE_TOL, classify, onto_ends, state_table
-from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, fmt
+from ..line_ends import LINE_TOL, clamp, onto_ends
+from ..phase_map import classify, state_table
+from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, broadcast, fmt
 from .definition import Definition
 from .liquid import LiquidVolume
 from .peng_robinson import PengRobinson
@@ -99,7 +100,7 @@ def _derivative(f, T: np.ndarray, lo: float, hi: float) -> np.ndarray:
 def _in_u(inverse: MonotoneInverse, y: np.ndarray) -> np.ndarray:
     """1/T on a line from ln p, by a table in u = 1/T. The table's ends are f(1/(1/T)), which may lie
     an ulp inside the line's ends: the line's own end pressures are clipped onto them."""
-    return inverse(np.clip(y, inverse.y[0], inverse.y[-1]))
+    return inverse(clamp(y, inverse.y[0], inverse.y[-1]))
 
 
 _METHOD_SOURCES = {
@@ -493,7 +494,7 @@ class GeneralSubstance(Substance):
         if self._sub_range is None:
             self._missing(r, "solid-vapour", self._no_sublimation_reason())
             return r
-        lo, hi = self._sub_range
+        lo = self._sub_range[0]
         p_lo, p_hi = self._p_sub_low, self.triple.pressure
         p = self.onto_line("sublime", p, pressure=True)
         r.flag(p > p_hi * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the triple-point pressure of "
@@ -505,7 +506,7 @@ class GeneralSubstance(Substance):
 
     # --- stable phase -----------------------------------------------------------------
     def _classify(self, T: np.ndarray, p: np.ndarray) -> Result:
-        T, p = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float))
+        T, p = broadcast(np.asarray(T, float), np.asarray(p, float))
         r = Result(np.full(T.shape, -1.0))
         high = p >= self.triple.pressure if self.has_triple else np.ones(T.shape, bool)
         t_solid = np.full(T.shape, -np.inf)
@@ -513,9 +514,11 @@ class GeneralSubstance(Substance):
             p_lo, p_hi = self._melt_p_range
             r.flag(high & (p > p_hi * (1 + LINE_TOL)), OUT_OF_RANGE, "{} Pa is above the melting line's range for "
                    + f"{self.name} ({fmt(p_hi)} Pa)", p)
-            melt = high & (p >= p_lo) & (p <= p_hi)
-            if melt.any():
-                t_solid[melt] = self._t_melt(p[melt])
+            # up to the same tolerance as the flag above: a pressure typed at the line's end (100 MPa)
+            # is on the line, not in a gap where no solid is known
+            melt = high & (p >= p_lo) & (p <= p_hi * (1 + LINE_TOL))
+            if anywhere(melt):
+                t_solid[melt] = self._t_melt(np.minimum(p[melt], p_hi))
         # (with a triple point there is always a melting line: published, Clapeyron or pressure-independent)
         if self._sub_range is not None:
             p_lo = self._p_sub_low
@@ -523,7 +526,7 @@ class GeneralSubstance(Substance):
             r.flag(~high & (p < p_lo) & (T < self._sub_range[0]), OUT_OF_RANGE,
                    "{} Pa is below the sublimation line's range for " + f"{self.name} ({fmt(p_lo)} Pa)", p)
             sub = ~high & (p >= p_lo)
-            if sub.any():
+            if anywhere(sub):
                 t_solid[sub] = self._t_sub(p[sub])
         elif self.has_triple:
             r.flag(~high & (T < self.triple.temperature), NOT_AVAILABLE,
@@ -532,9 +535,10 @@ class GeneralSubstance(Substance):
             r.flag(T < self.t_low, OUT_OF_RANGE, "{} K is below the lowest temperature of the vapour-pressure line of "
                    + f"{self.name} ({fmt(self.t_low)} K)", T)
         p_low = self._p_low
-        t_boil = np.where(high & (p >= p_low), self.tc, -np.inf)
-        sat = high & (p >= p_low) & (p <= self._p_high)
-        if sat.any():
+        liquid = high & (p >= p_low)
+        t_boil = np.where(liquid, self.tc, -np.inf)
+        sat = liquid & (p <= self._p_high)
+        if anywhere(sat):
             t_boil[sat] = self._t_boil(p[sat])
         state = classify(T, p, t_solid=t_solid, solid=np.zeros(T.shape, int), t_boil=t_boil, sat=sat, high=high,
                          pt=self.triple.pressure if self.has_triple else -np.inf, tc=self.tc, pc=self.pc)
@@ -659,7 +663,7 @@ class GeneralSubstance(Substance):
         if sub.problems is not None:
             self._store(fields, sel, r, sub)
             return
-        tt, pt = self.triple
+        tt = self.triple.temperature
         below = t <= tt
         if self._sub_range is not None:
             sub.flag(below & (t < self._sub_range[0]), OUT_OF_RANGE, "{} K is below the sublimation line's range for "

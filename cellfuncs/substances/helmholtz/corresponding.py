@@ -19,7 +19,7 @@ import numpy as np
 
 from ..general.definition import Definition
 from ..general.model import GeneralSubstance
-from ..result import BAD_ARGUMENT, ModelError, Result
+from ..result import BAD_ARGUMENT, ModelError
 from .mapped import REFERENCE_FLUID, MappedEquation, VapourDatum
 from .saturation import Saturation
 from .substance import EquationSubstance

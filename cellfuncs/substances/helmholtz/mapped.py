@@ -307,7 +307,7 @@ class MappedEquation(HelmholtzEquation):
             self._ref_sat = Saturation(self._ref, T0_low[0], last.pressure,
                                        lambda T0: last.column("d_l", T0) * plain.rhoc) if c else plain_sat
             fit()
-            p, rho_l, rho_v = equilibrium(self, T, self.saturated_liquid(T) / self.rhoc,
+            _, rho_l, rho_v = equilibrium(self, T, self.saturated_liquid(T) / self.rhoc,
                                           self._ref_sat.column("d_v", self._conformal(T)) * self._rho_m
                                           / (self.shape_factors(T)[1] * self.rhoc))
             if vapour.rho is not None:

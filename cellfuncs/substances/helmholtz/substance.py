@@ -39,7 +39,7 @@ import numpy as np
 from ..base import FLUID, LIQUID, VAPOR, FixedPoint
 from ..general.definition import Definition
 from ..general.model import P0, P_MAX, GeneralSubstance
-from ..phase_map import LINE_TOL
+from ..line_ends import LINE_TOL
 from ..result import BAD_ARGUMENT, OUT_OF_RANGE, ModelError, Result, fmt
 from . import density, saturation
 from .equation import HelmholtzEquation

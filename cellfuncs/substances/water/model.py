@@ -37,10 +37,11 @@ import numpy as np
 
 from ...data import constant, load
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
-from ..phase_map import LINE_TOL, classify, state_table
+from ..line_ends import LINE_TOL, clamp
+from ..phase_map import classify, state_table
 from ..props import Props
 from ...numerics import anywhere, everywhere
-from ..result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, fmt
+from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, broadcast, fmt
 from . import iapws95, ice_ih, ice_lines, if97, if97_region3, if97_saturation
 
 _DATA = "water/water"
@@ -191,8 +192,8 @@ def _where(a: np.ndarray, mask: np.ndarray) -> np.ndarray:
 
 def _molar(props: Props, fields) -> dict[str, np.ndarray]:
     """The fields the call wants, molar."""
-    return {name: value * M if name in _PER_KG else value
-            for name, value in props._asdict().items() if fields.wants(name)}
+    wanted = Props._fields if fields.want is None else [name for name in Props._fields if name in fields.want]
+    return {name: getattr(props, name) * M if name in _PER_KG else getattr(props, name) for name in wanted}
 
 
 class Water(Substance):
@@ -240,7 +241,7 @@ class Water(Substance):
         r = Result.like(p)
         r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_p"], p, see="sublime")
         r.flag(p > _MELT_P_TOP * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_ice_vii"], p)
-        inside = np.clip(p, PT, _MELT_P_TOP)  # the inverse gives NaN past the ends
+        inside = clamp(p, PT, _MELT_P_TOP)  # the inverse gives NaN past the ends
         T, index = ice_lines.melting_temperature_any(np.where(np.broadcast_to(r.ok, np.shape(p)), inside, np.nan))
         r.fill(T)
         return r, SOLID + np.maximum(index, 0)
@@ -264,7 +265,7 @@ class Water(Substance):
     # --- stable phase -----------------------------------------------------------------
     def _classify(self, T: np.ndarray, p: np.ndarray) -> Result:
         """State codes (indices into _LABELS) from the boundary equations."""
-        T, p = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float))
+        T, p = broadcast(np.asarray(T, float), np.asarray(p, float))
         r = Result(np.full(T.shape, -1.0))
         r.flag(T > REGION5_T_MAX, OUT_OF_RANGE, MESSAGES["above_formulations_t"], T)
         r.flag(p > _MELT_P_TOP, OUT_OF_RANGE, MESSAGES["above_ice_vii"], p)
@@ -274,19 +275,22 @@ class Water(Substance):
         # single-valued T(p) there), sublimation below it
         t_solid = np.full(T.shape, -np.inf)
         ice = np.zeros(T.shape, dtype=int)
-        melt = high & ((T <= _MELT_T_NEAR) | (p > _MELT_P_NEAR))  # elsewhere no melting line is near
-        if anywhere(melt):
-            t_solid[melt], ice[melt] = ice_lines.melting_temperature_any(p[melt])
-        sublime = ~high & (T <= TT * (1 + LINE_TOL)) & (p >= _SUB_P_MIN)
-        if anywhere(sublime):
-            t_solid[sublime] = ice_lines.sublimation_temperature(p[sublime])
+        if anywhere(high):
+            melt = high & ((T <= _MELT_T_NEAR) | (p > _MELT_P_NEAR))  # elsewhere no melting line is near
+            if anywhere(melt):
+                t_solid[melt], ice[melt] = ice_lines.melting_temperature_any(p[melt])
+        if not everywhere(high):
+            sublime = ~high & (T <= TT * (1 + LINE_TOL)) & (p >= _SUB_P_MIN)
+            if anywhere(sublime):
+                t_solid[sublime] = ice_lines.sublimation_temperature(p[sublime])
         # the liquid is stable below the boiling line; above the critical pressure below Tc
-        t_boil = np.where(high, TC, -np.inf)
         sat = high & (p <= PC)
         if everywhere(sat):
             t_boil = if97_saturation.saturation_temperature(p)
-        elif anywhere(sat):
-            t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
+        else:
+            t_boil = np.where(high, TC, -np.inf)
+            if anywhere(sat):
+                t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
         state = classify(T, p, t_solid=t_solid, solid=ice, t_boil=t_boil, sat=sat, high=high, pt=PT, tc=TC, pc=PC,
                          n_solids=len(SOLIDS))
         r.fill(state.astype(float))
@@ -320,7 +324,7 @@ class Water(Substance):
             sub.flag(dense & (t < t_melt * (1 - MELT_JOIN_TOL)), OUT_OF_RANGE, MESSAGES["dense_liquid_below_melting"],
                      t, q, t_melt)
         warm = t >= TT
-        p_sat = if97_saturation.saturation_pressure(np.clip(t, TT, TC))
+        p_sat = if97_saturation.saturation_pressure(clamp(t, TT, TC))
         superheated = warm & (q < p_sat * (1 - LINE_TOL))
         if anywhere(superheated):
             t_sat = np.full(t.shape, np.inf)
@@ -328,17 +332,18 @@ class Water(Substance):
             sub.flag(superheated & ((t > t_sat + SUPERHEAT_MARGIN) | (t > REGION1_T_MAX)), OUT_OF_RANGE,
                      MESSAGES["superheated_liquid"], t, q, t_sat)
         cold = (t < TT) & ~dense
-        sub.flag(cold & (q < PT), OUT_OF_RANGE, MESSAGES["supercooled_below_triple_p"], t, q)
         if anywhere(cold):
+            sub.flag(cold & (q < PT), OUT_OF_RANGE, MESSAGES["supercooled_below_triple_p"], t, q)
             t_melt = np.full(t.shape, -np.inf)
             t_melt[cold], _ = ice_lines.melting_temperature_any(np.maximum(q[cold], PT))
             sub.flag(cold & ((t < t_melt - SUPERCOOL_MARGIN) | (t < _MELT_T_MIN * (1 - MELT_JOIN_TOL))), OUT_OF_RANGE,
                      MESSAGES["supercooled_liquid"], t, q)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
-        low = ok & ~dense & (t <= REGION1_T_MAX)
+        in_if97 = ok & ~dense
+        low = in_if97 & (t <= REGION1_T_MAX)
         if anywhere(low):
             self._put_props(fields, sel, low, if97.region1(_where(t, low), _where(q, low), fields.want))
-        near = ok & ~dense & (t > REGION1_T_MAX)
+        near = in_if97 & (t > REGION1_T_MAX)
         if anywhere(near):
             self._put_region3(fields, sel, near, t, q, "liquid", sub)
         if anywhere(ok & dense):
@@ -351,29 +356,31 @@ class Water(Substance):
         sub = Result(np.full(t.shape, np.nan))
         sub.flag(t < REGION2_T_MIN, OUT_OF_RANGE, MESSAGES["cold_vapour"], t)
         cold = t < TT
-        p_line = np.where(cold, ice_lines.sublimation_pressure(np.clip(t, REGION2_T_MIN, TT)),
-                          if97_saturation.saturation_pressure(np.clip(t, TT, TC)))
+        # the vapour's line: sublimation below the triple point, boiling above (only the one needed)
+        if not anywhere(cold):
+            p_line = if97_saturation.saturation_pressure(clamp(t, TT, TC))
+        elif everywhere(cold):
+            p_line = ice_lines.sublimation_pressure(clamp(t, REGION2_T_MIN, TT))
+        else:
+            p_line = np.where(cold, ice_lines.sublimation_pressure(clamp(t, REGION2_T_MIN, TT)),
+                              if97_saturation.saturation_pressure(clamp(t, TT, TC)))
         above = q > p_line * (1 + LINE_TOL)
-        sub.flag(above & cold, OUT_OF_RANGE, MESSAGES["vapour_over_ice"], t, q)
-        sub.flag(above & ~cold & (q > META_VAPOUR_P_MAX), OUT_OF_RANGE, MESSAGES["supersaturated_above_p"], t, q)
-        meta = above & ~cold & (q <= META_VAPOUR_P_MAX)
         meta_props = None
-        if anywhere(meta):
-            tm, qm = t[meta], q[meta]
-            # the enthalpy decides how wet the state is, whatever the call wants
-            meta_props = if97.region2_metastable(tm, qm, None if fields.want is None else {*fields.want, "h"})
-            t_sat = if97_saturation.saturation_temperature(qm)
-            h_liq, h_vap = if97.region1(t_sat, qm, ("h",)).h, if97.region2(t_sat, qm, ("h",)).h
-            wet = np.zeros(t.shape, bool)
-            wet[meta] = (meta_props.h - h_liq) / (h_vap - h_liq) < 1.0 - META_VAPOUR_MOISTURE
-            sub.flag(wet, OUT_OF_RANGE, MESSAGES["supersaturated_too_wet"], t, q)
+        if anywhere(above):
+            sub.flag(above & cold, OUT_OF_RANGE, MESSAGES["vapour_over_ice"], t, q)
+            sub.flag(above & ~cold & (q > META_VAPOUR_P_MAX), OUT_OF_RANGE, MESSAGES["supersaturated_above_p"], t, q)
+            meta = above & ~cold & (q <= META_VAPOUR_P_MAX)
+            if anywhere(meta):
+                meta_props = self._metastable(t, q, meta, fields, sub)
         ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
         if meta_props is not None:
             keep = ok[meta]
             if anywhere(keep):
                 self._put_props(fields, sel, ok & meta, Props(*(np.asarray(f)[keep] for f in meta_props)))
             ok = ok & ~meta
-        above_b23 = (t > REGION1_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
+        above_b23 = t > REGION1_T_MAX  # region 3 only above region 1's top, where the B23 line starts
+        if anywhere(above_b23):
+            above_b23 = above_b23 & (q > if97_saturation.b23_pressure(clamp(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~above_b23
         if anywhere(two):
             self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
@@ -381,6 +388,20 @@ class Water(Substance):
         if anywhere(three):
             self._put_region3(fields, sel, three, t, q, "vapour", sub)
         self._report(r, sel, sub)
+
+    @staticmethod
+    def _metastable(t, q, meta, fields, sub: Result) -> Props:
+        """IF97's metastable-vapour properties of the elements ``meta``; those wetter than its equilibrium
+        moisture line are flagged."""
+        tm, qm = t[meta], q[meta]
+        # the enthalpy decides how wet the state is, whatever the call wants
+        meta_props = if97.region2_metastable(tm, qm, None if fields.want is None else {*fields.want, "h"})
+        t_sat = if97_saturation.saturation_temperature(qm)
+        h_liq, h_vap = if97.region1(t_sat, qm, ("h",)).h, if97.region2(t_sat, qm, ("h",)).h
+        wet = np.zeros(t.shape, bool)
+        wet[meta] = (meta_props.h - h_liq) / (h_vap - h_liq) < 1.0 - META_VAPOUR_MOISTURE
+        sub.flag(wet, OUT_OF_RANGE, MESSAGES["supersaturated_too_wet"], t, q)
+        return meta_props
 
     def _fluid(self, t, q, sel, r: Result, fields) -> None:
         sub = Result(np.full(t.shape, np.nan))
@@ -391,7 +412,7 @@ class Water(Substance):
         # beyond IF97's pressures (region 5's above REGION2_T_MAX) the fluid is IAPWS-95's
         dense = q > np.where(t > REGION2_T_MAX, P_MAX_REGION5, P_MAX_FLUID)
         ok, dense = ok & ~dense, ok & dense
-        three = ok & (t <= B23_T_MAX) & (q > if97_saturation.b23_pressure(np.clip(t, REGION1_T_MAX, B23_T_MAX)))
+        three = ok & (t <= B23_T_MAX) & (q > if97_saturation.b23_pressure(clamp(t, REGION1_T_MAX, B23_T_MAX)))
         two = ok & ~three & (t <= REGION2_T_MAX)
         five = ok & (t > REGION2_T_MAX)
         if anywhere(two):
@@ -412,7 +433,7 @@ class Water(Substance):
         melt &= q > PT
         if anywhere(melt):
             p_melt = np.full(t.shape, np.inf)
-            p_melt[melt] = ice_lines.melting_pressure(np.clip(t[melt], _MELT_T_MIN, TT), "Ih")
+            p_melt[melt] = ice_lines.melting_pressure(clamp(t[melt], _MELT_T_MIN, TT), "Ih")
             # the ice Ih line leans back: above it in pressure the ice has melted
             sub.flag(melt & (t >= _MELT_T_MIN) & (q > p_melt * (1 + LINE_TOL)), OUT_OF_RANGE,
                      MESSAGES["ice_melted"], t, q)
