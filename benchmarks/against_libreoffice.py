@@ -28,6 +28,8 @@ from pathlib import Path
 os.environ.setdefault("OPENPYXL_LXML", "False")
 from openpyxl import Workbook  # noqa: E402
 
+from cellfuncs.hosts.libreoffice.extension import recalculating_profile  # noqa: E402
+
 TARGET = 1.0  # ours / LibreOffice, whole process
 SIZES = (10_000, 100_000)  # formula cells
 OURS = ('=BOIL_TEMP("water",A{r},"kPa","degC")', '=STABLE_PHASE("water",B{r},A{r},"degC","kPa")',
@@ -35,13 +37,6 @@ OURS = ('=BOIL_TEMP("water",A{r},"kPa","degC")', '=STABLE_PHASE("water",B{r},A{r
 # water's Antoine equation in mmHg and degC (1 kPa = 7.50062 mmHg), a common textbook stand-in
 THEIRS = ("=1730.63/(8.07131-LOG10(A{r}*7.50062))-233.426", '=IF(B{r}>C{r},"vapor","liquid")',
           "=C{r}*1.8+32", "=B{r}-C{r}")
-RECALC_ALWAYS = """<?xml version="1.0" encoding="UTF-8"?>
-<oor:items xmlns:oor="http://openoffice.org/2001/registry" xmlns:xs="http://www.w3.org/2001/XMLSchema" \
-xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
-<item oor:path="/org.openoffice.Office.Calc/Formula/Load"><prop oor:name="OOXMLRecalcMode" oor:op="fuse">\
-<value>0</value></prop></item>
-</oor:items>
-"""
 
 
 def build(path: Path, cells: int, formulas: tuple[str, ...]) -> None:
@@ -74,8 +69,7 @@ def main(repeat: int) -> None:
         work = Path(folder)
         profile = work / "profile"
         if soffice:
-            (profile / "user").mkdir(parents=True)
-            (profile / "user" / "registrymodifications.xcu").write_text(RECALC_ALWAYS, encoding="utf-8")
+            recalculating_profile(profile)
             warm = work / "warm.xlsx"
             build(warm, 8, THEIRS)
             _seconds(_libreoffice(soffice, profile) + ["--outdir", str(work / "warm"), str(warm)])  # makes the profile

@@ -8,26 +8,20 @@ except under CI=true, where it fails.
 
 from __future__ import annotations
 
-import os
 import tomllib
 from pathlib import Path
 
 import pytest
 
 from cellfuncs.workbook import conformance
+from reference_set import reference_folder
 
 FLOORS = Path(__file__).parent / "data" / "conformance_floors.toml"
 
 
 @pytest.fixture(scope="module")
 def report() -> conformance.Report:
-    folder = conformance.default_folder()
-    if folder is None or not (folder / "manifest.tsv").is_file():
-        reason = "the Excel reference workbooks (shared/excel-reference beside the project) are not there"
-        if os.environ.get("CI") == "true":
-            pytest.fail(reason)
-        pytest.skip(reason)
-    return conformance.run(folder)
+    return conformance.run(reference_folder())
 
 
 def _floors() -> dict[str, float]:

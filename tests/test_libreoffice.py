@@ -36,6 +36,7 @@ from openpyxl.utils import range_boundaries
 from openpyxl.worksheet.formula import ArrayFormula
 
 from cellfuncs.formula import Call, Name, Ref, parse, walk
+from cellfuncs.hosts.libreoffice.extension import recalculating_profile
 from cellfuncs.sheet import FUNCTIONS
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -44,13 +45,6 @@ SHOWN_DIGITS = 1e-14  # LibreOffice writes numbers with 15 significant digits
 AGREE = 1e-9
 PACK_CELL = {"steam_service.xlsx": ("Steam service", "E7"), "cryogen_release.xlsx": ("Cryogen release", "F18"),
              "frost_and_pressure.xlsx": ("Frost and pressure", "C7"), "phase_maps.xlsx": ("Water lines", "B6")}
-RECALC_ALWAYS = """<?xml version="1.0" encoding="UTF-8"?>
-<oor:items xmlns:oor="http://openoffice.org/2001/registry" xmlns:xs="http://www.w3.org/2001/XMLSchema" \
-xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
-<item oor:path="/org.openoffice.Office.Calc/Formula/Load"><prop oor:name="OOXMLRecalcMode" oor:op="fuse">\
-<value>0</value></prop></item>
-</oor:items>
-"""
 
 
 def _tool(name: str, package: str) -> str:
@@ -78,8 +72,7 @@ def soffice(files: list[Path], target: str, out: Path, profile: Path, recalc_alw
     """Convert ``files`` in one LibreOffice run with its own user profile; the converted paths."""
     exe = _tool("soffice", "LibreOffice Calc (libreoffice-calc-nogui)")
     if recalc_always:
-        (profile / "user").mkdir(parents=True, exist_ok=True)
-        (profile / "user" / "registrymodifications.xcu").write_text(RECALC_ALWAYS, encoding="utf-8")
+        recalculating_profile(profile)
     command = [exe, "--headless", "--norestore", f"-env:UserInstallation={profile.as_uri()}",
                "--convert-to", target, "--outdir", str(out), *map(str, files)]
     done = subprocess.run(command, capture_output=True, text=True, timeout=600)

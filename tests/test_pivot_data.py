@@ -17,7 +17,6 @@ every value line of two more pivot tables against the cells Excel wrote for them
 
 from __future__ import annotations
 
-import os
 import statistics
 import zipfile
 from pathlib import Path
@@ -32,6 +31,7 @@ from cellfuncs.workbook.package import Package
 from cellfuncs.workbook.pivots import MAX_CACHE_VALUES
 from cellfuncs.workbook.recalc import recalc_file
 from cellfuncs.workbook.refs import area
+from reference_set import reference_workbook
 
 MAIN = 'xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"'
 RELS = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
@@ -277,13 +277,7 @@ def test_a_cache_over_the_limit_gives_its_error(tmp_path, monkeypatch):
 
 
 def _reference(name: str) -> Path:
-    folder = conformance.default_folder()
-    if folder is None or not (folder / name).is_file():
-        reason = "the Excel reference workbooks (shared/excel-reference beside the project) are not there"
-        if os.environ.get("CI") == "true":
-            pytest.fail(reason)
-        pytest.skip(reason)
-    return folder / name
+    return reference_workbook(name)
 
 
 def test_reference_cell_54436():

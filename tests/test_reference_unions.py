@@ -14,7 +14,6 @@ out in small workbooks of our own; and the values Excel stored in the reference 
 
 from __future__ import annotations
 
-import os
 
 import openpyxl
 import pytest
@@ -23,6 +22,7 @@ from openpyxl.workbook.defined_name import DefinedName
 from cellfuncs.errors import REF, CellError
 from cellfuncs.formula import Binary, Literal, Ref, compute, parse
 from cellfuncs.workbook import conformance
+from reference_set import reference_folder
 from test_recalc import cli, values
 from test_references import _recalc
 
@@ -137,13 +137,7 @@ def test_a_reference_in_a_branch_never_evaluated_is_no_loop(tmp_path):
 
 @pytest.fixture(scope="module")
 def folder():
-    found = conformance.default_folder()
-    if found is None or not (found / "manifest.tsv").is_file():
-        reason = "the Excel reference workbooks (shared/excel-reference beside the project) are not there"
-        if os.environ.get("CI") == "true":
-            pytest.fail(reason)
-        pytest.skip(reason)
-    return found
+    return reference_folder()
 
 
 @pytest.mark.parametrize("name, cell", [

@@ -18,20 +18,13 @@ import os
 import subprocess
 import sys
 
-import pytest
 
-from cellfuncs.workbook.conformance import default_folder
+from reference_set import reference_folder
 from hostile_workbooks import ENV, WATCHDOG, limit_memory
 
 
 def test_every_reference_workbook_recalculates_under_the_default_limits():
-    folder = default_folder()
-    if folder is None:
-        message = ("the Excel reference workbooks are absent (shared/excel-reference beside the project or a "
-                   "parent, or $CELLFUNCS_EXCEL_REFERENCE)")
-        if os.environ.get("CI") == "true":
-            pytest.fail(message)
-        pytest.skip(message)
+    folder = reference_folder()
     files = sorted(str(p) for p in folder.glob("*/*.xls[xm]"))
     assert len(files) >= 400, f"{folder} holds only {len(files)} workbooks"
     parts = max(1, min(4, os.cpu_count() or 1))

@@ -14,7 +14,6 @@ where it fails.
 from __future__ import annotations
 
 import dataclasses
-import os
 
 import pytest
 from hypothesis import given, settings
@@ -22,8 +21,8 @@ from hypothesis import strategies as st
 
 from cellfuncs.errors import CellError
 from cellfuncs.workbook import model, sheetfast, sheetxml
-from cellfuncs.workbook.conformance import default_folder
 from cellfuncs.workbook.package import Package, Refused
+from reference_set import reference_folder
 
 FAST = sheetfast.scan_fast
 MAIN = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
@@ -322,13 +321,7 @@ def test_the_column_and_cell_limits(monkeypatch):
 
 
 def test_every_reference_worksheet_reads_the_same_both_ways(monkeypatch):
-    folder = default_folder()
-    if folder is None:
-        message = ("the Excel reference workbooks are absent (shared/excel-reference beside the project or a "
-                   "parent, or $CELLFUNCS_EXCEL_REFERENCE)")
-        if os.environ.get("CI") == "true":
-            pytest.fail(message)
-        pytest.skip(message)
+    folder = reference_folder()
     taken = []  # whether the fast path read it, for each worksheet with cells (an empty <sheetData/> has no content)
 
     def compare(data, part, budget, strings=None, rich=None):

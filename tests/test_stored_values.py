@@ -8,12 +8,10 @@ under CI=true), as in tests/test_conformance.py.
 
 from __future__ import annotations
 
-import os
 import zipfile
 from pathlib import Path
 
 import openpyxl
-import pytest
 
 from cellfuncs.errors import CALC, NA, SPILL, VALUE, CellError
 from cellfuncs.formula import compute
@@ -21,6 +19,7 @@ from cellfuncs.workbook import conformance
 from cellfuncs.workbook.model import Book, load
 from cellfuncs.workbook.package import Package
 from cellfuncs.workbook.recalc import recalc_file
+from reference_set import reference_workbook
 
 MAIN = "http://schemas.openxmlformats.org/spreadsheetml/2006/main"
 RICH = "http://schemas.microsoft.com/office/spreadsheetml/2017/richdata"
@@ -66,13 +65,7 @@ def _book(path: Path) -> Book:
 
 
 def _reference(name: str) -> Path:
-    folder = conformance.default_folder()
-    if folder is None or not (folder / name).is_file():
-        reason = f"the Excel reference workbook {name} (shared/excel-reference beside the project) is not there"
-        if os.environ.get("CI") == "true":
-            pytest.fail(reason)
-        pytest.skip(reason)
-    return folder / name
+    return reference_workbook(name)
 
 
 # -- _xHHHH_ escapes ---------------------------------------------------------------------------

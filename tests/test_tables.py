@@ -10,7 +10,6 @@ and IronCalc's test files), skipped when that folder is absent (a failure under 
 
 from __future__ import annotations
 
-import os
 
 import openpyxl
 import pytest
@@ -20,6 +19,7 @@ from openpyxl.worksheet.table import TableStyleInfo
 from cellfuncs.workbook import conformance
 from cellfuncs.workbook.refs import Area
 from cellfuncs.workbook.tables import Table, Tables
+from reference_set import reference_workbook
 from test_recalc import cli, values
 
 # Headers in row 2, data in rows 3-6, totals in row 7; columns B:E of sheet "Sales Data".
@@ -106,13 +106,7 @@ def test_a_table_recalculates(tmp_path):
 
 
 def _reference(name):
-    folder = conformance.default_folder()
-    if folder is None:
-        message = "the Excel reference workbooks are absent (shared/excel-reference beside the project)"
-        if os.environ.get("CI") == "true":
-            pytest.fail(message)
-        pytest.skip(message)
-    return folder / name
+    return reference_workbook(name)
 
 
 @pytest.mark.parametrize("name", [

@@ -200,3 +200,23 @@ def uninstall(profile: str | None = None, soffice: str | None = None) -> str:
     if done.returncode != 0:
         raise _failed(done, "removing the extension")
     return f"cellfuncs extension: {done.stdout.strip().splitlines()[-1]} ({where if profile else 'your profile'})"
+
+
+# A LibreOffice user profile's settings that make it recalculate every OOXML file it loads (Tools >
+# Options > Calc > Formula > Recalculation on file load: Always), for headless runs that must see
+# LibreOffice's own results (the tests' renders, benchmarks/against_libreoffice.py)
+_RECALC_ON_LOAD = """<?xml version="1.0" encoding="UTF-8"?>
+<oor:items xmlns:oor="http://openoffice.org/2001/registry" xmlns:xs="http://www.w3.org/2001/XMLSchema" \
+xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
+<item oor:path="/org.openoffice.Office.Calc/Formula/Load"><prop oor:name="OOXMLRecalcMode" oor:op="fuse">\
+<value>0</value></prop></item>
+</oor:items>
+"""
+
+
+def recalculating_profile(folder: Path) -> Path:
+    """Make ``folder`` a LibreOffice user profile that recalculates every OOXML file on load; its
+    ``-env:UserInstallation`` URL is ``folder.as_uri()``."""
+    (folder / "user").mkdir(parents=True, exist_ok=True)
+    (folder / "user" / "registrymodifications.xcu").write_text(_RECALC_ON_LOAD, encoding="utf-8")
+    return folder
