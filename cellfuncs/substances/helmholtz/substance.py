@@ -72,7 +72,7 @@ class EquationSubstance(GeneralSubstance):
         except ArithmeticError:
             raise ModelError(BAD_ARGUMENT, f"the phase equilibrium of the equation of state '{self.equation.key}' "
                              "could not be started from this definition's vapour-pressure line and liquid density; "
-                             "give the equation's own (paste SUBSTANCE_INFO of the built-in)") from None
+                             "give the built-in substance's own lines and liquid density") from None
 
     def liquid_density_guess(self, T: np.ndarray) -> np.ndarray:
         """Saturated liquid density (mol/m3) to start the phase equilibrium from."""
