@@ -111,12 +111,6 @@ def substance(value: Any) -> Substance:
         value = value.flat[0]
     if value is None or (isinstance(value, str) and not value.strip()):
         raise CallError(VALUE, "substance is blank")
-    # a sheet names its substance as text in every call: the model of a name is looked up once
-    return _by_name(value) if type(value) is str else _by_name.__wrapped__(value)
-
-
-@lru_cache(maxsize=256)
-def _by_name(value: Any) -> Substance:
     try:
         return lookup(value)
     except UnknownSubstance as exc:

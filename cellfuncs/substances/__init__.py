@@ -116,6 +116,12 @@ def lookup(name: str) -> Substance:
     ...
     cellfuncs.substances.result.ModelError: 'R-410A' is a mixture (R-32/R-125, 50/50 % by mass); this pack models pure substances
     """
+    # a sheet names its substance as text in every call: a name's model is found once
+    return _named(name) if type(name) is str else _named.__wrapped__(name)
+
+
+@lru_cache(maxsize=256)
+def _named(name: str) -> Substance:
     key = _normal(name)
     found = _index()[0].get(key)
     if not found:
