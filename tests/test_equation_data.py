@@ -83,6 +83,15 @@ TABLES = [
           "boiling point (from memory of Table 1)", "saturation", "mol/dm3",
           (("13.957", "0.00736", "38.2", ""),
            ("20.369", "0.101325", "", ""))),
+    # --- parahydrogen -----------------------------------------------------------------------
+    # at (Tc, rho_c) the copied coefficients give (dp/drho)_T = 7e-6 RT, beyond the constrained check's
+    # 1e-6: checked as an unconstrained fit (the equation's own critical point lies 4e-6 below Tc)
+    Table("parahydrogen", "Leachman et al. (2009), Table 1, critical point of parahydrogen (from memory of "
+          "Table 1)", "critical", "mol/dm3", (("32.938", "15.538", "1.2858"),), constrained=False),
+    Table("parahydrogen", "Leachman et al. (2009), Table 1, fixed points of parahydrogen: triple point and "
+          "normal boiling point (from memory of Table 1)", "saturation", "mol/dm3",
+          (("13.8033", "0.007041", "38.185", ""),
+           ("20.271", "0.101325", "", ""))),
     # --- R-134a -----------------------------------------------------------------------------
     Table("r-134a", "Tillner-Roth and Baehr (1994), saturation table at 0 degC, with the IIR reference state "
           "h' = 200 kJ/kg, s' = 1 kJ/(kg K) (from memory)", "saturation", "kg/m3",

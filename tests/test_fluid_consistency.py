@@ -37,7 +37,7 @@ FLUID_LABELS = {"liquid", "vapor", "gas", "supercritical fluid"}
 # the general model's fluid (quantum fluids): Rackett-Tait liquid and Peng-Robinson vapour
 _SHORT_LINE = "its vapour-pressure line starts at 3.7 K, above 0.5 Tc (2.6 K)"
 _TAIT = "the Tait compression of the liquid fails a few per cent below Tc"
-GRID_GAPS = {"helium-4": f"{_SHORT_LINE}; {_TAIT}", "parahydrogen": _TAIT}
+GRID_GAPS = {"helium-4": f"{_SHORT_LINE}; {_TAIT}"}
 RANGE_GAPS = {"helium-4": _SHORT_LINE}
 
 
