@@ -23,7 +23,11 @@ import numpy as np
 
 @dataclass(frozen=True)
 class Constant:
-    """A published value with its unit, standard uncertainty and source."""
+    """A published value with its unit, standard uncertainty and source.
+
+    ``memory`` marks a value recalled from memory of the table its reference names, rather than read
+    from a copy of it.
+    """
 
     key: str
     name: str
@@ -32,6 +36,15 @@ class Constant:
     uncertainty: float | None
     reference: str
     note: str = ""
+    memory: bool = False
+
+    @classmethod
+    def from_entry(cls, key: str, entry: dict[str, Any]) -> "Constant":
+        """The constant a data file's ``[constants.<key>]`` table states, in the table's own unit."""
+        uncertainty = entry.get("uncertainty")
+        return cls(key=key, name=entry["name"], value=float(entry["value"]), unit=entry["unit"],
+                   uncertainty=None if uncertainty is None else float(uncertainty), reference=entry["reference"],
+                   note=entry.get("note", ""), memory=entry.get("memory", False))
 
 
 @lru_cache(maxsize=None)
@@ -44,16 +57,7 @@ def load(name: str) -> dict[str, Any]:
 @lru_cache(maxsize=None)
 def constant(name: str, key: str) -> Constant:
     """The constant ``key`` of data file ``name``."""
-    entry = load(name)["constants"][key]
-    return Constant(
-        key=key,
-        name=entry["name"],
-        value=float(entry["value"]),
-        unit=entry["unit"],
-        uncertainty=entry.get("uncertainty"),
-        reference=entry["reference"],
-        note=entry.get("note", ""),
-    )
+    return Constant.from_entry(key, load(name)["constants"][key])
 
 
 @lru_cache(maxsize=None)

@@ -1,7 +1,8 @@
 """A substance definition: flat fields in SI, each with its source.
 
-Built-in substances come from data files (cellfuncs/data/substances/*.toml); a
-user-defined substance comes from a mapping of field names to values (a sheet
+Built-in substances come from data files (cellfuncs/data/substances/*.toml, in the
+format of schema.py, which also keeps each constant's name, uncertainty and reference);
+a user-defined substance comes from a mapping of field names to values (a sheet
 range of field, value and optional unit). Both end up as the same flat fields,
 so SUBSTANCE_INFO of a built-in substance can be pasted back as a definition.
 
@@ -24,27 +25,20 @@ from importlib import resources
 from typing import Any, Mapping
 
 from ... import units
+from ...data import Constant
+from ..helmholtz.schema import SchemaError
 from ..result import BAD_ARGUMENT, ModelError, fmt
-from . import bounds
+from . import bounds, schema
 from .bounds import FIELDS
+from .schema import IDEAL_GAS, LINE_LISTS, LINE_NUMBERS, LINE_TEXTS, LINES, OPTIONAL_LISTS
 
 # field -> SI unit (the bounds, and the unit of a bare number, are in bounds.py); ".temperature"
 # fields give the state of the value before them
 NUMBERS: dict[str, str] = {key: bound.si for key, bound in FIELDS.items()}
-TEXTS = ("name", "formula", "designation", "aliases", "note", "associating", "equation")
-REQUIRED = ("name", "molar_mass", "critical_temperature", "critical_pressure")
-LINES = ("boil", "melt", "sublime")
-# line fields: "<line>.<key>"; numbers in K and Pa, lists of numbers written as [a, b, ...]
-LINE_TEXTS = ("form", "reference", "p_unit", "t_unit")
-# each form's numbers, and its lists paired as coefficient and exponent (see lines.py); every line has
-# its range T_min, T_max
-LINE_NUMBERS = {"ancillary": ("Tc", "pc"), "antoine": ("A", "B", "C"), "simon_glatzel": ("T0", "p0", "a", "c"),
-                "ancillary_melting": ("Tt", "pt"), "ancillary_sublimation": ("Tt", "pt")}
-LINE_LISTS = {"ancillary": (("n", "t"),), "antoine": (), "simon_glatzel": (),
-              "ancillary_melting": (("a", "t"), ("b", "s")), "ancillary_sublimation": (("a", "t"),)}
-OPTIONAL_LISTS = ("b", "s")
-# the ideal-gas heat capacity: rows "ideal_gas_cp.<key>" like a line's, its forms in ..ideal_gas
-IDEAL_GAS = "ideal_gas_cp"
+TEXTS = schema.TEXTS + ("equation",)
+REQUIRED = ("name",) + schema.CRITICAL
+# line fields: "<line>.<key>", the ideal-gas heat capacity's "ideal_gas_cp.<key>": the forms' numbers
+# and lists are in schema.py; numbers in K and Pa, lists of numbers written as [a, b, ...]
 
 
 @dataclass
@@ -60,6 +54,9 @@ class Definition:
     lines: dict[str, dict[str, Any]] = field(default_factory=dict)
     ideal_gas: dict[str, Any] = field(default_factory=dict)
     sources: dict[str, str] = field(default_factory=dict)
+    # a data file's constants as it states them (name, SI value and unit, uncertainty, reference, memory
+    # flag); a user definition has only its values
+    constants: dict[str, Constant] = field(default_factory=dict)
 
     @classmethod
     def from_fields(cls, fields: Mapping[str, Any], sources: Mapping[str, str] | None = None) -> "Definition":
@@ -346,37 +343,24 @@ def _validate_line(line: str, table: dict[str, Any]) -> None:
 
 @lru_cache(maxsize=None)
 def load_builtin(key: str) -> Definition:
-    """The definition in cellfuncs/data/substances/<key>.toml."""
-    text = resources.files("cellfuncs.data").joinpath("substances", f"{key}.toml").read_text(encoding="utf-8")
-    data = tomllib.loads(text)
-    fields: dict[str, Any] = {k: data[k] for k in TEXTS if k in data}
+    """The definition in cellfuncs/data/substances/<key>.toml, read through the format of schema.py."""
+    file = f"{key}.toml"
+    text = resources.files("cellfuncs.data").joinpath("substances", file).read_text(encoding="utf-8")
+    data = schema.read(file, tomllib.loads(text))
+    fields: dict[str, Any] = dict(data.texts, aliases=", ".join(data.texts["aliases"]))
     from ..helmholtz.equation import equation_keys
 
     if key in equation_keys():  # the substance's fluid comes from its equation of state
         fields["equation"] = key
-    if "aliases" in fields:
-        fields["aliases"] = ", ".join(fields["aliases"])
-    sources: dict[str, str] = {}
-    for key_, entry in data.get("constants", {}).items():
-        # data files write each unit exactly as NUMBERS names it, so a misspelt unit is an error, not a conversion
-        if key_ in NUMBERS and entry.get("unit") != NUMBERS[key_]:
-            raise ModelError(BAD_ARGUMENT, f"{key}.toml: constant '{key_}' has unit {entry.get('unit')!r}; "
-                                           f"data files write {NUMBERS[key_]!r}")
-        fields[key_] = (entry["value"], entry.get("unit"))
-        sources[key_] = entry.get("reference", "") + (" (recalled from memory of the table)" if entry.get("memory") else "")
-        for state in ("temperature",):
-            if state in entry:
-                fields[f"{key_}.{state}"] = (entry[state], "K")
-    for line, table in data.get("lines", {}).items():
-        for part, value in table.items():
-            if part in ("memory", "note"):
-                continue
-            fields[f"{line}.{part}"] = value
-        sources[line] = table.get("reference", "") + (" (recalled from memory)" if table.get("memory") else "")
-    table = data.get(IDEAL_GAS, {})
-    for part, value in table.items():
-        if part not in ("memory", "note"):
-            fields[f"{IDEAL_GAS}.{part}"] = value
-    if table:
-        sources[IDEAL_GAS] = table.get("reference", "") + (" (recalled from memory)" if table.get("memory") else "")
-    return Definition.from_fields(fields, sources)
+    for name, c in data.constants.items():
+        fields[name] = (c.value, c.unit)
+        if name in data.temperatures:
+            fields[f"{name}.temperature"] = (data.temperatures[name], "K")
+    for prefix, table in [*data.lines.items(), (IDEAL_GAS, data.ideal_gas)]:
+        fields.update({f"{prefix}.{part}": value for part, value in table.items()})
+    try:
+        d = Definition.from_fields(fields, data.sources)
+    except ModelError as exc:  # a data file's slip, named with its file
+        raise SchemaError(f"{file}: {exc.problem.reason}") from None
+    d.constants = data.constants
+    return d
