@@ -26,18 +26,19 @@ import numpy as np
 
 class _Pinned(NamedTuple):
     moment: dt.datetime | None
-    random: np.random.Generator
+    seed: int | None
+    random: list[np.random.Generator]  # made on first use: numpy.random takes a while to import
 
 
 _PINNED: ContextVar[_Pinned | None] = ContextVar("pinned_clock", default=None)
-_FRESH = np.random.default_rng()
+_FRESH: list[np.random.Generator] = []
 
 
 @contextmanager
 def fixed(moment: dt.datetime | None = None, seed: int | None = None) -> Iterator[None]:
     """Within the block NOW is ``moment`` (if given) and the random numbers follow ``seed``
     (if given; else fresh ones)."""
-    token = _PINNED.set(_Pinned(moment, np.random.default_rng(seed)))
+    token = _PINNED.set(_Pinned(moment, seed, []))
     try:
         yield
     finally:
@@ -53,4 +54,7 @@ def now() -> dt.datetime:
 def generator() -> np.random.Generator:
     """Where RAND and its kin take their numbers."""
     pinned = _PINNED.get()
-    return pinned.random if pinned is not None else _FRESH
+    made = pinned.random if pinned is not None else _FRESH
+    if not made:
+        made.append(np.random.default_rng(pinned.seed if pinned is not None else None))
+    return made[0]

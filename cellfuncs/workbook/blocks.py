@@ -10,6 +10,8 @@ units and evaluates a block; :class:`BlockContext` is the formula engine's view 
 
 from __future__ import annotations
 
+from itertools import chain, product
+
 import numpy as np
 
 from ..errors import CellError
@@ -49,8 +51,8 @@ class BlockContext(Context):
             return over
         rows = [a.r1] * h if fixed_row else range(a.r1 + self.dr, a.r1 + self.dr + h)
         cols = [a.c1] * w if fixed_col else range(a.c1 + self.dc, a.c1 + self.dc + w)
-        cells = [get((r, c)) for r in rows for c in cols]
-        if all(type(x) is float for x in cells):
+        cells = list(map(get, product(rows, cols)))
+        if set(map(type, cells)) == {float}:
             numbers = np.array(cells).reshape(h, w)
             if np.isfinite(numbers).all():
                 return numbers
@@ -151,8 +153,9 @@ class Blocks:
         for r, c, ph, pw in parts:
             band = max(1, BATCH_CELLS // pw)
             for top in range(r, r + ph, band):
-                units.append(tuple(columns[c - c1 + j][i - r1] for i in range(top, min(top + band, r + ph))
-                                   for j in range(pw)))
+                bottom = min(top + band, r + ph)  # row by row: the rows of the band's columns, zipped
+                band_columns = (run[top - r1:bottom - r1] for run in columns[c - c1:c - c1 + pw])
+                units.append(tuple(chain.from_iterable(zip(*band_columns))))
                 levels.append(level)
 
     def _reads_itself(self, s: int, t: Template, block: Area) -> bool:
@@ -191,7 +194,7 @@ class Blocks:
         else:
             lanes = [v] * len(members)
         values, result = self.values[first.sheet], self.result
-        keys = [(r, c) for r in range(first.row, last.row + 1) for c in range(first.col, last.col + 1)]
+        keys = product(range(first.row, last.row + 1), range(first.col, last.col + 1))  # row by row, as members
         if type(v) is np.ndarray and v.dtype == float:  # numbers only: every lane stands as it is
             values.update(zip(keys, lanes))
             for fi, x in zip(members, lanes):

@@ -36,6 +36,7 @@ Decisions:
 from __future__ import annotations
 
 from dataclasses import dataclass
+from operator import itemgetter
 from typing import Any, Callable, Iterator, Mapping
 
 import numpy as np
@@ -114,8 +115,8 @@ class Recalc(Dependencies, Blocks, Spills):
         # the cells' extent of each sheet, before spills: fixed once read, and every pass starts from it
         self._loaded_extent: list[tuple[int, int]] = []
         for constants, formulas in zip(self.constants, self.at):
-            keys = (*constants, *formulas)
-            self._loaded_extent.append((max((k[0] for k in keys), default=1), max((k[1] for k in keys), default=1)))
+            keys = (*constants, *formulas)  # the largest (row, column) has the last row
+            self._loaded_extent.append((max(keys, default=(1, 1))[0], max(map(itemgetter(1), keys), default=1)))
         self.values: list[dict] = []
         self.result: list[Value] = []
         self.spills: dict[int, Area] = {}
@@ -136,8 +137,14 @@ class Recalc(Dependencies, Blocks, Spills):
             masters = self.shared_firsts[s] = {
                 f.si: key for key, f in scan.formulas.items() if f.kind == "shared" and f.text and f.si is not None}
             for key, f in scan.formulas.items():
-                kind = f.kind
-                text, base = f.text, key
+                kind, text = f.kind, f.text
+                if kind == "normal" and text:  # the commonest cell, a plain formula of its own, first
+                    if tables.mentioned(text):
+                        text = tables.translate(text, s, *key)
+                    at[key] = len(cells)
+                    cells.append(FormulaCell(s, key[0], key[1], template_of(text, *key), kind, None))
+                    continue
+                base = key
                 if kind != "normal":
                     if kind == "dataTable":  # what-if tables are Excel's own machinery: the cached values stand
                         if f.cached is not None:
@@ -169,7 +176,9 @@ class Recalc(Dependencies, Blocks, Spills):
                 cells.append(FormulaCell(s, key[0], key[1], template, kind, old))
             self.legacy[s].freeze()
             if not arrays:  # no stored array ranges: every value cell that holds no formula is a constant
-                constants.update((key, v) for key, v in scan.values.items() if key not in at)
+                constants.update(scan.values)
+                for key in constants.keys() & at.keys():  # a cell written twice, as a value and as a formula
+                    del constants[key]
                 continue
             for key, v in scan.values.items():
                 if arrays.at(*key) is not None:
@@ -201,13 +210,13 @@ class Recalc(Dependencies, Blocks, Spills):
 
     def _column_index(self) -> list[dict[int, tuple[list[int], list[int]]]]:
         index: list[dict] = [{} for _ in self.book.sheets]
-        for fi, fc in enumerate(self.cells):
-            cols = index[fc.sheet]
-            entry = cols.get(fc.col)
-            if entry is None:
-                entry = cols[fc.col] = ([], [])
-            entry[0].append(fc.row)
-            entry[1].append(fi)
+        for cols, at in zip(index, self.at):  # a sheet's formula cells, in the order of self.cells
+            for (row, col), fi in at.items():
+                entry = cols.get(col)
+                if entry is None:
+                    entry = cols[col] = ([], [])
+                entry[0].append(row)
+                entry[1].append(fi)
         for cols in index:
             for col, (rows, fis) in cols.items():
                 if rows != sorted(rows):  # cells come in the sheet's order: their rows are usually in order
@@ -444,14 +453,14 @@ class Recalc(Dependencies, Blocks, Spills):
     # ---- results -----------------------------------------------------------------------
     def error_cells(self) -> Iterator[tuple[str, CellError]]:
         """(``Sheet!A1``, error) of every formula or spill cell holding an error, sheet by sheet."""
-        found = []
+        found, spills = [], self.spills
         for fi, v in enumerate(self.result):
-            fc = self.cells[fi]
-            a = self.spills.get(fi)
-            if a is None:
+            if fi not in spills:
                 if type(v) is CellError:
+                    fc = self.cells[fi]
                     found.append((fc.sheet, fc.row, fc.col, fi, v))
                 continue
+            fc, a = self.cells[fi], spills[fi]
             values = self.values[fc.sheet]
             for r in range(a.r1, a.r2 + 1):
                 for c in range(a.c1, a.c2 + 1):

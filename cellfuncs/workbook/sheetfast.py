@@ -64,6 +64,9 @@ _PLAIN_ATTRS = rb'(?: [A-Za-z_][\w.-]*+="[^"&\t\n\r]*+")*+'
 _PLAIN_CELL = re.compile(rb'<c r="([A-Z]{1,3})([1-9][0-9]{0,6})"(' + _PLAIN_ATTRS
                          + rb')(?: ?/>|>(?:(<f)(' + _PLAIN_ATTRS + rb')(?: ?/>|>([^<]*+)(</)f>))?'
                          rb'(?:(<v)(?: ?/>|>([^<]*+)</v>))?</c>)')
+# a row's end and the next row's start, as Excel, LibreOffice and openpyxl write them; groups: 1 the next
+# row's number, 2 its attributes past r (prefixed ones too: Excel's x14ac:dyDescent)
+_NEXT_ROW = re.compile(rb'</row><row r="([1-9][0-9]{0,6})"((?: [A-Za-z_][\w.:-]*+="[^"&\t\n\r]*+")*+)>')
 _SHEET_DATA = re.compile(rb"<sheetData(" + _ATTRS + rb")\s*>")
 _DECLARED = re.compile(rb"""(?:\xef\xbb\xbf)?<\?xml\s[^>]*?\bencoding\s*=\s*["']([^"']*)""")
 _INSIDE_REFUSED = (b"<!", b"<?", b"xmlns")  # comments, CDATA, PIs, namespace declarations
@@ -203,7 +206,9 @@ class _FastScanner(_Scanner):
     def __init__(self, data: bytes, part: str, strings: list[str], budget: list[int], rich: dict[str, CellError]):
         super().__init__(data, part, strings, budget, rich)
         self.main: str | None = None  # the namespace of sheetData, which its unprefixed content shares
-        self.rests: dict[bytes, dict[str, str]] = {}  # a plain cell's attributes past r, read
+        self.rests: dict[bytes, tuple[str, str | None, bool]] = {}  # a plain cell's t and cm past r, and if t is usual
+        self.row_rests: dict[bytes, dict[str, str]] = {}  # a plain row's attributes past r, read
+        self.f_rests: dict[bytes | None, tuple[str, str | None, str | None]] = {}  # a formula's t, ref and si
 
     def start(self, tag: str, attrib: dict) -> None:
         if self.depth == 1 and tag.endswith("}sheetData"):
@@ -254,48 +259,84 @@ class _FastScanner(_Scanner):
     def _plain_cells(self, data: bytes, pos: int, end: int) -> int:
         """The plain cells from ``pos`` on, one match of their pattern each and all of the rest
         here: the effect of :meth:`_cell_start` and :meth:`_cell_end` without their calls or an
-        attribute dict per cell (the attributes past r repeat, so each distinct set is read once).
+        attribute dict per cell (the attributes past r repeat, so each distinct set is read once),
+        and of the end and start events between one plain row and the next.
         Returns where the first cell not read starts: one beyond the limits, an error value (whose
         rich value the general rules look up) or any other cell."""
-        out, rests, strings, budget, part = self.out, self.rests, self.strings, self.budget, self.out.part
+        out, rests, f_rests, strings, budget = self.out, self.rests, self.f_rests, self.strings, self.budget
+        part = out.part
         cells, values, formulas = out.cells, out.values, out.formulas
         row_cells = self.row.cells if self.row is not None else None
-        match = _PLAIN_CELL.match
-        while (m := match(data, pos, end)) is not None:
-            letters, digits, rest, f, f_attrs, f_text, f_end, v, v_text = m.groups()
-            col = _BYTE_COLUMNS.get(letters)
-            if col is None:
-                col = _BYTE_COLUMNS[letters] = column_number(letters.decode("ascii"))
-            row = int(digits)
-            attrib = rests.get(rest)
-            if attrib is None:
-                attrib = rests[rest] = dict(_QUOTED.findall(rest.decode("utf-8")))
-            kind = attrib.get("t", "n")
-            if row > MAX_ROW or col > MAX_COL or self.cells_left <= 0 or kind == "e" or kind not in CELL_TYPES:
-                break
-            self.cells_left -= 1
-            self.col = col
-            key = (row, col)
-            stop = m.end()
-            cell = cells[key] = CellSpan(pos, pos if data[stop - 2] == 0x2F else stop - 4)  # "/>" or "</c>"
-            if row_cells is not None:
-                row_cells.append((col, pos))
-            value = None if v is None else stored_value(kind, _text(v_text) if v_text else "", strings, part)
-            pos = stop
-            if f is None:
-                if value is not None:
-                    values[key] = value
-                    if type(value) is CellError and kind not in ("s", "str", "inlineStr"):
-                        out.not_finite.append(key)
-                continue
-            budget[0] -= 1
-            if budget[0] < 0:
-                raise Refused(f"more than {sheetxml.MAX_FORMULAS:,} formula cells")  # the limit as it stands
-            f = m.start(4)
-            cell.formula = Span(f, m.start(7) if f_end else f)
-            fa = dict(_QUOTED.findall(f_attrs.decode("utf-8"))) if f_attrs else {}
-            formulas[key] = FormulaXml(xstring(_text(f_text)) if f_text else "", fa.get("t", "normal"), fa.get("ref"),
-                                       fa.get("si"), attrib.get("cm"), value)
+        match, next_row = _PLAIN_CELL.match, _NEXT_ROW.match
+        left, col = self.cells_left, self.col  # kept here, stored back on the way out
+        try:
+            while True:
+                m = match(data, pos, end)
+                if m is None:  # the row's end and the next row's start, or where the general rules go on
+                    if row_cells is None or (n := next_row(data, pos, end)) is None:
+                        break
+                    row_attrs = self.row_rests.get(n.group(2))
+                    if row_attrs is None:
+                        row_attrs = self.row_rests[n.group(2)] = _attributes(n.group(2))
+                    self.row.close = pos
+                    self._row_start(pos + 6, int(n.group(1)), row_attrs)  # the "<" of "<row"
+                    row_cells, col = self.row.cells, 0
+                    pos = n.end()
+                    continue
+                letters, digits, rest, f, f_attrs, f_text, f_end, v, v_text = m.groups()
+                c = _BYTE_COLUMNS.get(letters)
+                if c is None:
+                    c = _BYTE_COLUMNS[letters] = column_number(letters.decode("ascii"))
+                row = int(digits)
+                read = rests.get(rest)
+                if read is None:
+                    attrib = dict(_QUOTED.findall(rest.decode("utf-8")))
+                    kind = attrib.get("t", "n")
+                    read = rests[rest] = (kind, attrib.get("cm"), kind != "e" and kind in CELL_TYPES)
+                kind, cm, usual = read
+                if row > MAX_ROW or c > MAX_COL or left <= 0 or not usual:
+                    break
+                left -= 1
+                col = c
+                key = (row, c)
+                stop = m.end()
+                cell = cells[key] = CellSpan(pos, pos if data[stop - 2] == 0x2F else stop - 4)  # "/>" or "</c>"
+                if row_cells is not None:
+                    row_cells.append((c, pos))
+                value = None
+                if v is not None and kind != "n":
+                    value = stored_value(kind, _text(v_text) if v_text else "", strings, part)
+                elif v_text:  # a number as it is usually stored (no v, no text): read from the bytes
+                    try:
+                        value = float(v_text)
+                    except ValueError:  # anything else (a reference, a non-ASCII digit): the general rules
+                        pass
+                    if value is None or value - value != 0.0:  # not read, or not finite (inf - inf is NaN)
+                        value = stored_value(kind, _text(v_text), strings, part)
+                pos = stop
+                if f is None:
+                    if value is not None:
+                        values[key] = value
+                        if type(value) is CellError and kind not in ("s", "str", "inlineStr"):
+                            out.not_finite.append(key)
+                    continue
+                budget[0] -= 1
+                if budget[0] < 0:
+                    raise Refused(f"more than {sheetxml.MAX_FORMULAS:,} formula cells")  # the limit as it stands
+                f = m.start(4)
+                cell.formula = Span(f, m.start(7) if f_end else f)
+                fa = f_rests.get(f_attrs)
+                if fa is None:
+                    given = dict(_QUOTED.findall(f_attrs.decode("utf-8"))) if f_attrs else {}
+                    fa = f_rests[f_attrs] = (given.get("t", "normal"), given.get("ref"), given.get("si"))
+                text = ""
+                if f_text:
+                    text = f_text.decode("utf-8")
+                    if "&" in text or "\r" in text or "_x" in text:
+                        text = xstring(_text(f_text))
+                formulas[key] = FormulaXml(text, *fa, cm, value)
+        finally:
+            self.cells_left, self.col = left, col
         return pos
 
     def _cell(self, m: re.Match) -> None:

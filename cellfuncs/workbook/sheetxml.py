@@ -190,14 +190,7 @@ class _Scanner:
             r = attrib.get("r")
             if r is not None and not r.isdigit():
                 raise Refused(f"{self.out.part}: row number {r[:20]!r} is not a number")
-            self.row_number = int(r) if r is not None else self.row_number + 1
-            if not 1 <= self.row_number <= MAX_ROW:
-                raise Refused(f"{self.out.part}: row {self.row_number} is beyond Excel's {MAX_ROW} rows")
-            self.row = RowSpan(pos)
-            self.out.rows[self.row_number] = self.row
-            if attrib.get("hidden") in ("1", "true"):
-                self.out.hidden_rows.add(self.row_number)
-            self.col = 0
+            self._row_start(pos, int(r) if r is not None else self.row_number + 1, attrib)
         elif d == 2 and local == "c":
             self._cell_start(pos, attrib)
         elif d == 3 and self.cell is not None:
@@ -216,6 +209,17 @@ class _Scanner:
                 self.phonetic += 1
             elif local == "t" and not self.phonetic:
                 self.text = []
+
+    def _row_start(self, pos: int, number: int, attrib: dict) -> None:
+        """Row ``number`` starting at ``pos``, ``attrib`` its attributes."""
+        if not 1 <= number <= MAX_ROW:
+            raise Refused(f"{self.out.part}: row {number} is beyond Excel's {MAX_ROW} rows")
+        self.row_number = number
+        self.row = RowSpan(pos)
+        self.out.rows[number] = self.row
+        if attrib.get("hidden") in ("1", "true"):
+            self.out.hidden_rows.add(number)
+        self.col = 0
 
     def _dimension(self, pos: int, ref: str) -> None:
         if ref and area(ref) is None:

@@ -97,9 +97,10 @@ def _relative(item: tuple, row: int, col: int) -> tuple:
 class Shape(NamedTuple):
     """A text's shape at its cell: ``key`` (the text with each reference written relative to
     the cell), the references as :func:`shape` lists them, and how to write the text of the
-    same shape at another cell: ``form`` takes (:meth:`str.format`) the columns, then the rows,
-    of the relative parts, at the offsets ``cols`` and ``rows``; ``reach`` bounds the offsets
-    (rows low, high, columns low, high)."""
+    same shape at another cell: ``form`` takes (:meth:`str.format`) the columns of the relative
+    parts, at the offsets ``cols``, and gives the text in that column, which takes the rows, at
+    the offsets ``rows``; ``reach`` bounds the offsets (rows low, high, columns low, high);
+    ``in_columns`` keeps the text in each column it was written in (cells come down columns)."""
 
     key: str
     items: list[tuple]
@@ -107,13 +108,17 @@ class Shape(NamedTuple):
     cols: tuple[int, ...]
     rows: tuple[int, ...]
     reach: tuple[int, int, int, int]
+    in_columns: dict[int, str]
 
     def text_at(self, row: int, col: int) -> str | None:
         """The text of this shape in cell (row, col); None where a reference would leave the sheet."""
         low_row, high_row, low_col, high_col = self.reach
         if row + low_row < 1 or row + high_row > MAX_ROW or col + low_col < 1 or col + high_col > MAX_COL:
             return None
-        return self.form.format(*map(column_letters, map(col.__add__, self.cols)), *map(row.__add__, self.rows))
+        in_column = self.in_columns.get(col)
+        if in_column is None:
+            in_column = self.in_columns[col] = self.form.format(*map(column_letters, map(col.__add__, self.cols)))
+        return in_column.format(*map(row.__add__, self.rows))
 
 
 def _form(token: str, item: tuple) -> list[str | tuple[bool, int]]:
@@ -132,7 +137,8 @@ def _form(token: str, item: tuple) -> list[str | tuple[bool, int]]:
 
 
 def _escaped(text: str) -> str:
-    return text.replace("{", "{{").replace("}", "}}")
+    """``text`` as literal text of a form, which is formatted twice (columns, then rows)."""
+    return text.replace("{", "{{{{").replace("}", "}}}}")
 
 
 def shape(text: str, row: int, col: int) -> Shape:
@@ -162,13 +168,13 @@ def shape(text: str, row: int, col: int) -> Shape:
         pos = end
     cols = [piece[1] for piece in form if type(piece) is tuple and piece[0]]
     rows = [piece[1] for piece in form if type(piece) is tuple and not piece[0]]
-    fields = [len(cols), 0]  # the next row's field, the next column's
+    fields = [0, 0]  # the next row's field, the next column's
     for k, piece in enumerate(form):
-        if type(piece) is tuple:
-            form[k] = "{%d}" % fields[piece[0]]
+        if type(piece) is tuple:  # a row's field is written so that the columns' formatting leaves it
+            form[k] = ("{%d}" if piece[0] else "{{%d}}") % fields[piece[0]]
             fields[piece[0]] += 1
     reach = (min(rows or [0]), max(rows or [0]), min(cols or [0]), max(cols or [0]))
-    return Shape("".join(pieces), items, "".join(form), tuple(cols), tuple(rows), reach)
+    return Shape("".join(pieces), items, "".join(form), tuple(cols), tuple(rows), reach, {})
 
 
 def _unparsed(text: str, exc: FormulaSyntaxError) -> CellError:

@@ -178,27 +178,33 @@ class _SheetPatch:
         """Every formula cell of the sheet. The commonest, a plain start tag and a formula kept as
         it is, written here as :meth:`_write` writes it (the template of its kind, the formula's
         bytes, the new value), without the calls per cell; any other through :meth:`_formula`."""
-        engine, scan, data, edits, touched, tail = self.engine, self.scan, self.data, self.edits, self.touched, self._tail
+        engine, scan, data, edits, tail = self.engine, self.scan, self.data, self.edits, self._tail
         result, formulas, cells, unshared = engine.result, scan.formulas, scan.cells, self.unshared
-        match = _PLAIN_CELL.match
+        kinds, spills, blocked = [fc.kind for fc in engine.cells], engine.spills, engine.blocked
+        match, index = _PLAIN_CELL.match, data.index
+        tails: dict[tuple[bytes, bytes | None], bytes] = {}  # the tail of each kind of start tag and t, at hand
         for key, fi in engine.at[self.s].items():
             span = cells[key]
             f = span.formula
             value = result[fi]
             fx = formulas[key]
+            kind = kinds[fi]
             plain = None
             if (not span.extra and f.close != f.start and not (fx.kind == "shared" and fx.si in unshared)
-                    and (type(value) is not CellError or value.code in FILE_ERRORS) and not is_dynamic(engine, fi)):
-                plain = match(data, span.start)
+                    and (type(value) is not CellError or value.code in FILE_ERRORS)
+                    and (kind == "legacy" or (kind != "dynamic" and fi not in spills and fi not in blocked))):
+                plain = match(data, span.start)  # not is_dynamic(), spelt out: this runs for every formula
             if plain is None:
                 self._formula(key, fi)
                 continue
             t, v = value_xml(value)
-            p, ref, rest = plain.groups()
-            touched.add(key)
-            edits.append((span.start, data.index(b">", span.close) + 1,
-                          b'<%sc r="%s"%s%s<%sv>%s</%sv></%sc>' % (p, ref, tail(rest, [(b"t", t)] if t else []),
-                                                                  data[f.start:data.index(b">", f.close) + 1], p, v, p, p)))
+            p, ref, rest = plain.groups()  # not marked touched: only value cells are looked up there
+            end = tails.get((rest, t))
+            if end is None:
+                end = tails[(rest, t)] = tail(rest, [(b"t", t)] if t else [])
+            edits.append((span.start, index(b">", span.close) + 1,
+                          b'<%sc r="%s"%s%s<%sv>%s</%sv></%sc>' % (p, ref, end, data[f.start:index(b">", f.close) + 1],
+                                                                  p, v, p, p)))
 
     def _formula(self, key: tuple[int, int], fi: int) -> None:
         engine = self.engine
