@@ -50,3 +50,11 @@ def test_readme_lists_exactly_the_registered_built_ins():
     text = (ROOT / "README.md").read_text(encoding="utf-8")
     listed = re.search(r"<!-- builtins: generated -->\n(.*?)<!-- /builtins -->", text, flags=re.S)
     assert listed and listed.group(1) == builtin_list(), "regenerate it: python -m cellfuncs.formula.catalog"
+
+
+def test_readme_table_of_sheet_functions_is_the_registry():
+    from cellfuncs.sheet.catalog import function_table
+
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    listed = re.search(r"<!-- sheet functions: generated -->\n(.*?)<!-- /sheet functions -->", text, flags=re.S)
+    assert listed and listed.group(1) == function_table(), "regenerate it: python -m cellfuncs.sheet.catalog"
