@@ -40,11 +40,12 @@ potentials are equal on each line.
 from __future__ import annotations
 
 from functools import cached_property
+from typing import Callable
 
 import numpy as np
 
 from ...data import load
-from ...numerics import MonotoneInverse, anywhere
+from ...numerics import MonotoneInverse, anywhere, everywhere
 from ..base import FLUID, LIQUID, SOLID, VAPOR, FixedPoint, InfoItem, Substance
 from ..constants import P_STANDARD, R
 from .. import ideal_gas
@@ -95,6 +96,18 @@ def _derivative(f, T: np.ndarray, lo: float, hi: float) -> np.ndarray:
     forward = (-3.0 * at(0) + 4.0 * at(1) - at(2)) / (2.0 * h)
     backward = (3.0 * at(0) - 4.0 * at(-1) + at(-2)) / (2.0 * h)
     return np.where(up & down, central, np.where(up, forward, backward))
+
+
+def _where_on(mask: np.ndarray, f: Callable[[np.ndarray], np.ndarray], x: np.ndarray, fill: float) -> np.ndarray:
+    """f(x) where ``mask`` holds, ``fill`` elsewhere (x of the mask's shape). Where it holds everywhere f
+    takes x whole: a single value stays a single value, whose arithmetic numpy does without its array
+    machinery (a one-element array's costs four times as much)."""
+    if everywhere(mask):
+        return np.array(f(x), dtype=float)
+    out = np.full(np.shape(mask), fill)
+    if anywhere(mask):
+        out[mask] = f(x[mask])
+    return out
 
 
 def _in_u(inverse: MonotoneInverse, y: np.ndarray) -> np.ndarray:
@@ -418,12 +431,14 @@ class GeneralSubstance(Substance):
         p_low = self._p_low
         p = self.onto_line("boil", p, pressure=True)
         r = Result.like(p)
-        r.flag(p < p_low * (1 - LINE_TOL), OUT_OF_RANGE, "{} Pa is below the " + (
+        # the messages are written only for a value flagged (their numbers' formatting costs a call more
+        # than the line)
+        r.flag(p < p_low * (1 - LINE_TOL), OUT_OF_RANGE, lambda pp: f"{fmt(pp)} Pa is below the " + (
             "triple-point pressure" if self.has_triple else "lowest pressure of the vapour-pressure line")
                + f" of {self.name} ({fmt(p_low)} Pa)", p, see="sublime" if self.has_triple else "")
-        r.flag(p > self._p_high * (1 + LINE_TOL), OUT_OF_RANGE, "{} Pa is above the top of the boiling line of "
-               + f"{self.name} ({fmt(self._p_high)} Pa at the critical temperature)", p)
-        r.fill(self._t_boil(np.clip(p, p_low, self._p_high)))
+        r.flag(p > self._p_high * (1 + LINE_TOL), OUT_OF_RANGE, lambda pp: f"{fmt(pp)} Pa is above the top of the "
+               f"boiling line of {self.name} ({fmt(self._p_high)} Pa at the critical temperature)", p)
+        r.fill(self._t_boil(clamp(p, p_low, self._p_high)))
         return r
 
     def melt_pressure(self, T: np.ndarray, solid: int | None = None) -> tuple[Result, np.ndarray]:
@@ -517,8 +532,7 @@ class GeneralSubstance(Substance):
             # up to the same tolerance as the flag above: a pressure typed at the line's end (100 MPa)
             # is on the line, not in a gap where no solid is known
             melt = high & (p >= p_lo) & (p <= p_hi * (1 + LINE_TOL))
-            if anywhere(melt):
-                t_solid[melt] = self._t_melt(np.minimum(p[melt], p_hi))
+            t_solid = _where_on(melt, lambda q: self._t_melt(np.minimum(q, p_hi)), p, -np.inf)
         # (with a triple point there is always a melting line: published, Clapeyron or pressure-independent)
         if self._sub_range is not None:
             p_lo = self._p_sub_low
@@ -536,10 +550,10 @@ class GeneralSubstance(Substance):
                    + f"{self.name} ({fmt(self.t_low)} K)", T)
         p_low = self._p_low
         liquid = high & (p >= p_low)
-        t_boil = np.where(liquid, self.tc, -np.inf)
         sat = liquid & (p <= self._p_high)
-        if anywhere(sat):
-            t_boil[sat] = self._t_boil(p[sat])
+        t_boil = _where_on(sat, self._t_boil, p, self.tc)  # above the line's top pressure: the critical temperature
+        if not everywhere(liquid):
+            t_boil = np.where(liquid, t_boil, -np.inf)
         state = classify(T, p, t_solid=t_solid, solid=np.zeros(T.shape, int), t_boil=t_boil, sat=sat, high=high,
                          pt=self.triple.pressure if self.has_triple else -np.inf, tc=self.tc, pc=self.pc)
         r.fill(state.astype(float))
@@ -608,9 +622,8 @@ class GeneralSubstance(Substance):
         if self._melt_range is not None:
             p_lo, p_hi = self._melt_p_range
             frozen = (q >= p_lo) & (q <= p_hi)
-            if frozen.any():
-                t_m = np.full(t.shape, -np.inf)
-                t_m[frozen] = self._t_melt(q[frozen])
+            if anywhere(frozen):
+                t_m = _where_on(frozen, self._t_melt, q, -np.inf)
                 sub.flag(t < t_m * (1 - LINE_TOL), OUT_OF_RANGE, lambda tt, qq: f"{word} {self.name} at {fmt(tt)} K "
                          f"and {fmt(qq)} Pa is below its melting temperature", t, q)
 

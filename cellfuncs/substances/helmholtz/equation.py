@@ -19,7 +19,7 @@ import numpy as np
 
 from ... import data
 from . import schema
-from .terms import DERIVATIVES, IdealTerms, evaluate
+from .terms import DERIVATIVES, DensityTerms, IdealTerms, evaluate
 
 
 class _Derivatives:
@@ -74,6 +74,39 @@ class Mechanical(_Derivatives):
     rho: np.ndarray  # mol/m3
 
 
+class Isotherm:
+    """p and (dp/drho)_T at fixed temperatures (one per state, a 1-d array), density by density: what
+    the density solver iterates on. This one asks the equation each time; an equation's own (below)
+    keeps what depends on temperature alone."""
+
+    def __init__(self, eq: "HelmholtzEquation", T: np.ndarray):
+        self.eq, self.T = eq, T
+
+    def pressure(self, rho: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        return self.eq.pressure(self.T, rho)
+
+    def take(self, keep: np.ndarray) -> "Isotherm":
+        """The isotherms of the states where ``keep`` holds."""
+        return Isotherm(self.eq, self.T[keep])
+
+
+class _TermIsotherm(Isotherm):
+    """An equation's isotherms with their terms' temperature factors computed once."""
+
+    def __init__(self, eq: "HelmholtzEquation", T: np.ndarray, factors: tuple | None = None):
+        super().__init__(eq, T)
+        self._factors = eq._density_terms.factors(eq.Tc / T) if factors is None else factors
+        self._rt = eq.R * T
+
+    def pressure(self, rho: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        d, dd = self.eq._density_terms.derivatives(self._factors, rho / self.eq.rhoc)
+        return rho * self._rt * (1.0 + d), self._rt * (1.0 + 2.0 * d + dd)
+
+    def take(self, keep: np.ndarray) -> "Isotherm":
+        F, tau = self._factors
+        return _TermIsotherm(self.eq, self.T[keep], (F[keep], tau[keep]))
+
+
 class HelmholtzEquation:
     """One published Helmholtz-energy equation: reducing constants, term families, range."""
 
@@ -98,6 +131,7 @@ class HelmholtzEquation:
         self.p_max = spec.constants["maximum_pressure"].value
         self._ideal: IdealTerms = spec.ideal
         self._residual = spec.residual
+        self._density_terms = DensityTerms(spec.residual)
 
     # --- the reduced Helmholtz energy ----------------------------------------------------
     def reduced(self, T, rho) -> tuple[dict, dict]:
@@ -120,6 +154,10 @@ class HelmholtzEquation:
         r = self.residual(T, rho, ("d", "dd"))
         rt = self.R * T
         return rho * rt * (1.0 + r["d"]), rt * (1.0 + 2.0 * r["d"] + r["dd"])
+
+    def isotherm(self, T: np.ndarray) -> Isotherm:
+        """The isotherms at temperatures ``T`` (a 1-d array) for the density solver."""
+        return _TermIsotherm(self, T)
 
     def mechanical(self, T, rho) -> Mechanical:
         """The properties that need no ideal-gas part: cheaper than :meth:`state`."""

@@ -63,7 +63,7 @@ import numpy as np
 from ...numerics import solve_bracketed
 from .. import ideal_gas
 from ..constants import P_STANDARD
-from .equation import HelmholtzEquation
+from .equation import HelmholtzEquation, Isotherm
 from .saturation import Saturation, equilibrium
 
 REFERENCE_FLUID = "propane"  # long liquid range (Tr from 0.23), a reference equation to 1000 MPa
@@ -162,6 +162,9 @@ class _WithPolarTerm(HelmholtzEquation):
         self.key, self.title, self.reference = reference.key, reference.title, reference.reference
         self.R, self.M, self.Tc, self.rhoc = reference.R, reference.M, reference.Tc, reference.rhoc
         self.T_min, self.T_max, self.p_max = reference.T_min, reference.T_max, reference.p_max
+
+    def isotherm(self, T: np.ndarray) -> Isotherm:
+        return Isotherm(self, T)
 
     def residual(self, T, rho, want=("a", "d", "dd", "t", "tt", "dt")) -> dict:
         out = self._plain.residual(T, rho, want)
@@ -370,6 +373,9 @@ class MappedEquation(HelmholtzEquation):
         return np.exp(self._theta(s)[0]), np.exp(self._phi(s)[0])
 
     # --- the reduced Helmholtz energy ----------------------------------------------------
+    def isotherm(self, T: np.ndarray) -> Isotherm:
+        return Isotherm(self, T)
+
     def residual(self, T, rho, want=("a", "d", "dd", "t", "tt", "dt")) -> dict:
         T, rho = np.asarray(T, dtype=float), np.asarray(rho, dtype=float)
         s = np.log(self.Tc / T)

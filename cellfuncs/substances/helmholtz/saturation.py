@@ -27,7 +27,7 @@ from typing import Callable
 
 import numpy as np
 
-from ...numerics import solve_bracketed
+from ...numerics import everywhere, solve_bracketed
 from . import density
 from .equation import HelmholtzEquation
 
@@ -35,6 +35,8 @@ NODES = 801  # about 1 K apart near a triple point at 0.3 Tc: 5e-8 in pressure a
 _X_SMALL = 0.01  # nodes closer to the critical point than this are not solved: the pair is too close
 _X_GAP = 0.05  # the last solved node must be at least this close to the critical point (T > 0.99987 Tc)
 _SCAN = 64  # points of the stiffness scan between the saturated densities (finding the spinodals)
+_NEWTON = 8  # Newton steps at most inverting the vapour pressure (three or four from the straight line)
+_S_TOL = 1e-9  # after a Newton step this small on the position in an interval the next is at rounding level
 
 
 def starting_densities(eq: HelmholtzEquation, T: np.ndarray, p_guess: np.ndarray, rho_liquid_guess: np.ndarray
@@ -189,8 +191,18 @@ class Saturation:
         dy_dT = ln_pr / Tc + T_all / Tc * np.concatenate([dp_dT / p, [crit_slope / float(crit_p)]])
         one = [1.0]
         self._x = x_all[::-1]  # increasing x, for interpolation
-        self._y = (T_all / Tc * ln_pr)[::-1]
+        self._y = y = (T_all / Tc * ln_pr)[::-1]
         self._slope = (dy_dT * -3.0 * Tc * x_all**2)[::-1]
+        # each interval's Hermite cubic as a polynomial in s = (x - x_i) / h, y = c0 + s (c1 + s (c2 + s c3)),
+        # for the inverse
+        h = np.diff(self._x)
+        m0, m1 = h * self._slope[:-1], h * self._slope[1:]
+        y0, y1 = y[:-1], y[1:]
+        self._c = (y0, m0, 3.0 * (y1 - y0) - 2.0 * m0 - m1, 2.0 * (y0 - y1) + m0 + m1)
+        self._h = h
+        self._q = -ln_pr[::-1]  # -ln(p/p_c) at the nodes, increasing with x: where a pressure's interval is found
+        # the inner nodes: searched, they give the interval's index, the end intervals standing for beyond the ends
+        self._x_inner, self._q_inner = self._x[1:-1].copy(), self._q[1:-1].copy()
         self._cols = {name: np.concatenate([col, end])[::-1] for name, col, end in (
             ("d_l", d_l, one), ("d_v", d_v, one), ("sv", sv, one), ("sl", sl, one),
             ("p_sv", p_sv, [float(crit_p)]), ("p_sl", p_sl, [float(crit_p)]),
@@ -206,17 +218,49 @@ class Saturation:
         """Vapour pressure (Pa) at T, T_low <= T <= Tc (cubic Hermite in x, no equation call)."""
         T = np.minimum(np.maximum(np.asarray(T, dtype=float), self.T_low), self.eq.Tc)
         x = np.minimum(self._x_of(T), self.x_top)  # _x_of is never negative
-        xs = self._x
-        i = np.minimum(np.maximum(np.searchsorted(xs, x, side="right") - 1, 0), xs.size - 2)
-        h = xs[i + 1] - xs[i]
-        s = (x - xs[i]) / h
+        i = self._x_inner.searchsorted(x, side="right")
+        h = self._h[i]
+        s = (x - self._x[i]) / h
         s2, s3 = s * s, s * s * s
         y = ((2 * s3 - 3 * s2 + 1) * self._y[i] + (s3 - 2 * s2 + s) * h * self._slope[i]
              + (-2 * s3 + 3 * s2) * self._y[i + 1] + (s3 - s2) * h * self._slope[i + 1])
         return self.p_critical * np.exp(y * self.eq.Tc / T)
+
+    def temperature(self, p: np.ndarray) -> np.ndarray:
+        """The temperature (K) whose vapour pressure is p, p(T_low) <= p <= p_c: the root of the same
+        cubic that :meth:`pressure` evaluates, in the interval the nodes' pressures put p in.
+
+        With L = ln(p/p_c) and T/T_c = 1 - x^3, p(T) = p means y(x) = L (1 - x^3): in s, the cubic
+        F(s) = y(s) - L (1 - (x_i + h s)^3), solved by Newton's method from ln p interpolated linearly in
+        T between the nodes (Clausius-Clapeyron's near-straight line; F falls monotonically in an
+        interval, its slope vanishing only at the critical point itself, where F = 0)."""
+        L = np.minimum(np.log(np.asarray(p, dtype=float) / self.p_critical), 0.0)
+        q = self._q
+        i = self._q_inner.searchsorted(-L, side="right")
+        c0, c1, c2, c3 = (c[i] for c in self._c)
+        x0, h = self._x[i], self._h[i]
+        w = np.minimum(np.maximum((-L - q[i]) / (q[i + 1] - q[i]), 0.0), 1.0)
+        x1 = x0 + h
+        s = (np.cbrt(x0**3 + w * (x1 - x0) * (x1 * x1 + x1 * x0 + x0 * x0)) - x0) / h
+        # F's coefficients: y's less those of L (1 - (x0 + h s)^3)
+        a0, a1 = c0 - L * (1.0 - x0**3), c1 + 3.0 * L * x0 * x0 * h
+        a2, a3 = c2 + 3.0 * L * x0 * h * h, c3 + L * h**3
+        for _ in range(_NEWTON):
+            # F' < 0: the tiny shift keeps 0/0 at the critical point itself a zero step
+            step = (a0 + s * (a1 + s * (a2 + s * a3))) / (a1 + s * (2.0 * a2 + 3.0 * s * a3) - 1e-300)
+            s = s - step
+            if everywhere(~(np.abs(step) > _S_TOL)):  # the next step would be at rounding level
+                break
+        x = x0 + h * s
+        return self.eq.Tc * (1.0 - x * x * x)
 
     def column(self, name: str, T: np.ndarray) -> np.ndarray:
         """A tabulated quantity at T (linear in x): d_l, d_v (saturated densities / rho_c), sv, sl
         (spinodal densities / rho_c), p_sv, p_sl (spinodal pressures), stiff_l (dp/ddelta of the
         saturated liquid)."""
         return np.interp(self._x_of(T), self._x, self._cols[name])
+
+    def columns(self, T: np.ndarray, *names: str) -> tuple[np.ndarray, ...]:
+        """Several of :meth:`column`'s quantities at T, its position in the table found once."""
+        x = self._x_of(T)
+        return tuple(np.interp(x, self._x, self._cols[name]) for name in names)

@@ -41,6 +41,7 @@ from ..general.definition import Definition
 from ..general.model import P0, P_MAX, GeneralSubstance
 from ..line_ends import LINE_TOL
 from ..result import BAD_ARGUMENT, OUT_OF_RANGE, ModelError, Result, fmt
+from ...numerics import anywhere, everywhere
 from . import density, saturation
 from .equation import HelmholtzEquation
 
@@ -81,6 +82,9 @@ class EquationSubstance(GeneralSubstance):
     def _p_boil(self, T: np.ndarray) -> np.ndarray:
         return self.saturation.pressure(T)
 
+    def _t_boil(self, p: np.ndarray) -> np.ndarray:
+        return self.saturation.temperature(p)
+
     def _setup_triple(self) -> None:
         # one equilibrium at the triple-point temperature (not the whole table: that waits for use)
         tt = self.definition.values.get("triple_point_temperature")
@@ -120,39 +124,53 @@ class EquationSubstance(GeneralSubstance):
         rho = density.solve(eq, T, np.array(1.5 * eq.p_max), d_l * 1.5, d_l, np.array(4.0 * d_l))
         return float(rho / eq.rhoc) if np.isfinite(rho) else float(4.0 * d_l)
 
+    @cached_property
+    def _fluid_starts(self) -> density.FluidStarts:
+        """Starts for the single fluid: the equation's roots on a grid, solved on first use from the cubic
+        equation's densities."""
+        eq = self.equation
+        return density.FluidStarts(eq, self.t_max, self.pc, 1.5 * self._p_top, self._delta_max,
+                                   lambda T, p: 1.0 / (self.eos.volume(T, p, "vapor") * eq.rhoc))
+
     def _density(self, T: np.ndarray, p: np.ndarray, branch: int) -> np.ndarray:
         """Molar density on the liquid-like (LIQUID), vapour-like (VAPOR) branch below the critical
         temperature or the single root (FLUID) above it; NaN where the branch does not reach p."""
         eq, sat = self.equation, self.saturation
         T, p = np.broadcast_arrays(np.asarray(T, float), np.asarray(p, float))
         ideal = p / (eq.R * T * eq.rhoc)  # the ideal gas's reduced density
-        top = np.full(T.shape, self._delta_max)
-        if branch != FLUID and (T > self.tc * (1.0 - _CRITICAL_BAND)).any():
+        top = np.array(self._delta_max)  # solve broadcasts it
+        if branch != FLUID and anywhere(T > self.tc * (1.0 - _CRITICAL_BAND)):
             # a hair below the critical temperature the branches are not resolved (their densities
             # differ by less than 1e-3): the one fluid stands for both
             near = T > self.tc * (1.0 - _CRITICAL_BAND)
             return np.where(near, self._density(T, p, FLUID), self._density(np.where(near, self.t_low, T), p, branch))
         if branch == FLUID:
-            guess = 1.0 / (self.eos.volume(T, p, "vapor") * eq.rhoc)
-            return density.solve(eq, T, p, guess, ideal / 20.0, top)
+            guess = self._fluid_starts(T, p)
+            return density.solve(eq, T, p, np.where(np.isfinite(guess), guess, ideal), ideal / 20.0, top)
         ps = sat.pressure(T)
         if branch == LIQUID:
-            d_l, sl, p_sl = sat.column("d_l", T), sat.column("sl", T), sat.column("p_sl", T)
+            d_l, sl, p_sl, stiff_l = sat.columns(T, "d_l", "sl", "p_sl", "stiff_l")
+            compressed = p >= ps
+            # each start computed only where some state needs it (a single state: one of the two)
             with np.errstate(invalid="ignore", divide="ignore"):
-                compressed = d_l + (p - ps) / sat.column("stiff_l", T)
-                stretched = sl + (d_l - sl) * np.sqrt(np.clip((p - p_sl) / (ps - p_sl), 0.0, 1.0))
-            return density.solve(eq, T, p, np.where(p >= ps, compressed, stretched), sl, top)
-        d_v, sv, p_sv = sat.column("d_v", T), sat.column("sv", T), sat.column("p_sv", T)
+                guess = d_l + (p - ps) / stiff_l if everywhere(compressed) else np.where(
+                    compressed, d_l + (p - ps) / stiff_l,
+                    sl + (d_l - sl) * np.sqrt(np.clip((p - p_sl) / (ps - p_sl), 0.0, 1.0)))
+            return density.solve(eq, T, p, guess, sl, top)
+        d_v, sv, p_sv = sat.columns(T, "d_v", "sv", "p_sv")
         # below the saturation pressure Z = 1 + b delta through the saturated vapour; above it the
         # isotherm's parabola towards its maximum, the spinodal
-        b = (ps / (eq.R * T * eq.rhoc * d_v) - 1.0) / d_v
+        below = p <= ps
         with np.errstate(invalid="ignore", divide="ignore"):
+            b = (ps / (eq.R * T * eq.rhoc * d_v) - 1.0) / d_v
             virial = 2.0 * ideal / (1.0 + np.sqrt(np.maximum(1.0 + 4.0 * b * ideal, 0.0)))
-            squeezed = sv - (sv - d_v) * np.sqrt(np.clip((p_sv - p) / (p_sv - ps), 0.0, 1.0))
+            guess = virial if everywhere(below) else np.where(
+                below, virial, sv - (sv - d_v) * np.sqrt(np.clip((p_sv - p) / (p_sv - ps), 0.0, 1.0)))
         cold = T < self.t_low  # gas below the triple point: low density, far from any spinodal
-        hi = np.where(cold, np.minimum(4.0 * ideal, sv), sv)
-        guess = np.where(cold, ideal, np.where(p <= ps, virial, squeezed))
-        return density.solve(eq, T, p, guess, 0.5 * ideal, hi)
+        if anywhere(cold):
+            return density.solve(eq, T, p, np.where(cold, ideal, guess), 0.5 * ideal,
+                                 np.where(cold, np.minimum(4.0 * ideal, sv), sv))
+        return density.solve(eq, T, p, guess, 0.5 * ideal, sv)
 
     def _mu(self, T: np.ndarray, p: np.ndarray, rho: np.ndarray) -> np.ndarray:
         """Chemical potential relative to the ideal gas at T and P0."""

@@ -167,6 +167,15 @@ class NonanalyticTerms:
     def from_table(cls, table: Mapping) -> "NonanalyticTerms":
         return cls(**_columns(table, ("a", "b", "beta", "A", "B", "C", "D"), {}))
 
+    def __post_init__(self) -> None:
+        # the products of constants that the derivatives use, formed once (as they were written, so
+        # the values are the same to the last bit)
+        ib = 1.0 / (2.0 * self.beta)
+        for name, value in (("_ib", ib), ("_A2b", self.A * (2.0 / self.beta)), ("_2Ba", 2.0 * self.B * self.a),
+                            ("_4Baa", 4.0 * self.B * self.a * (self.a - 1.0)), ("_2Ab2", 2.0 * (self.A / self.beta) ** 2),
+                            ("_A4b", self.A * (4.0 / self.beta) * (ib - 1.0)), ("_m2C", -2.0 * self.C)):
+            object.__setattr__(self, name, value)
+
     def add(self, tau: np.ndarray, delta: np.ndarray, out: dict) -> None:
         # The terms' derivatives contain (delta - 1)^(negative power) times (delta - 1): finite
         # limits, but 0 * inf at the critical density itself, so step off it by a hair.
@@ -176,8 +185,7 @@ class NonanalyticTerms:
         ta = tau[:, None]
         sq = dm * dm
         ln_sq = np.log(sq)
-        ib = 1.0 / (2.0 * self.beta)
-        sq_ib = np.exp(ib * ln_sq)  # ((delta - 1)^2)^(1/(2 beta))
+        sq_ib = np.exp(self._ib * ln_sq)  # ((delta - 1)^2)^(1/(2 beta))
         sq_a = np.exp(self.a * ln_sq)  # ((delta - 1)^2)^a
         theta = (1.0 - ta) + self.A * sq_ib
         Delta = theta * theta + self.B * sq_a
@@ -191,16 +199,15 @@ class NonanalyticTerms:
             out["a"] += (n * Db * dl * psi).sum(axis=1)
         if "d" in out or "dd" in out or "dt" in out:
             # dDelta/ddelta, written with sq^x / sq in place of sq^(x - 1)
-            D_d = (self.A * (2.0 / self.beta) * theta * sq_ib + 2.0 * self.B * self.a * sq_a) / dm
+            D_d = (self._A2b * theta * sq_ib + self._2Ba * sq_a) / dm
             Db_d = self.b * Db1 * D_d
-            p_d = -2.0 * self.C * dm * psi
+            p_d = self._m2C * dm * psi
             psi_dl = psi + dl * p_d  # d(delta psi)/ddelta
         if "d" in out:
             out["d"] += d1 * (n * (Db * psi_dl + Db_d * dl * psi)).sum(axis=1)
         Db2 = Db1 / Delta if ("dd" in out or "tt" in out or "dt" in out) else None  # Delta^(b-2)
         if "dd" in out:
-            D_dd = D_d / dm + (4.0 * self.B * self.a * (self.a - 1.0) * sq_a + 2.0 * (self.A / self.beta) ** 2 * sq_ib * sq_ib
-                               + self.A * (4.0 / self.beta) * (ib - 1.0) * theta * sq_ib) / sq
+            D_dd = D_d / dm + (self._4Baa * sq_a + self._2Ab2 * sq_ib * sq_ib + self._A4b * theta * sq_ib) / sq
             Db_dd = self.b * (Db1 * D_dd + (self.b - 1.0) * Db2 * D_d * D_d)
             p_dd = (2.0 * self.C * sq - 1.0) * 2.0 * self.C * psi
             a_dd = n * (Db * (2.0 * p_d + dl * p_dd) + 2.0 * Db_d * psi_dl + Db_dd * dl * psi)
@@ -307,3 +314,82 @@ def evaluate(families: Sequence, tau: np.ndarray, delta: np.ndarray,
         for k in want:
             out[k][part] = acc[k]
     return {k: v.reshape(shape) for k, v in out.items()}
+
+
+class DensityTerms:
+    """The residual part's delta-derivatives (d and dd) along isotherms, for solving for density: the
+    power, exponential and gaussian terms as one array of terms
+
+        n delta^d tau^t exp(-g delta^l - eta (delta - epsilon)^2 - beta (tau - gamma)^2)
+
+    in that order (l = g = 0 for a power term, eta = beta = 0 for an exponential one, l = g = 0 for a
+    gaussian one; each part of the exponent computed only over the terms that have it), whose factor
+    n tau^t exp(-beta (tau - gamma)^2) is computed once per isotherm (:meth:`factors`) rather than at
+    each density of an iteration; the nonanalytic families as they are.
+
+    A term f's d and dd are f A and f (A^2 + delta dA/ddelta - A), A = delta d(ln f)/d(delta): a power
+    term's A = d is a constant, an exponential term's A = d - l g delta^l is linear in w = g delta^l and a
+    gaussian term's A = d - 2 eta u linear in u = delta (delta - epsilon). So d and dd are polynomials in
+    w and u with constant coefficients per term: the products f, f w, f w^2, f u, f u^2 and f delta side by
+    side, times a row of coefficients each for d and dd, summed along the row by einsum's loop (each
+    state's own sum, in the same order alone as inside an array, which a BLAS matrix product does not
+    promise): a handful of array operations for a single state."""
+
+    def __init__(self, families: Sequence):
+        power = [f for f in families if isinstance(f, PowerTerms) and not f.exponential]
+        exponential = [f for f in families if isinstance(f, PowerTerms) and f.exponential]
+        gaussian = [f for f in families if isinstance(f, GaussianTerms)]
+        series = power + exponential + gaussian
+        self._others = [f for f in families if not any(f is s for s in series)]
+
+        def column(name: str, group: list = series) -> np.ndarray:
+            return np.concatenate([np.zeros(0)] + [getattr(f, name) for f in group])
+
+        self._n, self._d, self._t = (column(name) for name in ("n", "d", "t"))
+        k = sum(f.n.size for f in power)
+        m = k + sum(f.n.size for f in exponential)
+        self._exp, self._gauss = slice(k, m), slice(m, None)
+        self._l, self._g = column("l", exponential), column("g", exponential)
+        self._eta, self._epsilon = column("eta", gaussian), column("epsilon", gaussian)
+        self._beta, self._gamma = column("beta", gaussian), column("gamma", gaussian)
+        d, l, eta = self._d, self._l, self._eta
+        de, dg = d[self._exp], d[self._gauss]
+        zl, ze = np.zeros(l.shape), np.zeros(eta.shape)
+        # the coefficients of f, f w, f w^2, f u, f u^2, f delta (dd's -2 eta delta^2 is -2 eta (u + epsilon delta))
+        self._coefficients = np.stack([
+            np.concatenate([d, -l, zl, -2.0 * eta, ze, ze]),
+            np.concatenate([d * (d - 1.0), -l * (2.0 * de + l - 1.0), l * l, -4.0 * dg * eta - 2.0 * eta,
+                            4.0 * eta * eta, -2.0 * eta * self._epsilon])])
+
+    def factors(self, tau: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(n tau^t exp(-beta (tau - gamma)^2) as states x terms, tau): what the isotherms at ``tau``
+        (one-dimensional) keep between densities."""
+        ta = tau[:, None]
+        arg = self._t * np.log(ta)
+        xt = ta - self._gamma
+        arg[:, self._gauss] -= self._beta * xt * xt
+        return self._n * np.exp(arg), tau
+
+    def derivatives(self, factors: tuple[np.ndarray, np.ndarray], delta: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(delta alphar_delta, delta^2 alphar_deltadelta) at the densities ``delta`` (one per state)."""
+        F, tau = factors
+        dl = delta[:, None]
+        ln_d = np.log(dl)
+        arg = self._d * ln_d
+        w = self._g * np.exp(self._l * ln_d)  # g delta^l
+        arg[:, self._exp] -= w
+        xd = dl - self._epsilon
+        arg[:, self._gauss] -= self._eta * xd * xd
+        f = F * np.exp(arg)
+        fw, fg = f[:, self._exp] * w, f[:, self._gauss]
+        u = dl * xd
+        fu = fg * u
+        products = np.concatenate([f, fw, fw * w, fu, fu * u, fg * dl], axis=1)
+        out = np.einsum("ij,kj->ik", products, self._coefficients)  # row by row: no BLAS blocking across states
+        d, dd = out[:, 0], out[:, 1]
+        if self._others:
+            parts = {"d": d, "dd": dd}
+            for family in self._others:
+                family.add(tau, delta, parts)
+            d, dd = parts["d"], parts["dd"]
+        return d, dd
