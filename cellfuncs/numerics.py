@@ -21,11 +21,15 @@ import numpy as np
 def anywhere(mask: Any) -> bool:
     """Whether any element of ``mask`` holds; a single value is read directly, without numpy's
     reduction machinery (which costs ten times the comparison that made the mask)."""
+    if mask.__class__ is np.bool_:  # a single value's mask, the usual cell: its truth without a call
+        return True if mask else False
     return bool(mask) if getattr(mask, "size", 1) == 1 else bool(mask.any())
 
 
 def everywhere(mask: Any) -> bool:
     """Whether every element of ``mask`` holds (an empty mask: True); a single value read directly."""
+    if mask.__class__ is np.bool_:
+        return True if mask else False
     return bool(mask) if getattr(mask, "size", 1) == 1 else bool(mask.all())
 
 
@@ -90,6 +94,9 @@ def solve_bracketed(
     return np.where(valid, root, np.nan)
 
 
+_MEMO_SIZE = 16  # MonotoneInverse remembers its last values up to this many
+
+
 class MonotoneInverse:
     """x(y) for a smooth, strictly monotone y = f(x) on [lo, hi], fast for one value or many.
 
@@ -110,20 +117,29 @@ class MonotoneInverse:
             x, y = x[::-1], y[::-1]
         self.x, self.y = x, y
         self.slope = np.gradient(x, y)  # dx/dy at the nodes
+        self._last: tuple[np.ndarray, np.ndarray] | None = None  # (y, x) of the last few values inverted
 
     def __call__(self, y: np.ndarray | float) -> np.ndarray:
         y = np.asarray(y, dtype=float)  # a single value stays 0-d: numpy's arithmetic on scalars
-        inside = (y >= self.y[0]) & (y <= self.y[-1])
+        last = self._last
+        # a model asks for the same value twice in one call (the stable phase, then the phase's own
+        # range check): the second time is a comparison
+        if last is not None and last[0].shape == y.shape and everywhere(last[0] == y):
+            return last[1].copy()
         with np.errstate(all="ignore"):
-            x = np.interp(y, self.y, self.x)
+            # NaN outside f's range, which the steps keep
+            x = np.interp(y, self.y, self.x, left=np.nan, right=np.nan)
             slope = np.interp(y, self.y, self.slope)
             for _ in range(self.steps):
                 step = (self.f(x) - y) * slope
                 x = x - step
             # a kink in f (where two equations meet) can stall Newton: bracket those elements
-            slow = inside & ~(np.abs(step) <= 1e-13 * np.abs(x))
+            slow = np.abs(step) > 1e-13 * np.abs(x)
             if anywhere(slow):
-                x, y, slow = np.array(x, ndmin=1), np.array(y, ndmin=1), np.array(slow, ndmin=1)
-                k = np.clip(np.searchsorted(self.y, y[slow]), 1, len(self.y) - 1)
-                x[slow] = solve_bracketed(lambda t: self.f(t) - y[slow], self.x[k - 1], self.x[k], xtol=1e-15)
-        return np.where(inside, np.reshape(x, inside.shape), np.nan)
+                x, ys, slow = np.array(x, ndmin=1), np.array(y, ndmin=1), np.array(slow, ndmin=1)
+                k = np.clip(np.searchsorted(self.y, ys[slow]), 1, len(self.y) - 1)
+                x[slow] = solve_bracketed(lambda t: self.f(t) - ys[slow], self.x[k - 1], self.x[k], xtol=1e-15)
+        x = np.reshape(x, y.shape)
+        if y.size <= _MEMO_SIZE:
+            self._last = (y.copy(), x.copy())
+        return x

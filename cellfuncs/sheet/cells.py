@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 import re
 import reprlib
-from functools import lru_cache
+from functools import lru_cache, partial
 from typing import Any, Mapping, NamedTuple
 
 import numpy as np
@@ -40,6 +40,10 @@ class Arg(NamedTuple):
     si: np.ndarray
     errors: np.ndarray | None
     said: tuple[units.Kind, Any] | None = None
+
+
+# The scalar path builds its Arg in one C call (a NamedTuple's own constructor is Python code)
+_ARG = partial(tuple.__new__, Arg)
 
 
 # Model messages quote temperatures and pressures in SI, as "<number> K" or "<number> Pa" (kPa, MPa, GPa);
@@ -96,6 +100,8 @@ def _named(error: CellError, name: str) -> CellError:
 
 def substance(value: Any) -> Substance:
     """A substance from its name, or from a definition: a range of (field, value[, unit]) rows or a mapping."""
+    if type(value) is str and value.strip():  # a name: the usual case, kept quick
+        return _by_name(value)
     if isinstance(value, CellError):
         raise CallError(*_named(value, "substance"))
     if isinstance(value, Mapping):
@@ -111,6 +117,10 @@ def substance(value: Any) -> Substance:
         value = value.flat[0]
     if value is None or (isinstance(value, str) and not value.strip()):
         raise CallError(VALUE, "substance is blank")
+    return _by_name(value)
+
+
+def _by_name(value: Any) -> Substance:
     try:
         return lookup(value)
     except UnknownSubstance as exc:
@@ -243,10 +253,10 @@ def number(value: Any, name: str, unit_: units.Conversion, absolute: str = "",
     gave it (kind, text), for the messages.
     """
     if type(value) is float or type(value) is int:  # the common scalar case, kept quick
-        value = _float(value)
+        value = value if type(value) is float else _float(value)
         si = unit_.to_si(value)
         if math.isfinite(value) and (not absolute or si > 0):
-            return Arg(np.array(si), None, said)
+            return _ARG((np.array(si), None, said))
     array = as_array(value)
     if array.dtype.kind in "fiu":
         numbers = array.astype(float)
@@ -335,9 +345,12 @@ def phases(value: Any, name: str, sub: Substance) -> Arg:
 
 def shape_of(*args: Arg) -> tuple[int, ...]:
     """The broadcast shape of the arguments, or a CallError naming the shapes."""
-    shapes = {np.shape(a.si) for a in args}
-    if len(shapes) == 1:  # one shape (single cells, or ranges alike): nothing to broadcast
-        return shapes.pop()
+    shape = _shape(args[0].si)
+    for a in args:
+        if _shape(a.si) != shape:
+            break
+    else:  # one shape (single cells, or ranges alike): nothing to broadcast
+        return shape
     try:
         return np.broadcast_shapes(*(np.shape(a.si) for a in args))
     except ValueError:
@@ -354,16 +367,24 @@ def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: s
     ``scale`` converts SI values to the requested unit (a callable); text results pass as they are.
     A 0-d result is returned as a scalar.
     """
-    shape = np.shape(result.values)
-    if any(np.shape(arg.si) != shape for arg in args):
-        shape = shape_of(*args, Arg(result.values, None))
-    values = result.values if np.shape(result.values) == shape else np.broadcast_to(result.values, shape)
-    if scale is not None:
-        values = scale(values)
+    values = result.values
+    shape = _shape(values)
     errors = None
+    for arg in args:
+        if _shape(arg.si) != shape:
+            shape = shape_of(*args, Arg(values, None))
+            values = values if _shape(values) == shape else np.broadcast_to(values, shape)
+            break
     for arg in args:
         if arg.errors is not None:
             errors = _first(errors, np.broadcast_to(arg.errors, shape))
+    if errors is None and result.problems is None and shape == ():  # a single cell's value, as a scalar
+        value = values[()]
+        if isinstance(value, str):
+            return value
+        return float(value if scale is None else scale(value))
+    if scale is not None:
+        values = scale(values)
     if result.problems is not None:
         problems = np.broadcast_to(result.problems, shape)
         converted = np.full(shape, None, dtype=object)
@@ -383,6 +404,11 @@ def result_cells(result: Result, args: tuple[Arg, ...], scale=None, direction: s
         value = out[()]
         return value if isinstance(value, (str, CellError)) else float(value)
     return out
+
+
+def _shape(value: Any) -> tuple[int, ...]:
+    """The shape of an argument's or a result's values (an array's own attribute: np.shape costs more)."""
+    return value.shape if type(value) is np.ndarray else np.shape(value)
 
 
 def _voice(args: tuple[Arg, ...], said: tuple[units.Kind, Any] | None) -> dict[units.Kind, str]:

@@ -20,7 +20,7 @@ from ..errors import NA, VALUE, CellError
 from ..substances import names
 from ..substances.base import SATURATED_LIQUID, SATURATED_VAPOR, SOLID, Substance, boundary_code
 from ..numerics import anywhere
-from ..substances.result import Result
+from ..substances.result import Result, single
 from . import cells
 from .cells import Arg, CallError, model_call
 from .registry import sheet_function
@@ -48,9 +48,11 @@ def _line(sub: Substance, boundary: str, which: str, x: Arg, solid: int | None =
     if boundary == "melt":
         result, _ = (sub.melt_temperature(x.si) if which == "T" else sub.melt_pressure(x.si, solid))
         return result
-    method = {("boil", "T"): sub.boil_temperature, ("boil", "P"): sub.boil_pressure,
-              ("sublime", "T"): sub.sublime_temperature, ("sublime", "P"): sub.sublime_pressure}[(boundary, which)]
-    return method(x.si)
+    return getattr(sub, _LINE_METHODS[(boundary, which)])(x.si)
+
+
+_LINE_METHODS = {("boil", "T"): "boil_temperature", ("boil", "P"): "boil_pressure",
+                 ("sublime", "T"): "sublime_temperature", ("sublime", "P"): "sublime_pressure"}
 
 
 def _solid(sub: Substance, value: Any) -> int | None:
@@ -212,7 +214,8 @@ def _phase_state(sub: Substance, temperature, pressure, phase, t_unit, p_unit,
     """Temperature, pressure and phase of a state: a saturated phase needs only one of the two."""
     ph = cells.phases(phase, names[2], sub)
     t, p = _temperature(sub, temperature, t_unit, names[0]), _pressure(sub, pressure, p_unit, names[1])
-    saturated = (ph.si == SATURATED_LIQUID) | (ph.si == SATURATED_VAPOR)
+    code = single(ph.si)  # a single cell's code as a scalar: its comparisons without the array machinery
+    saturated = (code == SATURATED_LIQUID) | (code == SATURATED_VAPOR)
     if anywhere(saturated):
         t, p = cells.blank_allowed(t, saturated, names[0]), cells.blank_allowed(p, saturated, names[1])
     cells.shape_of(t, p, ph)

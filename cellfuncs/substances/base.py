@@ -11,6 +11,7 @@ Arguments are SI numpy arrays (K, Pa) that broadcast; phases are integer codes
 
 from __future__ import annotations
 
+from itertools import repeat
 from typing import NamedTuple
 
 import numpy as np
@@ -18,7 +19,8 @@ import numpy as np
 from .line_ends import LINE_TOL, TYPED_P, onto_ends
 from .props import Props
 from ..numerics import anywhere, everywhere
-from .result import BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, broadcast, empty_like, fmt
+from .result import (BAD_ARGUMENT, NOT_AVAILABLE, OUT_OF_RANGE, ModelError, Result, as_index, broadcast, empty_like,
+                     filled, fmt, single)
 
 # Phase codes. Solids count up from SOLID: SOLID + k is the substance's k-th solid.
 STABLE = 0  # "the stable phase at this state"
@@ -45,6 +47,10 @@ _FLUID_WORDS = {
 }
 
 
+# a single element's selection, shared (read-only: the phase methods only read their selection)
+_EVERY = np.array(True)
+_EVERY.flags.writeable = False
+
 _FIELD_NAMES = {"v": "the molar volume", "alpha": "the thermal expansivity", "kappa": "the compressibility",
                 "g": "the chemical potential", "h": "the enthalpy"}
 
@@ -52,8 +58,9 @@ _FIELD_NAMES = {"v": "the molar volume", "alpha": "the thermal expansivity", "ka
 class Fields(dict):
     """A call's properties by field name, as the phase methods store them, and the fields it needs."""
 
-    def __init__(self, want: tuple[str, ...] | None = None):
-        super().__init__()
+    __slots__ = ("want",)
+
+    def __init__(self, want: tuple[str, ...] | None = None):  # starts empty: dict's own __init__ has nothing to do
         self.want = want
 
     def wants(self, name: str) -> bool:
@@ -132,8 +139,9 @@ class Substance:
         """Labels (object array): one phase, or the phases of a line joined by " + "."""
         codes = self._classify(T, p)
         shape = codes.values.shape
-        if codes.problems is None:  # every state has its label; flat indexing keeps a single one 0-d
-            return Result(self._labels[codes.values.astype(int).reshape(-1)].reshape(shape))
+        if codes.problems is None:  # every state has its label; a single one as a 0-d array holding it
+            labels = self._labels[as_index(codes.values)]
+            return Result(labels if type(labels) is np.ndarray else np.array(labels, dtype=object))
         labels = Result(np.full(shape, None, dtype=object), codes.problems)
         ok = codes.ok
         labels.values[ok] = self._labels[codes.values[ok].astype(int)]
@@ -147,46 +155,58 @@ class Substance:
         """
         T, p, phase = broadcast(np.asarray(T, float), np.asarray(p, float), np.asarray(phase, int))
         r = Result(empty_like(T.shape))
+        code = single(phase)  # the decisions below on a single value's scalar
         # the saturated codes are consecutive: one comparison pair finds both
-        if anywhere((phase >= SATURATED_LIQUID) & (phase <= SATURATED_VAPOR)):
+        if anywhere((code >= SATURATED_LIQUID) & (code <= SATURATED_VAPOR)):
             T, p, phase = self._saturated(T, p, phase, r)
-        blank = phase == STABLE
+            code = single(phase)
+        blank = code == STABLE
         if anywhere(blank):
             state = self._classify(T, p)
-            # code 0 stands in for a state left NaN: its problem says the rest
-            nan = np.isnan(state.values)
-            codes = (np.where(nan, 0, state.values) if anywhere(nan) else state.values).astype(int)
+            values = single(state.values)
+            nan = values != values  # a flagged state, left NaN: code 0 stands in, its problem says the rest
+            codes = as_index(np.where(nan, 0, values) if anywhere(nan) else values)
             if state.problems is not None:
                 r.adopt(np.where(blank, state.problems, None))
-            state_phase = np.asarray(self._state_phase[codes])
-            r.flag(blank & (state_phase == STABLE), NOT_AVAILABLE,
-                   lambda label: f"the state is on a line ({label}): give a phase", self._labels[codes])
-            phase = state_phase if everywhere(blank) else np.where(blank, state_phase, phase)
+            state_phase = self._state_phase[codes]
+            on_line = blank & (state_phase == STABLE)
+            if anywhere(on_line):
+                r.flag(on_line, NOT_AVAILABLE, lambda label: f"the state is on a line ({label}): give a phase",
+                       self._labels[codes])
+            code = state_phase if everywhere(blank) else np.where(blank, state_phase, code)
         # any fluid word above the critical temperature means the one fluid
         tc = self.critical.temperature
-        hot = (phase < SOLID) & (T >= tc)
+        t = single(T)
+        hot = (code < SOLID) & (t >= tc)
         if anywhere(hot):
-            phase = np.where(hot, FLUID, phase)
-        r.flag((phase == FLUID) & (T < tc), BAD_ARGUMENT, "{} K is below the critical temperature of "
-               + f"{self.name} ({tc:.6g} K): ask for liquid or vapor", T)
-        self._unmodelled(r, phase, blank)
+            code = np.where(hot, FLUID, code)
+        cold_fluid = (code == FLUID) & (t < tc)
+        if anywhere(cold_fluid):
+            r.flag(cold_fluid, BAD_ARGUMENT, "{} K is below the critical temperature of "
+                   + f"{self.name} ({tc:.6g} K): ask for liquid or vapor", T)
+        self._unmodelled(r, code, blank)
         fields = Fields(want)  # filled by the phase methods through _put
-        methods = self._phase_methods()
-        # one phase for every element, all still unflagged: the usual single-cell case
-        one = int(phase.flat[0]) if phase.size and r.problems is None and (
-            phase.size == 1 or (phase == phase.flat[0]).all()) else None
+        methods = self.__dict__.get("_methods")
+        if methods is None:  # the model's table of bound methods, made once per model
+            methods = self.__dict__["_methods"] = self._phase_methods()
+        if r.problems is None and code.size == 1:
+            # one phase for one element, unflagged: the usual single cell
+            one = int(code) if code.ndim == 0 else int(code.flat[0])
+        else:  # or one phase for every element, all still unflagged
+            phase = np.broadcast_to(code, T.shape)
+            one = int(phase.flat[0]) if phase.size and r.problems is None and (phase == phase.flat[0]).all() else None
         if one is not None and one in methods:
             # a single value stays 0-d: its arithmetic is numpy's on scalars, without arrays
             flat = T.ndim > 0
-            methods[one](T.reshape(-1) if flat else T, p.reshape(-1) if flat else p, np.ones(T.shape, bool), r, fields)
+            methods[one](T.reshape(-1) if flat else T, p.reshape(-1) if flat else p,
+                         filled(T.shape, True, bool) if flat else _EVERY, r, fields)
         elif one is None:
             ok = np.broadcast_to(r.ok, T.shape)
-            for code in np.unique(phase[ok]):
-                if int(code) in methods:
-                    sel = (phase == code) & ok
-                    methods[int(code)](T[sel], p[sel], sel, r, fields)
-        missing = empty_like(T.shape)
-        return Props(**{name: fields.get(name, missing) for name in Props._fields}), r
+            for each in np.unique(phase[ok]):
+                if int(each) in methods:
+                    sel = (phase == each) & ok
+                    methods[int(each)](T[sel], p[sel], sel, r, fields)
+        return Props._make(map(fields.get, Props._fields, repeat(empty_like(T.shape)))), r
 
     def _saturated(self, T: np.ndarray, p: np.ndarray, phase: np.ndarray, r: Result):
         """(T, p, phase) with the saturated states put on the boiling line as liquid or vapour.
@@ -226,8 +246,9 @@ class Substance:
         whole = everywhere(sel) and (part == slice(None) if type(part) is slice else everywhere(part))
         index = None
         for name, value in values.items():
-            if whole and np.size(value) == sel.size:
-                fields[name] = np.asarray(value, dtype=float).reshape(sel.shape)
+            if whole and (value.size if isinstance(value, (np.ndarray, np.generic)) else np.size(value)) == sel.size:
+                value = np.asarray(value, dtype=float)
+                fields[name] = value if value.shape == sel.shape else value.reshape(sel.shape)
                 continue
             if index is None:
                 index = np.flatnonzero(sel)[part if type(part) is slice else np.reshape(part, -1)]  # a 0-d mask too
@@ -274,8 +295,9 @@ class Substance:
         values = getattr(props, field)
         # a model leaves NaN where it has no formulation for the quantity (a solid's expansivity
         # without data, for one); say so rather than pass a NaN on
-        result.flag(np.isnan(values), NOT_AVAILABLE, f"{_FIELD_NAMES[field]} is not modelled for this phase of "
-                    f"{self.name}")
+        missing = single(values) != single(values)
+        if anywhere(missing):
+            result.flag(missing, NOT_AVAILABLE, f"{_FIELD_NAMES[field]} is not modelled for this phase of {self.name}")
         result.fill(values)
         return result
 
@@ -332,9 +354,11 @@ class Substance:
         A melting line's temperature ends are the model's to say: this one leaves them as typed."""
         triple, critical = (self.triple.pressure, self.critical.pressure) if pressure else \
             (self.triple.temperature, self.critical.temperature)
-        low, high = {"boil": (triple, critical), "sublime": (None, triple),
-                     "melt": (triple if pressure else None, None)}[boundary]
-        return onto_ends(x, low, high, relative=pressure)
+        if boundary == "boil":
+            return onto_ends(x, triple, critical, relative=pressure)
+        if boundary == "sublime":
+            return onto_ends(x, None, triple, relative=pressure)
+        return onto_ends(x, triple if pressure else None, None, relative=pressure)
 
     def latent_heat(self, boundary: str, T: np.ndarray) -> Result:
         """Enthalpy of melting, boiling or sublimation at T (J/mol), from the phases' own formulations."""

@@ -18,6 +18,8 @@ TYPED_P = 5e-4  # relative: half the last digit of a pressure typed to three or 
 def clamp(x: np.ndarray, lo: float, hi: float) -> np.ndarray:
     """``x`` held within [lo, hi] (NaN stays NaN): np.clip's values without its cost per call, which
     outweighs the comparison itself on a single value."""
+    if type(x) is np.float64:  # a single value: its own comparisons (NaN, compared first, stays NaN)
+        return np.float64(min(max(x, lo), hi))
     return np.minimum(np.maximum(x, lo), hi)
 
 

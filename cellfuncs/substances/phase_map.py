@@ -21,6 +21,7 @@ from ..numerics import anywhere
 
 
 S_LIQUID, S_VAPOR, S_GAS, S_SUPER, S_SOLID = 0, 1, 2, 3, 4
+_VAPOR, _SUPER = np.int64(S_VAPOR), np.int64(S_SUPER)
 
 
 def state_table(solids: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
@@ -37,7 +38,8 @@ def state_table(solids: tuple[str, ...]) -> tuple[np.ndarray, np.ndarray]:
 
 
 def near(x: np.ndarray, line: np.ndarray) -> np.ndarray:
-    return np.abs(x - line) <= LINE_TOL * line
+    # abs() is np.absolute on arrays and a numpy scalar's own, cheaper, operation on a single value
+    return abs(x - line) <= LINE_TOL * line
 
 
 def classify(T, p, *, t_solid, solid, t_boil, sat, high, pt: float, tc: float, pc: float,
@@ -52,16 +54,23 @@ def classify(T, p, *, t_solid, solid, t_boil, sat, high, pt: float, tc: float, p
     boil_code = S_SOLID + n_solids
     melt_code = boil_code + 1
     sublime_code = melt_code + n_solids
-    fluid = np.where(T < tc, S_VAPOR, np.where(p < pc, S_GAS, S_SUPER))
-    state = np.where(T < t_boil, S_LIQUID, fluid)
-    on_boil = sat & (T < tc) & near(T, t_boil)
-    if anywhere(on_boil):
-        state[on_boil] = boil_code
+    # S_VAPOR below tc, else S_GAS below pc, else S_SUPER (a NaN temperature as above tc); S_LIQUID below the
+    # boiling line: arithmetic on the comparisons, which a single value does without making arrays
+    # (numpy integers: a single value's comparisons are numpy booleans, which mix slowly with Python ints)
+    gas = p < pc
+    cool = T < tc
+    fluid = _SUPER - gas - cool * (_SUPER - _VAPOR - gas)
+    state = S_LIQUID + (fluid - S_LIQUID) * np.logical_not(T < t_boil)  # "not below": a NaN too
+    on_boil = sat & cool & near(T, t_boil)
     below = T < t_solid
-    if anywhere(below):
-        state[below] = S_SOLID + solid[below]
     on_solid = near(T, t_solid)
+    if not anywhere(on_boil | below | on_solid):  # one test for a state off the lines, above the solid
+        return state
+    if anywhere(on_boil):
+        state = np.where(on_boil, boil_code, state)
+    if anywhere(below):
+        state = np.where(below, S_SOLID + solid, state)
     if anywhere(on_solid):
-        state[on_solid] = np.where(high, melt_code + solid, sublime_code)[on_solid]
-        state[on_solid & high & (p <= pt * (1 + LINE_TOL))] = sublime_code + 1  # the triple point
+        state = np.where(on_solid, np.where(high, melt_code + solid, sublime_code), state)
+        state = np.where(on_solid & high & (p <= pt * (1 + LINE_TOL)), sublime_code + 1, state)  # the triple point
     return state

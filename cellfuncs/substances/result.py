@@ -46,10 +46,29 @@ def fmt(x: Any) -> str:
 
 def empty_like(shape: tuple[int, ...], dtype: Any = float) -> np.ndarray:
     """An array of NaN (None for an object dtype) of ``shape``; a single value built directly."""
-    blank = np.nan if dtype is float else None
+    if shape == () and dtype is float:  # the usual single cell, without the call to filled
+        return np.array(np.nan)
+    return filled(shape, np.nan if dtype is float else None, dtype)
+
+
+def filled(shape: tuple[int, ...], value: Any, dtype: Any = float) -> np.ndarray:
+    """``np.full(shape, value, dtype)``; a single value built directly (np.full costs five times as much)."""
     if shape == ():
-        return np.array(blank, dtype=dtype)
-    return np.full(shape, blank, dtype=dtype)
+        return np.array(value, dtype=dtype)
+    return np.full(shape, value, dtype=dtype)
+
+
+def single(a: np.ndarray) -> np.ndarray:
+    """A 0-d array as its numpy scalar, other arrays as they are: the same numbers and the same
+    comparisons, masks and indexing, each operation on one value without the array machinery
+    (which costs ten times the arithmetic)."""
+    return a[()] if a.ndim == 0 else a
+
+
+def as_index(codes: np.ndarray) -> np.ndarray | int:
+    """Integer codes stored as floats, as integers to index with; a single one as a Python int, which
+    indexes a table as the 0-d array would and costs a tenth of ``astype``."""
+    return int(codes) if codes.ndim == 0 else codes.astype(int)
 
 
 def broadcast(*arrays: Any) -> tuple[np.ndarray, ...]:
@@ -90,13 +109,15 @@ class Result:
 
     @classmethod
     def like(cls, template: np.ndarray, dtype: Any = float) -> "Result":
-        return cls(empty_like(np.shape(template), float if dtype is float else object))
+        shape = template.shape if type(template) is np.ndarray else np.shape(template)
+        return cls(empty_like(shape, float if dtype is float else object))
 
     @property
-    def ok(self) -> np.ndarray | bool:
-        """Mask of the elements not flagged so far (``True`` when none are)."""
+    def ok(self) -> np.ndarray | np.bool_:
+        """Mask of the elements not flagged so far (``np.True_`` when none are: a numpy boolean, which
+        combines with a single value's numpy masks without converting a Python bool)."""
         if self.problems is None:
-            return True
+            return np.True_
         return np.equal(self.problems, None)
 
     def flag(self, mask: Any, kind: str, reason: str | Callable[..., str], *data: Any, see: str = "") -> None:

@@ -15,6 +15,7 @@ are the module constants below, read from ``cellfuncs/data/water/if97.toml``.
 
 from __future__ import annotations
 
+import threading
 from collections.abc import Iterable
 from functools import lru_cache
 
@@ -23,6 +24,7 @@ from numpy.typing import ArrayLike
 
 from cellfuncs.data import constant, table
 from cellfuncs.substances.props import Props
+from cellfuncs.substances.result import single
 from cellfuncs.substances.water.blocks import in_blocks
 
 _DATA = "water/if97"
@@ -60,14 +62,19 @@ def _falling(e: float, k: int) -> float:
     return out
 
 
-def _derivatives_needed(fields: Iterable[str] | None) -> tuple[str, ...]:
-    """The derivatives of gamma in (pi, tau) that the Props ``fields`` need (None: every field)."""
-    return _derivatives_of(Props._fields if fields is None else tuple(sorted(fields)))
+def _derivatives_needed(fields: Iterable[str] | None) -> tuple[tuple[str, ...], tuple[str, ...], tuple[str, ...]]:
+    """The derivatives of gamma in (pi, tau) that the Props ``fields`` need (None: every field), the
+    series' derivatives behind them (``_SERIES_NAME``), and those of an ideal-gas part in tau alone."""
+    # a call's fields come as a tuple (looked up as they are) or a set (sorted into one)
+    return _derivatives_of(Props._fields if fields is None else fields if type(fields) is tuple
+                           else tuple(sorted(fields)))
 
 
 @lru_cache(maxsize=None)
-def _derivatives_of(fields: tuple[str, ...]) -> tuple[str, ...]:
-    return tuple(dict.fromkeys(d for name in fields for d in _NEEDS[name]))
+def _derivatives_of(fields: tuple[str, ...]) -> tuple[tuple[str, ...], tuple[str, ...], tuple[str, ...]]:
+    names = tuple(dict.fromkeys(d for name in sorted(fields) for d in _NEEDS[name]))
+    return (names, tuple(_SERIES_NAME[n] for n in names),
+            tuple(_SERIES_NAME[n] for n in names if n in ("g", "tau", "tautau")))
 
 
 class _PowerSeries:
@@ -93,82 +100,128 @@ class _PowerSeries:
             ex, ey = (np.array([k[axis] for k in terms], dtype=float) for axis in (0, 1))
             self._terms[name] = (ex, ey, np.array(list(terms.values())))
         self._plans: dict[tuple[str, ...], tuple] = {}
+        self._work = threading.local()  # per thread: each request's buffer for one element (see _one)
 
     def _plan(self, names: tuple[str, ...]) -> tuple:
         """For the derivatives ``names``: the distinct powers of x and y, and which of them each
-        monomial takes, with its coefficient; one row of monomials per derivative, each as wide as
-        the series' longest derivative, padded with zero terms (x^0 y^0 times 0: exactly 0 wherever
-        x and y are). One width for every request keeps a derivative's sum the same whichever others
-        are asked for with it."""
-        if names not in self._plans:
+        monomial takes, with its coefficient; one row of monomials per term position, one column per
+        derivative, each derivative as wide as the series' longest, padded with zero terms (x^0 y^0
+        times 0: exactly 0 wherever x and y are). One width for every request keeps a derivative's sum
+        the same whichever others are asked for with it. Last, for one element (``_one``), each
+        monomial's own exponents of x and y and its coefficient, in the same order."""
+        plan = self._plans.get(names)
+        if plan is None:
             width = max(terms[2].size for terms in self._terms.values())
-            ex, ey, coefs = (np.concatenate([np.pad(self._terms[d][k], (0, width - self._terms[d][k].size))
-                                             for d in names]) for k in range(3))
+            # position-major: the fold adds whole rows of every derivative at once
+            ex, ey, coefs = (np.stack([np.pad(self._terms[d][k], (0, width - self._terms[d][k].size))
+                                       for d in names], axis=1).reshape(-1) for k in range(3))
             x_powers, ix = np.unique(ex, return_inverse=True)
             y_powers, iy = np.unique(ey, return_inverse=True)
-            self._plans[names] = (x_powers[:, None], y_powers[:, None], ix, iy, coefs[:, None], width)
-        return self._plans[names]
+            plan = self._plans[names] = (x_powers[:, None], y_powers[:, None], ix, iy, coefs[:, None],
+                                         (width, len(names), -1), _fold_steps(width), x_powers[ix], y_powers[iy],
+                                         coefs)
+        return plan
 
     def __call__(self, x: np.ndarray, y: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
         """The derivatives ``names`` (keys of ``_ORDERS``) at (x, y), broadcast against each other."""
         if not names:
             return {}
-        x_powers, y_powers, ix, iy, coefs, width = self._plan(names)
+        if x.ndim == 0 and y.ndim == 0:
+            return self._one(x, y, names)
+        x_powers, y_powers, ix, iy, coefs, layout, steps = self._plan(names)[:7]
 
         def block(xb: np.ndarray, yb: np.ndarray) -> np.ndarray:
             # one row per monomial, one column per element
             terms = np.power(xb, x_powers).take(ix, axis=0)
             terms *= np.power(yb, y_powers).take(iy, axis=0)
             terms *= coefs
-            return _fold(terms.reshape(len(names), width, -1))
+            return _fold(terms.reshape(layout), steps)
 
         return dict(zip(names, in_blocks(block, x, y, block=_BLOCK)))
 
+    def _one(self, x: np.ndarray, y: np.ndarray, names: tuple[str, ...]) -> dict[str, np.ndarray]:
+        """The derivatives at one element, as numpy scalars: a block's arithmetic (each monomial's powers
+        as the block takes them, the same products, the same fold) on a work buffer of this thread, whose
+        rows the fold adds through views made once rather than sliced on every call."""
+        work = self._work.__dict__.get(names)
+        if work is None:
+            plan = self._plan(names)
+            steps, k = plan[6], len(names)
+            buffer = np.empty(plan[9].size)
+            views = tuple((buffer[first.start * k:first.stop * k], buffer[second.start * k:second.stop * k])
+                          for first, second in steps)
+            work = self._work.__dict__[names] = (buffer, views, buffer[-k:], *plan[7:])
+        buffer, views, last, x_exponents, y_exponents, coefs = work
+        np.power(x, x_exponents, out=buffer)
+        buffer *= np.power(y, y_exponents)
+        buffer *= coefs
+        for first, second in views:
+            np.add(second, first, second)
+        return dict(zip(names, last))  # iterating the row copies its values out
 
-def _fold(terms: np.ndarray) -> np.ndarray:
-    """Sums over the middle axis of ``terms`` by halves: the first half's rows plus the second's,
-    until one row is left (an odd row is carried to the next round); ``terms`` is overwritten.
 
-    Only element-wise additions in a pattern fixed by the number of rows (not a BLAS product or a
-    reduction, whose order numpy may choose by shape), so every element adds its terms in the same
-    order whatever the array around it and a scalar and the same value inside an array agree to the
-    last bit; vectorised across the elements, and pairwise, which rounds less than one by one.
-    """
-    rows = terms.shape[1]
+def _fold_steps(rows: int) -> tuple[tuple[slice, slice], ...]:
+    """The rounds of :func:`_fold` for ``rows`` rows: in each, the rows to add and the rows they are
+    added to (which then hold the sums)."""
+    steps, start = [], 0
     while rows > 1:
-        half, odd = divmod(rows, 2)
-        np.add(terms[:, :half], terms[:, half:2 * half], out=terms[:, :half])
-        if odd:
-            terms[:, half] = terms[:, 2 * half]
-        rows = half + odd
-    return terms[:, 0]
+        half = rows // 2
+        steps.append((slice(start, start + half), slice(start + half, start + 2 * half)))
+        start, rows = start + half, rows - half
+    return tuple(steps)
+
+
+def _fold(terms: np.ndarray, steps: tuple[tuple[slice, slice], ...]) -> np.ndarray:
+    """Sums over the first axis of ``terms`` by halves: the first half's rows plus the second's, until
+    one row is left (an odd row is carried to the next round); ``terms`` is overwritten.
+
+    Each round stores its sums over the second half's rows, so the rows left (those sums, then the odd
+    row) stay contiguous and a round is one addition (``steps``: :func:`_fold_steps`). Only element-wise
+    additions in a pattern fixed by the number of rows (not a BLAS product or a reduction, whose order
+    numpy may choose by shape), so every element adds its terms in the same order whatever the array
+    around it and a scalar and the same value inside an array agree to the last bit; vectorised across
+    the elements, and pairwise, which rounds less than one by one.
+    """
+    for first, second in steps:
+        sums = terms[second]
+        sums += terms[first]
+    return terms[-1]
+
+
+# Each field of Props from (T, p, pi, tau, RT) and gamma's derivatives d (IAPWS R7-97(2012), Tables 3, 12, 39)
+_FORMULAS = {
+    "v": lambda T, p, pi, tau, rt, d: rt * pi * d["pi"] / p,
+    "h": lambda T, p, pi, tau, rt, d: rt * tau * d["tau"],
+    "s": lambda T, p, pi, tau, rt, d: R * (tau * d["tau"] - d["g"]),
+    "g": lambda T, p, pi, tau, rt, d: rt * d["g"],  # g = RT gamma is h - Ts without the cancellation
+    "cp": lambda T, p, pi, tau, rt, d: -R * tau * tau * d["tautau"],
+    "alpha": lambda T, p, pi, tau, rt, d: (1.0 - tau * d["pitau"] / d["pi"]) / T,
+    "kappa": lambda T, p, pi, tau, rt, d: -pi * d["pipi"] / (d["pi"] * p),
+}
+
+
+_NAN = np.array(np.nan)
+_NAN.flags.writeable = False
 
 
 def _gibbs_props(T: np.ndarray, p: np.ndarray, pi: np.ndarray, tau: np.ndarray, d: dict[str, np.ndarray],
                  fields: Iterable[str] | None) -> Props:
     """Props from gamma = g/(RT) and its derivatives ``d`` in (pi, tau), keyed "g", "pi", "pipi", "tau",
-    "tautau", "pitau" (IAPWS R7-97(2012), Tables 3, 12, 39); fields not asked for are NaN."""
+    "tautau", "pitau"; fields not asked for are NaN."""
     rt = R * T
-    formulas = {
-        "v": lambda: rt * pi * d["pi"] / p,
-        "h": lambda: rt * tau * d["tau"],
-        "s": lambda: R * (tau * d["tau"] - d["g"]),
-        "g": lambda: rt * d["g"],  # g = RT gamma is h - Ts without the cancellation of the difference
-        "cp": lambda: -R * tau * tau * d["tautau"],
-        "alpha": lambda: (1.0 - tau * d["pitau"] / d["pi"]) / T,
-        "kappa": lambda: -pi * d["pipi"] / (d["pi"] * p),
-    }
     if fields is None:
-        return Props(**{name: np.asarray(formula()) for name, formula in formulas.items()})
+        return Props._make([np.asarray(_FORMULAS[name](T, p, pi, tau, rt, d)) for name in Props._fields])
     shape = T.shape if T.shape == p.shape else np.broadcast_shapes(T.shape, p.shape)
-    # one read-only view for the rest (a single value: the NaN itself, without the view's machinery)
-    missing = np.broadcast_to(np.nan, shape) if shape else np.array(np.nan)
-    return Props(**{name: np.asarray(formulas[name]()) if name in fields else missing for name in Props._fields})
+    # one read-only view for the rest (a single value: one read-only NaN, without the view's machinery)
+    missing = np.broadcast_to(np.nan, shape) if shape else _NAN
+    return Props._make([np.asarray(_FORMULAS[name](T, p, pi, tau, rt, d)) if name in fields else missing
+                        for name in Props._fields])
 
 
 def _reduced(T: ArrayLike, p: ArrayLike, t_star: float, p_star: float):
-    T = np.asarray(T, dtype=float)
-    p = np.asarray(p, dtype=float)
+    # a single value as its numpy scalar: the same arithmetic without building a 0-d array per step
+    T = single(np.asarray(T, dtype=float))
+    p = single(np.asarray(p, dtype=float))
     return T, p, p / p_star, t_star / T
 
 
@@ -176,6 +229,7 @@ _R1 = table(_DATA, "region1")
 _R1_SERIES = _PowerSeries(_R1["I"], _R1["J"], _R1["n"])
 _R1_P = constant(_DATA, "region1_reducing_pressure").value
 _R1_T = constant(_DATA, "region1_reducing_temperature").value
+_R1_PI_SHIFT, _R1_TAU_SHIFT = _R1["pi_shift"], _R1["tau_shift"]
 
 
 def region1(T: ArrayLike, p: ArrayLike, fields: Iterable[str] | None = None) -> Props:
@@ -191,9 +245,9 @@ def region1(T: ArrayLike, p: ArrayLike, fields: Iterable[str] | None = None) -> 
     """
     T, p, pi, tau = _reduced(T, p, _R1_T, _R1_P)
     # gamma is a series in x = 7.1 - pi and y = tau - 1.222: d/dpi flips the sign
-    names = _derivatives_needed(fields)
-    series = _R1_SERIES(_R1["pi_shift"] - pi, tau - _R1["tau_shift"], tuple(_SERIES_NAME[n] for n in names))
-    d = {n: (-series[_SERIES_NAME[n]] if n in ("pi", "pitau") else series[_SERIES_NAME[n]]) for n in names}
+    names, series_names, _ = _derivatives_needed(fields)
+    series = _R1_SERIES(_R1_PI_SHIFT - pi, tau - _R1_TAU_SHIFT, series_names)
+    d = {n: (-series[x] if n in ("pi", "pitau") else series[x]) for n, x in zip(names, series_names)}
     return _gibbs_props(T, p, pi, tau, d, fields)
 
 
@@ -218,20 +272,24 @@ class _GasRegion:
 
     def __call__(self, T: ArrayLike, p: ArrayLike, fields: Iterable[str] | None) -> Props:
         T, p, pi, tau = _reduced(T, p, self._t_star, self._p_star)
-        names = _derivatives_needed(fields)
-        r = self._residual(pi, tau - self._tau_shift, tuple(_SERIES_NAME[n] for n in names))
+        names, series_names, ideal_names = _derivatives_needed(fields)
+        r = self._residual(pi, tau - self._tau_shift, series_names)
         # the ideal-gas part is a series in tau alone: it adds to gamma and its tau derivatives only
-        i = self._ideal(pi, tau, tuple(_SERIES_NAME[n] for n in names if n in ("g", "tau", "tautau")))
+        i = self._ideal(pi, tau, ideal_names)
         inv_pi = 1.0 / pi
-        combine = {
-            "g": lambda: r["g"] + i["g"] + np.log(pi),
-            "pi": lambda: r["gx"] + inv_pi,
-            "pipi": lambda: r["gxx"] - inv_pi * inv_pi,
-            "tau": lambda: r["gy"] + i["gy"],
-            "tautau": lambda: r["gyy"] + i["gyy"],
-            "pitau": lambda: r["gxy"],
-        }
-        return _gibbs_props(T, p, pi, tau, {n: combine[n]() for n in names}, fields)
+        return _gibbs_props(T, p, pi, tau, {n: _GAS_COMBINED[n](r, i, pi, inv_pi) for n in names}, fields)
+
+
+# gamma's derivatives in (pi, tau) of a gas region from its residual series r, its ideal-gas series i
+# (tau alone) and the ideal gas's ln(pi), whose pi derivatives are 1/pi and -1/pi^2
+_GAS_COMBINED = {
+    "g": lambda r, i, pi, inv_pi: r["g"] + i["g"] + np.log(pi),
+    "pi": lambda r, i, pi, inv_pi: r["gx"] + inv_pi,
+    "pipi": lambda r, i, pi, inv_pi: r["gxx"] - inv_pi * inv_pi,
+    "tau": lambda r, i, pi, inv_pi: r["gy"] + i["gy"],
+    "tautau": lambda r, i, pi, inv_pi: r["gyy"] + i["gyy"],
+    "pitau": lambda r, i, pi, inv_pi: r["gxy"],
+}
 
 
 _REGION2 = _GasRegion("region2_ideal", "region2_residual", "region2")

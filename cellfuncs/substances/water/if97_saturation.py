@@ -46,7 +46,11 @@ def _once_per_stored_value(line: Callable[[np.ndarray], np.ndarray]) -> Callable
 
     @wraps(line)
     def once(x: ArrayLike) -> np.ndarray:
+        if type(x) is np.float64:  # a single value as its numpy scalar (the models' own): answered as one
+            return line(x)
         x = np.asarray(x, dtype=float)
+        if x.ndim == 0:  # a single value: the line's arithmetic on its numpy scalar, without 0-d arrays
+            return np.asarray(line(x[()]))
         if x.size == 0 or 0 not in x.strides:
             return line(x)
         stored = x[tuple(slice(None) if stride else slice(0, 1) for stride in x.strides)]
@@ -67,12 +71,12 @@ def saturation_pressure(T: ArrayLike) -> np.ndarray:
     2638897.76
     """
     n1, n2, n3, n4, n5, n6, n7, n8, n9, n10 = _N4
-    t = np.asarray(T, dtype=float) / _T_STAR
+    t = T / _T_STAR  # an array or a numpy scalar (see _once_per_stored_value)
     theta = t + n9 / (t - n10)
     a = (theta + n1) * theta + n2
     b = (n3 * theta + n4) * theta + n5
     c = (n6 * theta + n7) * theta + n8
-    return np.asarray((2.0 * c / (-b + np.sqrt(b * b - 4.0 * a * c))) ** 4 * _P_STAR)
+    return (2.0 * c / (-b + np.sqrt(b * b - 4.0 * a * c))) ** 4 * _P_STAR
 
 
 @_once_per_stored_value
@@ -87,12 +91,12 @@ def saturation_temperature(p: ArrayLike) -> np.ndarray:
     453.035632
     """
     n1, n2, n3, n4, n5, n6, n7, n8, n9, n10 = _N4
-    beta = np.sqrt(np.sqrt(np.asarray(p, dtype=float) / _P_STAR))
+    beta = np.sqrt(np.sqrt(p / _P_STAR))
     e = (beta + n3) * beta + n6
     f = (n1 * beta + n4) * beta + n7
     g = (n2 * beta + n5) * beta + n8
     d = 2.0 * g / (-f - np.sqrt(f * f - 4.0 * e * g))
-    return np.asarray((n10 + d - np.sqrt((n10 + d) ** 2 - 4.0 * (n9 + n10 * d))) / 2.0 * _T_STAR)
+    return (n10 + d - np.sqrt((n10 + d) ** 2 - 4.0 * (n9 + n10 * d))) / 2.0 * _T_STAR
 
 
 def b23_pressure(T: ArrayLike) -> np.ndarray:

@@ -33,6 +33,8 @@ which IF97 and R10-06 share; IAPWS-95 itself is shifted onto IF97's realisation 
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import numpy as np
 
 from ...data import constant, load
@@ -41,7 +43,7 @@ from ..line_ends import LINE_TOL, clamp
 from ..phase_map import classify, state_table
 from ..props import Props
 from ...numerics import anywhere, everywhere
-from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, broadcast, fmt
+from ..result import NOT_AVAILABLE, OUT_OF_RANGE, Result, broadcast, empty_like, filled, fmt, single
 from . import iapws95, ice_ih, ice_lines, if97, if97_region3, if97_saturation
 
 _DATA = "water/water"
@@ -192,8 +194,13 @@ def _where(a: np.ndarray, mask: np.ndarray) -> np.ndarray:
 
 def _molar(props: Props, fields) -> dict[str, np.ndarray]:
     """The fields the call wants, molar."""
-    wanted = Props._fields if fields.want is None else [name for name in Props._fields if name in fields.want]
-    return {name: getattr(props, name) * M if name in _PER_KG else getattr(props, name) for name in wanted}
+    return {name: getattr(props, name) * M if per_kg else getattr(props, name) for name, per_kg in _wanted(fields.want)}
+
+
+@lru_cache(maxsize=None)
+def _wanted(want: tuple[str, ...] | None) -> tuple[tuple[str, bool], ...]:
+    """The Props fields a call wants (None: all), each with whether a molar mass turns it into a molar one."""
+    return tuple((name, name in _PER_KG) for name in Props._fields if want is None or name in want)
 
 
 class Water(Substance):
@@ -207,17 +214,23 @@ class Water(Substance):
     def boil_pressure(self, T: np.ndarray) -> Result:
         T = self.onto_line("boil", T)
         r = Result.like(T)
-        r.flag(T < TT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_t"], T, see="sublime")
-        r.flag(T > TC * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_critical_t"], T)
-        r.fill(if97_saturation.saturation_pressure(T))
+        t = single(T)
+        low, high = t < TT * (1 - LINE_TOL), t > TC * (1 + LINE_TOL)
+        if anywhere(low | high):  # one test for a temperature on the line
+            r.flag(low, OUT_OF_RANGE, MESSAGES["below_triple_t"], T, see="sublime")
+            r.flag(high, OUT_OF_RANGE, MESSAGES["above_critical_t"], T)
+        r.fill(if97_saturation.saturation_pressure(t))
         return r
 
     def boil_temperature(self, p: np.ndarray) -> Result:
         p = self.onto_line("boil", p, pressure=True)
         r = Result.like(p)
-        r.flag(p < PT * (1 - LINE_TOL), OUT_OF_RANGE, MESSAGES["below_triple_p"], p, see="sublime")
-        r.flag(p > PC * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["above_critical_p"], p)
-        r.fill(if97_saturation.saturation_temperature(p))
+        q = single(p)
+        low, high = q < PT * (1 - LINE_TOL), q > PC * (1 + LINE_TOL)
+        if anywhere(low | high):  # one test for a pressure on the line
+            r.flag(low, OUT_OF_RANGE, MESSAGES["below_triple_p"], p, see="sublime")
+            r.flag(high, OUT_OF_RANGE, MESSAGES["above_critical_p"], p)
+        r.fill(if97_saturation.saturation_temperature(q))
         return r
 
     def melt_pressure(self, T: np.ndarray, solid: int | None = None) -> tuple[Result, np.ndarray]:
@@ -266,34 +279,37 @@ class Water(Substance):
     def _classify(self, T: np.ndarray, p: np.ndarray) -> Result:
         """State codes (indices into _LABELS) from the boundary equations."""
         T, p = broadcast(np.asarray(T, float), np.asarray(p, float))
-        r = Result(np.full(T.shape, -1.0))
-        r.flag(T > REGION5_T_MAX, OUT_OF_RANGE, MESSAGES["above_formulations_t"], T)
-        r.flag(p > _MELT_P_TOP, OUT_OF_RANGE, MESSAGES["above_ice_vii"], p)
-        r.flag((p < _SUB_P_MIN) & (T < TT), OUT_OF_RANGE, MESSAGES["below_sublimation_p"], p)
+        T, p = single(T), single(p)
+        r = Result(filled(T.shape, -1.0))
+        cold = T < TT
+        if anywhere((T > REGION5_T_MAX) | (p > _MELT_P_TOP) | ((p < _SUB_P_MIN) & cold)):  # one test when none is
+            r.flag(T > REGION5_T_MAX, OUT_OF_RANGE, MESSAGES["above_formulations_t"], T)
+            r.flag(p > _MELT_P_TOP, OUT_OF_RANGE, MESSAGES["above_ice_vii"], p)
+            r.flag((p < _SUB_P_MIN) & cold, OUT_OF_RANGE, MESSAGES["below_sublimation_p"], p)
         high = p >= PT
         # the solid is stable below one line: melting above the triple-point pressure (a
-        # single-valued T(p) there), sublimation below it
-        t_solid = np.full(T.shape, -np.inf)
-        ice = np.zeros(T.shape, dtype=int)
-        if anywhere(high):
-            melt = high & ((T <= _MELT_T_NEAR) | (p > _MELT_P_NEAR))  # elsewhere no melting line is near
+        # single-valued T(p) there), sublimation below it; no line applies (-inf) elsewhere
+        melt = high & ((T <= _MELT_T_NEAR) | (p > _MELT_P_NEAR))  # elsewhere no melting line is near
+        sublime = np.logical_not(high) & (T <= TT * (1 + LINE_TOL)) & (p >= _SUB_P_MIN)
+        t_solid, ice = -np.inf, 0
+        if anywhere(melt | sublime):
+            t_solid, ice = filled(T.shape, -np.inf), filled(T.shape, 0, int)
             if anywhere(melt):
                 t_solid[melt], ice[melt] = ice_lines.melting_temperature_any(p[melt])
-        if not everywhere(high):
-            sublime = ~high & (T <= TT * (1 + LINE_TOL)) & (p >= _SUB_P_MIN)
             if anywhere(sublime):
                 t_solid[sublime] = ice_lines.sublimation_temperature(p[sublime])
+            t_solid, ice = single(t_solid), single(ice)
         # the liquid is stable below the boiling line; above the critical pressure below Tc
         sat = high & (p <= PC)
         if everywhere(sat):
-            t_boil = if97_saturation.saturation_temperature(p)
+            t_boil = single(if97_saturation.saturation_temperature(p))
         else:
             t_boil = np.where(high, TC, -np.inf)
             if anywhere(sat):
                 t_boil[sat] = if97_saturation.saturation_temperature(p[sat])
-        state = classify(T, p, t_solid=t_solid, solid=ice, t_boil=t_boil, sat=sat, high=high, pt=PT, tc=TC, pc=PC,
-                         n_solids=len(SOLIDS))
-        r.fill(state.astype(float))
+        state = classify(T, p, t_solid=t_solid, solid=ice, t_boil=t_boil, sat=sat, high=high, pt=PT,
+                         tc=TC, pc=PC, n_solids=len(SOLIDS))
+        r.fill(state)  # integer codes stored as floats (NaN where flagged)
         return r
 
     _labels, _state_phase = _LABELS, _STATE_PHASE
@@ -314,53 +330,63 @@ class Water(Substance):
         metastable: superheated up to SUPERHEAT_MARGIN above the saturation temperature, supercooled down
         to SUPERCOOL_MARGIN below the melting temperature (region 1 extended, not IAPWS-95: its range
         ends at the melting line)."""
-        sub = Result(np.full(t.shape, np.nan))
-        sub.flag(q > IAPWS95_P_MAX, OUT_OF_RANGE, MESSAGES["liquid_above_p"], q)
+        t, q = single(t), single(q)
+        sub = Result(empty_like(t.shape))
         dense = q > P_MAX_FLUID
+        in_if97 = np.logical_not(dense)
+        p_sat = single(if97_saturation.saturation_pressure(clamp(t, TT, TC)))
+        superheated = (t >= TT) & (q < p_sat * (1 - LINE_TOL))
+        cold = (t < TT) & in_if97
+        if anywhere(dense | superheated | cold):  # one test for the usual compressed liquid within IF97
+            self._liquid_limits(t, q, dense, superheated, cold, sub)
+        ok = sub.ok
+        in_if97 = ok & in_if97
+        low = in_if97 & (t <= REGION1_T_MAX)
+        if anywhere(low):
+            self._put_props(fields, sel, low, if97.region1(_where(t, low), _where(q, low), fields.want))
+        if not everywhere(low):  # near the critical point region 3, above IF97's pressures IAPWS-95
+            near = in_if97 & (t > REGION1_T_MAX)
+            if anywhere(near):
+                self._put_region3(fields, sel, near, t, q, "liquid", sub)
+            if anywhere(ok & dense):
+                self._put_iapws95(fields, sel, ok & dense, t, q, sub)
+        self._report(r, sel, sub)
+
+    @staticmethod
+    def _liquid_limits(t, q, dense, superheated, cold, sub: Result) -> None:
+        """Flag the liquid states beyond the formulations: above IAPWS-95's pressure or below the melting
+        line above IF97's, superheated or supercooled past the metastable liquid's margins."""
+        sub.flag(q > IAPWS95_P_MAX, OUT_OF_RANGE, MESSAGES["liquid_above_p"], q)
         if anywhere(dense):
             t_melt = np.full(t.shape, -np.inf)
             t_melt[dense], _ = ice_lines.melting_temperature_any(np.minimum(q[dense], _MELT_P_TOP))
             # with the joins' slack: the line taken at a triple point's pressure may be the colder neighbour's
             sub.flag(dense & (t < t_melt * (1 - MELT_JOIN_TOL)), OUT_OF_RANGE, MESSAGES["dense_liquid_below_melting"],
                      t, q, t_melt)
-        warm = t >= TT
-        p_sat = if97_saturation.saturation_pressure(clamp(t, TT, TC))
-        superheated = warm & (q < p_sat * (1 - LINE_TOL))
         if anywhere(superheated):
             t_sat = np.full(t.shape, np.inf)
             t_sat[superheated] = if97_saturation.saturation_temperature(np.maximum(q[superheated], PT))
             sub.flag(superheated & ((t > t_sat + SUPERHEAT_MARGIN) | (t > REGION1_T_MAX)), OUT_OF_RANGE,
                      MESSAGES["superheated_liquid"], t, q, t_sat)
-        cold = (t < TT) & ~dense
         if anywhere(cold):
             sub.flag(cold & (q < PT), OUT_OF_RANGE, MESSAGES["supercooled_below_triple_p"], t, q)
             t_melt = np.full(t.shape, -np.inf)
             t_melt[cold], _ = ice_lines.melting_temperature_any(np.maximum(q[cold], PT))
             sub.flag(cold & ((t < t_melt - SUPERCOOL_MARGIN) | (t < _MELT_T_MIN * (1 - MELT_JOIN_TOL))), OUT_OF_RANGE,
                      MESSAGES["supercooled_liquid"], t, q)
-        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
-        in_if97 = ok & ~dense
-        low = in_if97 & (t <= REGION1_T_MAX)
-        if anywhere(low):
-            self._put_props(fields, sel, low, if97.region1(_where(t, low), _where(q, low), fields.want))
-        near = in_if97 & (t > REGION1_T_MAX)
-        if anywhere(near):
-            self._put_region3(fields, sel, near, t, q, "liquid", sub)
-        if anywhere(ok & dense):
-            self._put_iapws95(fields, sel, ok & dense, t, q, sub)
-        self._report(r, sel, sub)
 
     def _vapor(self, t, q, sel, r: Result, fields) -> None:
         """Region 2 (region 3 above B23); named as a phase, also supersaturated above the vapour
         pressure, by IF97's metastable-vapour equation, to the 5 % equilibrium moisture line."""
-        sub = Result(np.full(t.shape, np.nan))
+        t, q = single(t), single(q)
+        sub = Result(empty_like(t.shape))
         sub.flag(t < REGION2_T_MIN, OUT_OF_RANGE, MESSAGES["cold_vapour"], t)
         cold = t < TT
         # the vapour's line: sublimation below the triple point, boiling above (only the one needed)
         if not anywhere(cold):
-            p_line = if97_saturation.saturation_pressure(clamp(t, TT, TC))
+            p_line = single(if97_saturation.saturation_pressure(clamp(t, TT, TC)))
         elif everywhere(cold):
-            p_line = ice_lines.sublimation_pressure(clamp(t, REGION2_T_MIN, TT))
+            p_line = single(ice_lines.sublimation_pressure(clamp(t, REGION2_T_MIN, TT)))
         else:
             p_line = np.where(cold, ice_lines.sublimation_pressure(clamp(t, REGION2_T_MIN, TT)),
                               if97_saturation.saturation_pressure(clamp(t, TT, TC)))
@@ -372,16 +398,16 @@ class Water(Substance):
             meta = above & ~cold & (q <= META_VAPOUR_P_MAX)
             if anywhere(meta):
                 meta_props = self._metastable(t, q, meta, fields, sub)
-        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        ok = sub.ok
         if meta_props is not None:
-            keep = ok[meta]
+            keep = np.broadcast_to(ok, t.shape)[meta]
             if anywhere(keep):
                 self._put_props(fields, sel, ok & meta, Props(*(np.asarray(f)[keep] for f in meta_props)))
             ok = ok & ~meta
         above_b23 = t > REGION1_T_MAX  # region 3 only above region 1's top, where the B23 line starts
         if anywhere(above_b23):
             above_b23 = above_b23 & (q > if97_saturation.b23_pressure(clamp(t, REGION1_T_MAX, B23_T_MAX)))
-        two = ok & ~above_b23
+        two = ok & np.logical_not(above_b23)
         if anywhere(two):
             self._put_props(fields, sel, two, if97.region2(_where(t, two), _where(q, two), fields.want))
         three = ok & above_b23
@@ -404,11 +430,12 @@ class Water(Substance):
         return meta_props
 
     def _fluid(self, t, q, sel, r: Result, fields) -> None:
-        sub = Result(np.full(t.shape, np.nan))
+        t, q = single(t), single(q)
+        sub = Result(empty_like(t.shape))
         sub.flag(t > REGION5_T_MAX, OUT_OF_RANGE, MESSAGES["fluid_hot"], t)
         sub.flag((t > IAPWS95_T_MAX) & (q > P_MAX_REGION5), OUT_OF_RANGE, MESSAGES["fluid_region5_above_p"], q)
         sub.flag(q > IAPWS95_P_MAX, OUT_OF_RANGE, MESSAGES["fluid_above_p"], q)
-        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        ok = sub.ok
         # beyond IF97's pressures (region 5's above REGION2_T_MAX) the fluid is IAPWS-95's
         dense = q > np.where(t > REGION2_T_MAX, P_MAX_REGION5, P_MAX_FLUID)
         ok, dense = ok & ~dense, ok & dense
@@ -426,10 +453,11 @@ class Water(Substance):
         self._report(r, sel, sub)
 
     def _ice(self, t, q, sel, r: Result, fields) -> None:
-        sub = Result(np.full(t.shape, np.nan))
+        t, q = single(t), single(q)
+        sub = Result(empty_like(t.shape))
         sub.flag(t > ICE_IH_T_MAX * (1 + LINE_TOL), OUT_OF_RANGE, MESSAGES["ice_hot"], t)
         sub.flag(q > ICE_IH_P_MAX, OUT_OF_RANGE, MESSAGES["ice_above_p"], q)
-        melt = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        melt = sub.ok
         melt &= q > PT
         if anywhere(melt):
             p_melt = np.full(t.shape, np.inf)
@@ -437,7 +465,7 @@ class Water(Substance):
             # the ice Ih line leans back: above it in pressure the ice has melted
             sub.flag(melt & (t >= _MELT_T_MIN) & (q > p_melt * (1 + LINE_TOL)), OUT_OF_RANGE,
                      MESSAGES["ice_melted"], t, q)
-        ok = np.equal(sub.problems, None) if sub.problems is not None else np.ones(t.shape, bool)
+        ok = np.broadcast_to(sub.ok, t.shape)  # a mask to index with
         if anywhere(ok):
             self._put_props(fields, sel, ok, ice_ih.properties(t[ok], q[ok]))
         self._report(r, sel, sub)
