@@ -34,11 +34,9 @@ from cellfuncs.substances.result import NOT_AVAILABLE, OUT_OF_RANGE
 
 SUBSTANCES = [name for name in names() if name != "water"]
 FLUID_LABELS = {"liquid", "vapor", "gas", "supercritical fluid"}
-# the general model's fluid (quantum fluids): Rackett-Tait liquid and Peng-Robinson vapour
-_SHORT_LINE = "its vapour-pressure line starts at 3.7 K, above 0.5 Tc (2.6 K)"
-_TAIT = "the Tait compression of the liquid fails a few per cent below Tc"
-GRID_GAPS = {"helium-4": f"{_SHORT_LINE}; {_TAIT}"}
-RANGE_GAPS = {"helium-4": _SHORT_LINE}
+# substances known to fail a check, with the reason (none at present)
+GRID_GAPS: dict[str, str] = {}
+RANGE_GAPS: dict[str, str] = {}
 
 
 def _params(names_, gaps: dict[str, str]):

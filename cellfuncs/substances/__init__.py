@@ -73,14 +73,13 @@ def _model(definition) -> Substance:
     """The model of a definition: its equation of state's when it names one, else the reference
     fluid's equation mapped onto the general model's lines (helmholtz/corresponding.py)."""
     from .general.model import GeneralSubstance
-    from .helmholtz.corresponding import MappedSubstance, applies
+    from .helmholtz.corresponding import MappedSubstance
     from .helmholtz.equation import equation
     from .helmholtz.substance import EquationSubstance
 
     if definition.equation:
         return EquationSubstance(definition, equation(definition.equation))
-    estimate = GeneralSubstance(definition)
-    return MappedSubstance(definition, estimate) if applies(estimate) else estimate
+    return MappedSubstance(definition, GeneralSubstance(definition))
 
 
 def names() -> list[str]:

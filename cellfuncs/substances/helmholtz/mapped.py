@@ -28,7 +28,7 @@ describe for refrigerants (references from memory):
     equation's first derivatives (pressure, enthalpy, entropy) are continuous through the critical
     temperature (its second, the heat capacities, jump there) and it tends to plain
     two-parameter corresponding states well above it; below the lowest fitted temperature (the
-    triple point) they continue linearly.
+    triple point, or where a substance without one has data) they continue linearly.
 
 Two corrections go beyond the two shape factors:
 
@@ -66,7 +66,6 @@ from ..constants import P_STANDARD
 from .equation import HelmholtzEquation, Isotherm
 from .saturation import Saturation, equilibrium
 
-REFERENCE_FLUID = "propane"  # long liquid range (Tr from 0.23), a reference equation to 1000 MPa
 _BLEND_FROM = 0.85  # reduced temperature where ln phi starts to fade to zero at the critical point
 _NODES = 128  # fitted temperatures, uniform in sqrt(1 - T/Tc)
 _P_BLEND_FROM = 0.95  # reduced temperature from where a line's miss of the critical pressure is taken out
@@ -213,11 +212,13 @@ class MappedEquation(HelmholtzEquation):
     def __init__(self, key: str, name: str, Tc: float, pc: float, molar_mass: float, T_low: float,
                  p_sat: Callable[[np.ndarray], np.ndarray], rho_sat: Callable[[np.ndarray], np.ndarray],
                  cp0: Mapping | None, reference: HelmholtzEquation, reference_saturation: Saturation,
-                 critical_density: float | None = None, vapour: VapourDatum | None = None):
+                 critical_density: float | None = None, vapour: VapourDatum | None = None,
+                 T_min: float | None = None):
         """p_sat(T) (Pa) and rho_sat(T) (mol/m3) are the substance's vapour pressure and saturated
         liquid density from T_low to Tc; cp0 its ideal-gas heat capacity table (or None);
         critical_density (mol/m3) the substance's, reached by the volume translation; vapour a
-        saturated-vapour datum that the polar term is fitted to.
+        saturated-vapour datum that the polar term is fitted to; T_min the lowest temperature of the
+        equation's range, below T_low (the shape factors continued) or T_low itself.
         ArithmeticError where the reference's saturation cannot reproduce them."""
         ref = reference
         self.key, self._ref, self._ref_sat, self._cp0 = key, ref, reference_saturation, cp0 or None
@@ -242,7 +243,8 @@ class MappedEquation(HelmholtzEquation):
         # the low-boiling gases reach process temperatures (argon at 1000 K is propane at 2450 K: far
         # above its equation's 650 K, where the residual part is small and smooth); pressures to
         # 10 pc at least (the reference equation's own 1000 MPa scaled would reach gigapascals)
-        self.T_min = T_low
+        self.fitted_from = T_low  # the lowest temperature whose saturation the shape factors reproduce
+        self.T_min = T_low if T_min is None else min(T_min, T_low)
         self.T_max = max(ref.T_max * Tc / ref.Tc, _T_MAX)
         self.p_max = max(10.0 * pc, 100e6)
         if vapour is None:
@@ -358,6 +360,13 @@ class MappedEquation(HelmholtzEquation):
     def caloric(self) -> bool:
         """Whether enthalpy, entropy and heat capacity are available (an ideal-gas heat capacity given)."""
         return self._cp0 is not None
+
+    def vapour_pressure(self, T) -> np.ndarray:
+        """The mapped equation's own vapour pressure (Pa): the reference's at T_0, scaled (module docstring)."""
+        T = np.asarray(T, dtype=float)
+        T0 = self._conformal(T)
+        _, phi = self.shape_factors(T)
+        return self._ref_sat.pressure(T0) * self._rho_m * T / (phi * self._ref.rhoc * T0)
 
     def saturated_liquid(self, T) -> np.ndarray:
         """The reference's saturated liquid density at T_0, mapped (mol/m3): the phase equilibrium's
